@@ -1,0 +1,106 @@
+package raytrace
+
+import (
+	"math"
+
+	"gonum.org/v1/gonum/mathext"
+)
+
+// The functions below take the parameter m of Legendre's and Jacobi's
+// functions together with its complement mc = 1 - m wherever the callers
+// can compute mc without cancellation (near-critical photons have m → 1).
+
+// EllipticK returns the complete elliptic integral of the first kind
+// K(m) = R_F(0, 1-m, 1) (Carlson 1995, Numer. Algorithms 10, 13; DLMF 19.25.1).
+// Domain: m < 1, including m < 0 (gonum's CompleteK refuses m < 0).
+func EllipticK(m float64) float64 {
+	return ellipK(1 - m)
+}
+
+func ellipK(mc float64) float64 {
+	return mathext.EllipticRF(0, mc, 1)
+}
+
+// EllipticF returns the incomplete elliptic integral of the first kind
+// F(φ|m) = ∫₀^φ dθ / sqrt(1 - m sin²θ) for any real φ and m < 1
+// (m < 0 allowed). It uses F(φ|m) = sin φ R_F(cos²φ, 1 - m sin²φ, 1)
+// for |φ| ≤ π/2 (Carlson 1995; DLMF 19.25.5) and reduces other φ with
+// F(φ + jπ|m) = 2jK(m) + F(φ|m) and F(-φ|m) = -F(φ|m) (DLMF 19.2.10,
+// 19.2.9): the R_F form alone is wrong beyond π/2.
+func EllipticF(phi, m float64) float64 {
+	if math.IsNaN(phi) || math.IsInf(phi, 0) || math.IsNaN(m) || m >= 1 {
+		return math.NaN()
+	}
+	mc := 1 - m
+	j := math.Round(phi / math.Pi)
+	r := phi - j*math.Pi // |r| ≤ π/2
+	s, c := math.Sincos(r)
+	f := math.Copysign(ellipFsc(s*s, c*c, mc), r)
+	if j != 0 {
+		f += 2 * j * ellipK(mc)
+	}
+	return f
+}
+
+// ellipFsc returns F(φ|m) for 0 ≤ φ ≤ π/2 given s2 = sin²φ, c2 = cos²φ and
+// mc = 1 - m, in the form sqrt(s2) R_F(c2, c2 + mc s2, 1) which keeps full
+// relative accuracy when both m → 1 and φ → π/2 (Carlson 1995).
+func ellipFsc(s2, c2, mc float64) float64 {
+	if s2 <= 0 {
+		return 0
+	}
+	return math.Sqrt(s2) * mathext.EllipticRF(c2, c2+mc*s2, 1)
+}
+
+// ellipFcos returns F(arccos x | m) for -1 ≤ x ≤ 1 (so 0 ≤ φ ≤ π), with
+// F(φ) = 2K - F(π - φ) for φ > π/2 (DLMF 19.2.10).
+func ellipFcos(x, mc float64) float64 {
+	x = math.Max(-1, math.Min(1, x))
+	if x >= 0 {
+		return ellipFsc((1-x)*(1+x), x*x, mc)
+	}
+	return 2*ellipK(mc) - ellipFsc((1-x)*(1+x), x*x, mc)
+}
+
+// JacobiSCD returns the Jacobi elliptic functions sn, cn and dn of u for
+// parameter 0 ≤ m ≤ 1, by the arithmetic–geometric mean and descending
+// Landen transformation (Abramowitz & Stegun 16.4.3; DLMF 22.20.1).
+// m = 1 gives tanh u, sech u, sech u (DLMF 22.5.3).
+func JacobiSCD(u, m float64) (sn, cn, dn float64) {
+	return jacobi(u, m, 1-m)
+}
+
+// jacobi is JacobiSCD with the complementary parameter mc = 1 - m given
+// separately, for accuracy as m → 1.
+func jacobi(u, m, mc float64) (sn, cn, dn float64) {
+	if math.IsNaN(u) || math.IsNaN(m) || m < 0 || mc < 0 {
+		return math.NaN(), math.NaN(), math.NaN()
+	}
+	if m == 0 {
+		sn, cn = math.Sincos(u)
+		return sn, cn, 1
+	}
+	if mc == 0 {
+		sn = math.Tanh(u)
+		cn = 1 / math.Cosh(u)
+		return sn, cn, cn
+	}
+	const maxIter = 16
+	var a, c [maxIter + 1]float64
+	a[0], c[0] = 1, math.Sqrt(m)
+	b := math.Sqrt(mc)
+	n := 0
+	for n < maxIter && math.Abs(c[n]) > 1e-17*a[n] {
+		a[n+1] = (a[n] + b) / 2
+		c[n+1] = (a[n] - b) / 2
+		b = math.Sqrt(a[n] * b)
+		n++
+	}
+	phi := math.Ldexp(a[n]*u, n)
+	for i := n; i > 0; i-- {
+		phi = (phi + math.Asin(c[i]*math.Sin(phi)/a[i])) / 2
+	}
+	sn, cn = math.Sincos(phi)
+	dn = math.Sqrt(cn*cn + mc*sn*sn)
+	return sn, cn, dn
+}

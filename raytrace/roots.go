@@ -1,0 +1,194 @@
+package raytrace
+
+import "math"
+
+// RootCase classifies the radial potential R(r) = r⁴ + A r² + B r + C by
+// its real roots (Gralla & Lupsasca 2020, PRD 101, 044032, sec. III).
+type RootCase uint8
+
+const (
+	// FourReal: four real roots r1 < r2 < r3 < r4.
+	FourReal RootCase = iota + 1
+	// TwoReal: r1 < r2 real, r3 = conj(r4) complex.
+	TwoReal
+	// NoReal: two complex-conjugate pairs (only for η < 0).
+	NoReal
+)
+
+// String names the case with the numbering of Gralla & Lupsasca (2020).
+func (c RootCase) String() string {
+	switch c {
+	case FourReal:
+		return "I (four real roots)"
+	case TwoReal:
+		return "II (two real roots)"
+	case NoReal:
+		return "IV (no real root)"
+	}
+	return "unknown"
+}
+
+// quartic holds the roots of R(r) in the form that the closed-form
+// solutions need, with the differences that matter computed without
+// cancellation.
+type quartic struct {
+	cs         RootCase
+	r1, r2     float64 // real roots (cases I, II)
+	r3, r4     float64 // real roots (case I); real part in case II is re34
+	re34, im34 float64 // case II: r3,4 = re34 ∓ i im34
+	r21, r43   float64 // r2 - r1, r4 - r3 (case I)
+}
+
+// radialRoots solves r⁴ + A r² + B r + C = 0 by Ferrari's method through
+// the resolvent cubic 16y³ + 8Ay² + (A² - 4C)y - B²/4 = 0 with y = z²,
+// z = (r3 + r4)/2, taking its largest real root (the pairing {r1,r2},{r3,r4}
+// of Gralla & Lupsasca 2020, eqs. 95–96, which the physics notes write with
+// ω±). Then r1,2 = -z ∓ sqrt(D12), r3,4 = z ∓ sqrt(D34) with
+// D12 = -A/2 - z² + B/(4z), D34 = -A/2 - z² - B/(4z). Real roots are
+// polished with a guarded Newton step. Domain: finite A, B ≥ 0, C.
+func radialRoots(A, B, C float64) quartic {
+	var q quartic
+	y := resolventMax(A, B, C)
+	z := math.Sqrt(y)
+	var d12, d34 float64
+	if z > 0 && B > 0 {
+		t := B / (4 * z)
+		d12 = -A/2 - y + t
+		d34 = -A/2 - y - t
+	} else {
+		// Biquadratic: r⁴ + A r² + C, r² = (-A ± sqrt(A² - 4C))/2.
+		z = 0
+		disc := A*A - 4*C
+		if disc < 0 {
+			// Two complex pairs; the real parts vanish.
+			q.cs = NoReal
+			return q
+		}
+		s := math.Sqrt(disc)
+		p := (-A + s) / 2 // larger r²
+		n := C / p        // smaller r² (product = C)
+		if p == 0 {
+			n = (-A - s) / 2
+		}
+		// Pairs {-sqrt p, -sqrt n} and {sqrt n, sqrt p} when both ≥ 0.
+		if n >= 0 {
+			sp, sn := math.Sqrt(p), math.Sqrt(n)
+			q.cs = FourReal
+			q.r1, q.r2, q.r3, q.r4 = -sp, -sn, sn, sp
+			q.r21, q.r43 = sp-sn, sp-sn
+			return q
+		}
+		if p >= 0 {
+			sp := math.Sqrt(p)
+			q.cs = TwoReal
+			q.r1, q.r2 = -sp, sp
+			q.r21 = 2 * sp
+			q.re34, q.im34 = 0, math.Sqrt(-n)
+			return q
+		}
+		q.cs = NoReal
+		return q
+	}
+	switch {
+	case d12 >= 0 && d34 >= 0:
+		s12, s34 := math.Sqrt(d12), math.Sqrt(d34)
+		q.cs = FourReal
+		q.r1, q.r2 = -z-s12, -z+s12
+		q.r3, q.r4 = z-s34, z+s34
+		q.r1 = polish(q.r1, A, B, C)
+		q.r2 = polish(q.r2, A, B, C)
+		q.r3 = polish(q.r3, A, B, C)
+		q.r4 = polish(q.r4, A, B, C)
+		q.r21 = 2 * s12
+		q.r43 = 2 * s34
+		if q.r2 > q.r3 { // roots of both pairs interleave: sort
+			q.r2, q.r3 = q.r3, q.r2
+			q.r21 = q.r2 - q.r1
+			q.r43 = q.r4 - q.r3
+		}
+	case d12 >= 0:
+		s12 := math.Sqrt(d12)
+		q.cs = TwoReal
+		q.r1 = polish(-z-s12, A, B, C)
+		q.r2 = polish(-z+s12, A, B, C)
+		q.r21 = 2 * s12
+		q.re34, q.im34 = z, math.Sqrt(-d34)
+	default:
+		q.cs = NoReal
+	}
+	return q
+}
+
+// resolventMax returns the largest real root y ≥ 0 of
+// 16y³ + 8Ay² + (A² - 4C)y - B²/4 (Ferrari's resolvent), by the
+// trigonometric or Cardano form of the cubic (DLMF 1.11(iii)) and Newton
+// polishing.
+func resolventMax(A, B, C float64) float64 {
+	// Monic: y³ + p2 y² + p1 y + p0.
+	p2 := A / 2
+	p1 := (A*A - 4*C) / 16
+	p0 := -B * B / 64
+	// Depressed: y = t - p2/3, t³ + pt + q = 0.
+	p := p1 - p2*p2/3
+	qq := 2*p2*p2*p2/27 - p2*p1/3 + p0
+	var t float64
+	disc := qq*qq/4 + p*p*p/27
+	if disc > 0 {
+		s := math.Sqrt(disc)
+		u := math.Cbrt(-qq/2 - math.Copysign(s, qq))
+		v := 0.0
+		if u != 0 {
+			v = -p / (3 * u)
+		}
+		t = u + v
+	} else {
+		m := 2 * math.Sqrt(math.Max(0, -p/3))
+		arg := 0.0
+		if m > 0 {
+			arg = 3 * qq / (p * m)
+		}
+		arg = math.Max(-1, math.Min(1, arg))
+		t = m * math.Cos(math.Acos(arg)/3)
+	}
+	y := t - p2/3
+	// Newton polish (the cubic is increasing past its largest root).
+	for i := 0; i < 3; i++ {
+		f := ((y+p2)*y+p1)*y + p0
+		df := (3*y+2*p2)*y + p1
+		if df == 0 {
+			break
+		}
+		d := f / df
+		if math.IsNaN(d) || math.IsInf(d, 0) {
+			break
+		}
+		y -= d
+	}
+	if y < 0 || math.IsNaN(y) {
+		y = 0
+	}
+	return y
+}
+
+// polish applies up to two Newton steps to a real root of
+// r⁴ + A r² + B r + C, keeping a step only if it lowers |R|.
+func polish(r, A, B, C float64) float64 {
+	for i := 0; i < 2; i++ {
+		r2 := r * r
+		f := (r2+A)*r2 + B*r + C
+		if f == 0 {
+			return r
+		}
+		df := (4*r2+2*A)*r + B
+		if df == 0 {
+			return r
+		}
+		n := r - f/df
+		rn2 := n * n
+		if math.Abs((rn2+A)*rn2+B*n+C) >= math.Abs(f) {
+			return r
+		}
+		r = n
+	}
+	return r
+}
