@@ -63,8 +63,12 @@ func ellipFcos(x, mc float64) float64 {
 }
 
 // JacobiSCD returns the Jacobi elliptic functions sn, cn and dn of u for
-// parameter 0 ≤ m ≤ 1, by the arithmetic–geometric mean and descending
-// Landen transformation (Abramowitz & Stegun 16.4.3; DLMF 22.20.1).
+// parameter 0 ≤ m ≤ 1 by the descending Landen (Gauss) transformation in
+// the form of Bulirsch (1965, Numer. Math. 7, 78, algorithm sncndn): the
+// arithmetic–geometric mean of 1 and sqrt(1-m) scales the argument
+// (Abramowitz & Stegun 16.4; DLMF 22.20), and the back-substitution carries
+// the ratio cn/sn instead of the amplitude, so cn and dn keep their relative
+// accuracy where they are small (m → 1, u near the quarter period).
 // m = 1 gives tanh u, sech u, sech u (DLMF 22.5.3).
 func JacobiSCD(u, m float64) (sn, cn, dn float64) {
 	return jacobi(u, m, 1-m)
@@ -73,7 +77,7 @@ func JacobiSCD(u, m float64) (sn, cn, dn float64) {
 // jacobi is JacobiSCD with the complementary parameter mc = 1 - m given
 // separately, for accuracy as m → 1.
 func jacobi(u, m, mc float64) (sn, cn, dn float64) {
-	if math.IsNaN(u) || math.IsNaN(m) || m < 0 || mc < 0 {
+	if math.IsNaN(u) || math.IsNaN(m) || math.IsInf(u, 0) || m < 0 || mc < 0 {
 		return math.NaN(), math.NaN(), math.NaN()
 	}
 	if m == 0 {
@@ -85,22 +89,40 @@ func jacobi(u, m, mc float64) (sn, cn, dn float64) {
 		cn = 1 / math.Cosh(u)
 		return sn, cn, cn
 	}
+	// The AGM converges quadratically: stop once |a - b| ≤ 1e-9 a, the
+	// next mean then being exact to rounding.
+	const conv = 1e-9
 	const maxIter = 16
-	var a, c [maxIter + 1]float64
-	a[0], c[0] = 1, math.Sqrt(m)
-	b := math.Sqrt(mc)
-	n := 0
-	for n < maxIter && math.Abs(c[n]) > 1e-17*a[n] {
-		a[n+1] = (a[n] + b) / 2
-		c[n+1] = (a[n] - b) / 2
-		b = math.Sqrt(a[n] * b)
-		n++
+	var am, bm [maxIter]float64 // a_i and b_i = sqrt(b_{i-1} a_{i-1}) of the AGM
+	a, b := 1.0, mc
+	last := 0
+	var c float64
+	for i := 0; i < maxIter; i++ {
+		last = i
+		am[i] = a
+		b = math.Sqrt(b)
+		bm[i] = b
+		c = (a + b) / 2
+		if math.Abs(a-b) <= conv*a {
+			break
+		}
+		b *= a
+		a = c
 	}
-	phi := math.Ldexp(a[n]*u, n)
-	for i := n; i > 0; i-- {
-		phi = (phi + math.Asin(c[i]*math.Sin(phi)/a[i])) / 2
+	sn, cn = math.Sincos(u * c)
+	dn = 1
+	if sn != 0 {
+		ratio := cn / sn // cot of the transformed amplitude
+		c *= ratio
+		for i := last; i >= 0; i-- {
+			ratio *= c
+			c *= dn
+			dn = (bm[i] + ratio) / (am[i] + ratio)
+			ratio = c / am[i]
+		}
+		s := 1 / math.Sqrt(c*c+1)
+		sn = math.Copysign(s, sn)
+		cn = c * sn
 	}
-	sn, cn = math.Sincos(phi)
-	dn = math.Sqrt(cn*cn + mc*sn*sn)
 	return sn, cn, dn
 }
