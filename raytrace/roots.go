@@ -106,6 +106,13 @@ func radialRoots(A, B, C float64) quartic {
 			q.r21 = q.r2 - q.r1
 			q.r43 = q.r4 - q.r3
 		}
+		// An exact double root r3 = r4 is the critical curve itself, where
+		// the photon would wind forever; split it by one rounding unit so
+		// the ray counts as just outside (finite winding, escape).
+		if tiny := 4e-16 * math.Max(1, math.Abs(q.r4)); q.r43 < tiny {
+			q.r43 = tiny
+			q.r3 = q.r4 - tiny
+		}
 	case d12 >= 0:
 		s12 := math.Sqrt(d12)
 		q.cs = TwoReal

@@ -169,8 +169,19 @@ func (o Observer) trace(lambda, eta, beta float64, orders int, p *Path) {
 		return
 	}
 	p.Mino = rad.total
-
-	if !(eta > 0) || orders <= 0 {
+	if !(eta > 0) {
+		// No crossing; degenerate root sets (e.g. λ = η = 0 at a = 0,
+		// R = r⁴) leave the elliptic forms 0/0, so integrate directly.
+		if math.IsNaN(p.Mino) || math.IsInf(p.Mino, 0) {
+			if p.Fate == Captured {
+				p.Mino = minoQuad(A, B, C, 1/rh)
+			} else {
+				p.Mino = 2 * minoQuad(A, B, C, 1/q.r4)
+			}
+		}
+		return
+	}
+	if orders <= 0 {
 		return
 	}
 
@@ -223,12 +234,14 @@ type radial struct {
 	turn  float64 // Mino time at the turning point (+Inf if none)
 	// case I
 	r3, r4, r31, r41 float64
+	r42, r43         float64
 	// case II
 	ap, bp       float64 // A', B'
 	num0, num1   float64 // B' r2 - A' r1, B' r2 + A' r1
 	den0, den1   float64 // B' - A', B' + A'
 	scale, x0, m float64 // X = scale τ - x0; parameter m
 	mc           float64 // 1 - m
+	c0, r21      float64 // case II: cn X0 = (A' - B')/(A' + B'), r2 - r1
 }
 
 // newRadialI sets up case I, four real roots (Gralla & Lupsasca 2020,
@@ -244,7 +257,7 @@ func newRadialI(q quartic, rh float64, escapes bool) radial {
 	mc := q.r21 * q.r43 / (r31 * r42)
 	f0 := ellipFsc(r31/r41, q.r43/r41, mc)
 	scale := math.Sqrt(r31*r42) / 2
-	rd := radial{cs: FourReal, r3: q.r3, r4: q.r4, r31: r31, r41: r41,
+	rd := radial{cs: FourReal, r3: q.r3, r4: q.r4, r31: r31, r41: r41, r42: r42, r43: q.r43,
 		scale: scale, x0: f0, m: m, mc: mc, turn: math.Inf(1)}
 	if escapes {
 		rd.turn = f0 / scale
@@ -274,27 +287,69 @@ func newRadialII(q quartic, rh float64) radial {
 	bp := math.Sqrt(d1*d1 + im2)
 	r21 := q.r21
 	m := ((ap+bp)*(ap+bp) - r21*r21) / (4 * ap * bp)
-	mc := (r21 - ap + bp) * (r21 + ap - bp) / (4 * ap * bp)
+	// 1 - k = (r21 - A' + B')(r21 + A' - B')/(4A'B'); near the critical
+	// curve r21 + A' - B' → 0 like im34², so write it without cancellation.
+	small := r21 + ap - bp
+	if d2 > 0 {
+		small = im2 * (bp - ap + r21) / ((ap + d2) * (bp + d1))
+	}
+	mc := (r21 - ap + bp) * small / (4 * ap * bp)
+	if tiny := 1e-300; !(mc > tiny) {
+		mc = tiny // the critical curve itself: see radialRoots
+	}
 	x0 := ellipFcos((ap-bp)/(ap+bp), mc)
 	scale := math.Sqrt(ap * bp)
 	rd := radial{cs: TwoReal, ap: ap, bp: bp,
 		num0: bp*q.r2 - ap*q.r1, num1: bp*q.r2 + ap*q.r1,
 		den0: bp - ap, den1: bp + ap,
-		scale: scale, x0: x0, m: m, mc: mc, turn: math.Inf(1)}
+		scale: scale, x0: x0, m: m, mc: mc, turn: math.Inf(1),
+		c0: (ap - bp) / (ap + bp), r21: r21}
 	cnh := (rd.num0 - rh*rd.den0) / (rh*rd.den1 - rd.num1)
 	rd.total = (x0 - ellipFcos(cnh, mc)) / scale
 	return rd
 }
 
-// at returns r(τ) for 0 ≤ τ ≤ total.
+// at returns r(τ) for 0 ≤ τ ≤ total. Both cases are evaluated in a form
+// that stays exact where the photon is far away (τ → 0, and τ → total for
+// an escaping photon), where the textbook forms divide two vanishing
+// differences: with X = δ - X₀ the addition theorem for the Jacobi functions
+// (DLMF 22.8.1–2) gives
+//
+//	case I:  r = r3 + r31 r43 / (r41 (s0 - sn X)(s0 + sn X)),  s0 = sn F0
+//	case II: r = (B'r2 + A'r1)/(A'+B') + 2A'B'r21 / ((A'+B')² (cn X - cn X0))
+//
+// with s0 + sn X and cn X - cn X0 written through sn δ, cn δ, dn δ.
 func (rd radial) at(tau float64) float64 {
-	x := rd.scale*tau - rd.x0
-	sn, cn, _ := jacobi(x, rd.m, rd.mc)
 	if rd.cs == FourReal {
-		s2 := sn * sn
-		return (rd.r4*rd.r31 - rd.r3*rd.r41*s2) / (rd.r31 - rd.r41*s2)
+		// r(X) is even in X: fold the outgoing half onto the incoming one.
+		d := rd.scale * tau
+		if tau > rd.turn {
+			d = rd.scale * (rd.total - tau)
+		}
+		sd, cd, dd := jacobi(d, rd.m, rd.mc)
+		// sn F0 = sqrt(r31/r41), cn F0 = sqrt(r43/r41), dn F0 = sqrt(r43/r42).
+		s0 := math.Sqrt(rd.r31 / rd.r41)
+		c0 := math.Sqrt(rd.r43 / rd.r41)
+		d0 := math.Sqrt(rd.r43 / rd.r42)
+		den := 1 - rd.m*s0*s0*sd*sd
+		snx := (sd*c0*d0 - s0*cd*dd) / den
+		// 1 - cd dd = sd²(1 + m - m sd²)/(1 + cd dd), δ ≤ K.
+		omcd := sd * sd * (1 + rd.m - rd.m*sd*sd) / (1 + cd*dd)
+		plus := (s0*(omcd-rd.m*s0*s0*sd*sd) + sd*c0*d0) / den
+		return rd.r3 + rd.r31*rd.r43/(rd.r41*(s0-snx)*plus)
 	}
-	return (rd.num0 + rd.num1*cn) / (rd.den0 + rd.den1*cn)
+	d := rd.scale * tau
+	sd, cd, dd := jacobi(d, rd.m, rd.mc)
+	c0 := rd.c0
+	s0 := math.Sqrt((1 - c0) * (1 + c0))
+	d0 := math.Sqrt(1 - rd.m*s0*s0)
+	cm1 := cd - 1
+	if cd > 0 {
+		cm1 = -sd * sd / (1 + cd)
+	}
+	den := 1 - rd.m*s0*s0*sd*sd
+	diff := (c0*(cm1+rd.m*s0*s0*sd*sd) + s0*d0*sd*dd) / den
+	return rd.num1/rd.den1 + 2*rd.ap*rd.bp*rd.r21/(rd.den1*rd.den1*diff)
 }
 
 // legendre is a fixed 64-point Gauss–Legendre rule, set up once.
