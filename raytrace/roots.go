@@ -95,12 +95,41 @@ func radialRoots(A, B, C float64) quartic {
 		q.cs = FourReal
 		q.r1, q.r2 = -z-s12, -z+s12
 		q.r3, q.r4 = z-s34, z+s34
-		q.r1 = polish(q.r1, A, B, C)
-		q.r2 = polish(q.r2, A, B, C)
-		q.r3 = polish(q.r3, A, B, C)
-		q.r4 = polish(q.r4, A, B, C)
+		var ok1, ok2, ok3, ok4 bool
+		q.r1, ok1 = polish(q.r1, A, B, C)
+		q.r2, ok2 = polish(q.r2, A, B, C)
+		q.r3, ok3 = polish(q.r3, A, B, C)
+		q.r4, ok4 = polish(q.r4, A, B, C)
+		if (!ok2 || !ok3) && ok1 && ok4 {
+			// Ferrari's middle pair cancels badly when |r1|, r4 ≫ r2, r3
+			// (large η near a near-extremal horizon): deflate with the two
+			// outer roots (Vieta: r2 + r3 = -(r1 + r4), r2 r3 = C/(r1 r4))
+			// and polish again.
+			sum := -(q.r1 + q.r4)
+			prod := C / (q.r1 * q.r4)
+			if disc := sum*sum/4 - prod; disc >= 0 {
+				h := sum/2 + math.Copysign(math.Sqrt(disc), sum)
+				lo, hi := prod/h, h
+				if lo > hi {
+					lo, hi = hi, lo
+				}
+				q.r2, _ = polish(lo, A, B, C)
+				q.r3, _ = polish(hi, A, B, C)
+				s12 = (q.r2 - q.r1) / 2
+				s34 = (q.r4 - q.r3) / 2
+			}
+		}
 		q.r21 = 2 * s12
 		q.r43 = 2 * s34
+		// Prefer differences of the polished roots where they are well
+		// separated; keep the closed forms for near-double roots.
+		scale := math.Max(math.Abs(q.r1), math.Abs(q.r4))
+		if d := q.r2 - q.r1; d > 1e-6*scale {
+			q.r21 = d
+		}
+		if d := q.r4 - q.r3; d > 1e-6*scale {
+			q.r43 = d
+		}
 		if q.r2 > q.r3 { // roots of both pairs interleave: sort
 			q.r2, q.r3 = q.r3, q.r2
 			q.r21 = q.r2 - q.r1
@@ -116,8 +145,8 @@ func radialRoots(A, B, C float64) quartic {
 	case d12 >= 0:
 		s12 := math.Sqrt(d12)
 		q.cs = TwoReal
-		q.r1 = polish(-z-s12, A, B, C)
-		q.r2 = polish(-z+s12, A, B, C)
+		q.r1, _ = polish(-z-s12, A, B, C)
+		q.r2, _ = polish(-z+s12, A, B, C)
 		q.r21 = 2 * s12
 		q.re34, q.im34 = z, math.Sqrt(-d34)
 	default:
@@ -140,7 +169,12 @@ func resolventMax(A, B, C float64) float64 {
 	qq := 2*p2*p2*p2/27 - p2*p1/3 + p0
 	var t float64
 	disc := qq*qq/4 + p*p*p/27
-	if disc > 0 {
+	// When the two largest roots nearly coincide (r2 ≈ r3, e.g. near the
+	// horizon of a near-extremal hole), rounding can turn them into a
+	// complex pair and Cardano's form would return the small root: use the
+	// trigonometric form there, with its argument clamped.
+	nearDouble := p < 0 && disc <= 1e-10*(qq*qq/4)
+	if disc > 0 && !nearDouble {
 		s := math.Sqrt(disc)
 		u := math.Cbrt(-qq/2 - math.Copysign(s, qq))
 		v := 0.0
@@ -158,18 +192,17 @@ func resolventMax(A, B, C float64) float64 {
 		t = m * math.Cos(math.Acos(arg)/3)
 	}
 	y := t - p2/3
-	// Newton polish (the cubic is increasing past its largest root).
-	for i := 0; i < 3; i++ {
-		f := ((y+p2)*y+p1)*y + p0
+	// Newton polish, keeping a step only if it lowers |f|: at a near-double
+	// root f' ≈ 0 and an unguarded step would jump to the small root.
+	f := ((y+p2)*y+p1)*y + p0
+	for i := 0; i < 8 && f != 0; i++ {
 		df := (3*y+2*p2)*y + p1
-		if df == 0 {
+		n := y - f/df
+		fn := ((n+p2)*n+p1)*n + p0
+		if !(math.Abs(fn) < math.Abs(f)) {
 			break
 		}
-		d := f / df
-		if math.IsNaN(d) || math.IsInf(d, 0) {
-			break
-		}
-		y -= d
+		y, f = n, fn
 	}
 	if y < 0 || math.IsNaN(y) {
 		y = 0
@@ -177,25 +210,30 @@ func resolventMax(A, B, C float64) float64 {
 	return y
 }
 
-// polish applies up to two Newton steps to a real root of
-// r⁴ + A r² + B r + C, keeping a step only if it lowers |R|.
-func polish(r, A, B, C float64) float64 {
-	for i := 0; i < 2; i++ {
+// polish applies up to six Newton steps to a real root of
+// r⁴ + A r² + B r + C, keeping a step only if it lowers |R|, and reports
+// whether the residual reached rounding level.
+func polish(r, A, B, C float64) (float64, bool) {
+	f := 0.0
+	for i := 0; i < 6; i++ {
 		r2 := r * r
-		f := (r2+A)*r2 + B*r + C
+		f = (r2+A)*r2 + B*r + C
 		if f == 0 {
-			return r
+			return r, true
 		}
 		df := (4*r2+2*A)*r + B
 		if df == 0 {
-			return r
+			break
 		}
 		n := r - f/df
 		rn2 := n * n
 		if math.Abs((rn2+A)*rn2+B*n+C) >= math.Abs(f) {
-			return r
+			break
 		}
 		r = n
 	}
-	return r
+	r2 := r * r
+	f = (r2+A)*r2 + B*r + C
+	terms := r2*r2 + math.Abs(A)*r2 + math.Abs(B*r) + math.Abs(C)
+	return r, math.Abs(f) <= 1e-13*terms
 }

@@ -1,0 +1,79 @@
+// Command kerrscope renders what a distant observer sees of a thin
+// accretion disk around a Kerr black hole. It only parses flags and
+// dispatches; the work is done by the scene, raytrace and render packages.
+package main
+
+import (
+	"errors"
+	"fmt"
+	"io"
+	"os"
+)
+
+// version is the program version, recorded in every output file.
+const version = "0.1.0"
+
+// usageError is bad input from the user: printed on one line, exit status 2.
+type usageError struct{ msg string }
+
+func (e usageError) Error() string { return e.msg }
+
+func usagef(format string, args ...any) error {
+	return usageError{fmt.Sprintf(format, args...)}
+}
+
+type command struct {
+	name, summary string
+	run           func(args []string, stdout, stderr io.Writer) error
+}
+
+func commands() []command {
+	return []command{
+		{"probe", "trace the photon of one screen point and list its disk crossings", runProbe},
+		{"version", "print the program version", func([]string, io.Writer, io.Writer) error {
+			fmt.Println("kerrscope", version)
+			return nil
+		}},
+	}
+}
+
+func usage(w io.Writer) {
+	fmt.Fprintln(w, "kerrscope: images and line spectra of thin disks around Kerr black holes")
+	fmt.Fprintln(w, "\nusage: kerrscope <command> [flags]   (kerrscope <command> --help for its flags)")
+	fmt.Fprintln(w, "\ncommands:")
+	for _, c := range commands() {
+		fmt.Fprintf(w, "  %-9s %s\n", c.name, c.summary)
+	}
+}
+
+func main() {
+	os.Exit(run(os.Args[1:], os.Stdout, os.Stderr))
+}
+
+func run(args []string, stdout, stderr io.Writer) int {
+	if len(args) == 0 || args[0] == "help" || args[0] == "-h" || args[0] == "--help" {
+		usage(stdout)
+		return 0
+	}
+	for _, c := range commands() {
+		if c.name != args[0] {
+			continue
+		}
+		err := c.run(args[1:], stdout, stderr)
+		var ue usageError
+		switch {
+		case err == nil:
+			return 0
+		case errors.Is(err, errHelp):
+			return 0
+		case errors.As(err, &ue):
+			fmt.Fprintf(stderr, "kerrscope %s: %v\n", c.name, err)
+			return 2
+		default:
+			fmt.Fprintf(stderr, "kerrscope %s: %v\n", c.name, err)
+			return 1
+		}
+	}
+	fmt.Fprintf(stderr, "kerrscope: unknown command %q (run kerrscope help)\n", args[0])
+	return 2
+}

@@ -1,0 +1,45 @@
+package main
+
+import (
+	"io"
+
+	"kerrscope/raytrace"
+	"kerrscope/render"
+)
+
+func runProbe(args []string, stdout, stderr io.Writer) error {
+	f := newFlags("probe", stdout)
+	var spin, inc, alpha, beta float64
+	f.float(&spin, "spin", 0.9, "black-hole spin a, signed, -1 < a < 1 (a > 0: disk co-rotates)")
+	f.float(&inc, "inclination", 60, "observer inclination from the spin axis, degrees, 0 to 180")
+	f.float(&alpha, "alpha", 0, "screen coordinate α (right), in M (required)")
+	f.float(&beta, "beta", 0, "screen coordinate β (up, along the projected spin axis), in M (required)")
+	orders := f.fs.Int("orders", 3, "how many equatorial crossings to list, 1 to 64")
+	asJSON := f.fs.Bool("json", false, "print one JSON object instead of a table")
+	if err := f.parse(args); err != nil {
+		return err
+	}
+	if !(spin > -1 && spin < 1) {
+		return usagef("--spin %g is outside the allowed range -1 < spin < 1", spin)
+	}
+	if !(inc >= 0 && inc <= 180) {
+		return usagef("--inclination %g is outside the allowed range 0 to 180 degrees", inc)
+	}
+	for _, name := range []string{"alpha", "beta"} {
+		if !f.given(name) {
+			return usagef("--%s is required (screen coordinate in M, any finite number)", name)
+		}
+	}
+	if *orders < 1 || *orders > 64 {
+		return usagef("--orders %d is outside the allowed range 1 to 64", *orders)
+	}
+	o, err := raytrace.NewObserver(spin, inc)
+	if err != nil {
+		return usagef("%v", err)
+	}
+	rep := render.Probe(o, alpha, beta, *orders, nil)
+	if *asJSON {
+		return rep.WriteJSON(stdout)
+	}
+	return rep.WriteText(stdout)
+}
