@@ -1,0 +1,103 @@
+package render
+
+import (
+	"io"
+	"math"
+
+	"kerrscope/raytrace"
+	"kerrscope/render/fits"
+)
+
+// flipRows turns a top-row-first map into FITS order (first row at the bottom).
+func flipRows(v []float32, w, h int) []float32 {
+	out := make([]float32, len(v))
+	for j := 0; j < h; j++ {
+		copy(out[(h-1-j)*w:(h-j)*w], v[j*w:(j+1)*w])
+	}
+	return out
+}
+
+// fitsAxes gives the linear WCS of the screen: world = α, β (in M) of
+// pixel centres. The axis names avoid WCS's reserved spectral names.
+func (f *Frame) fitsAxes() [2]fits.Axis {
+	r := f.Res
+	return [2]fits.Axis{
+		{Type: "ALPHA_M", RefPixel: 1, RefValue: PixelAlpha(r, 0), Delta: r.PixelSize},
+		{Type: "BETA_M", RefPixel: 1, RefValue: PixelBeta(r, f.H-1), Delta: r.PixelSize},
+	}
+}
+
+// FITSImages returns the maps as FITS image extensions.
+func (f *Frame) FITSImages() []fits.Image {
+	axes := f.fitsAxes()
+	mk := func(name, unit, comment string, v []float32) fits.Image {
+		return fits.Image{Name: name, Unit: unit, Width: f.W, Height: f.H, Data: flipRows(v, f.W, f.H), Axes: axes,
+			Cards: []fits.Card{{Key: "COMMENT", Value: comment}, {Key: "COMMENT", Value: "axis 1 is alpha, axis 2 is beta, both in M (GM/c^2); NaN = no disk seen"}}}
+	}
+	fate := make([]float32, f.W*f.H)
+	order := make([]float32, f.W*f.H)
+	for k := range fate {
+		if f.Fate[k] == raytrace.Captured {
+			fate[k] = 1
+		}
+		order[k] = float32(f.First[k])
+		if f.First[k] < 0 {
+			order[k] = float32(math.NaN())
+		}
+	}
+	ims := []fits.Image{
+		mk("REDSHIFT", "", "redshift factor g = E_obs/E_emit of the first image order seen", f.FirstSeen(f.G)),
+		mk("INTENSITY", "", "line intensity g^3 eps(r) limb, summed over the orders seen", f.Total(f.Line)),
+		mk("BOLOMETRIC", "", "bolometric intensity g^4 eps(r) limb, summed over the orders seen", f.Total(f.Bol)),
+		mk("RADIUS", "", "Boyer-Lindquist source radius in M of the first image order seen", f.FirstSeen(f.R)),
+		mk("ORDER", "", "first image order seen (0 = direct image)", order),
+		mk("CAPTURED", "", "1 = the photon comes from the horizon (shadow), 0 = from infinity", fate),
+	}
+	for o := 0; o < f.Orders; o++ {
+		suffix := string(rune('0' + o%10))
+		if o >= 10 {
+			suffix = string(rune('0'+o/10)) + suffix
+		}
+		ims = append(ims,
+			mk("G_ORD"+suffix, "", "redshift factor g of image order "+suffix, f.G[o]),
+			mk("R_ORD"+suffix, "", "source radius in M of image order "+suffix, f.R[o]),
+			mk("I_ORD"+suffix, "", "line intensity g^3 eps limb of image order "+suffix, f.Line[o]))
+	}
+	return ims
+}
+
+// FITSHeader returns the primary header cards: what was rendered, with
+// which program version.
+func (f *Frame) FITSHeader(version string) []fits.Card {
+	r := f.Res
+	cards := []fits.Card{
+		{Key: "ORIGIN", Value: "kerrscope " + version},
+		{Key: "SPIN", Value: r.Hole.Spin, Comment: "black-hole spin a (signed)"},
+		{Key: "INCLIN", Value: r.Observer.InclinationDeg, Comment: "observer inclination [deg]"},
+		{Key: "RHORIZON", Value: r.Horizon, Comment: "outer horizon radius [M]"},
+		{Key: "RISCO", Value: r.ISCO, Comment: "ISCO radius [M]"},
+		{Key: "RINNER", Value: r.Inner, Comment: "emitting disk inner edge [M]"},
+		{Key: "ROUTER", Value: r.Disk.OuterRadius, Comment: "disk outer edge [M]"},
+		{Key: "OPAQUE", Value: r.Disk.Opaque, Comment: "first landing stops the ray"},
+		{Key: "ORDERS", Value: r.Disk.Orders, Comment: "image orders followed"},
+		{Key: "PLUNGING", Value: r.Disk.Plunging, Comment: "gas inside the ISCO shines"},
+		{Key: "LINEKEV", Value: r.Emission.LineKeV, Comment: "line rest energy [keV]"},
+		{Key: "EMISLAW", Value: r.Emission.Emissivity, Comment: "emissivity law"},
+		{Key: "EMISQ", Value: r.Emission.Index, Comment: "power-law index q"},
+		{Key: "EMISQIN", Value: r.Emission.IndexInner, Comment: "broken law: inner index"},
+		{Key: "EMISQOUT", Value: r.Emission.IndexOuter, Comment: "broken law: outer index"},
+		{Key: "EMISRBRK", Value: r.Emission.BreakRad, Comment: "broken law: break radius [M]"},
+		{Key: "LIMBLAW", Value: r.Emission.Limb, Comment: "limb law"},
+		{Key: "PIXSIZE", Value: r.PixelSize, Comment: "pixel side [M]"},
+		{Key: "FOV", Value: r.Screen.FieldOfView, Comment: "horizontal field of view [M]"},
+	}
+	if r.MicroArcsecPerM > 0 {
+		cards = append(cards, fits.Card{Key: "UASPERM", Value: r.MicroArcsecPerM, Comment: "angle of 1 M at the distance [uas]"})
+	}
+	return cards
+}
+
+// WriteFITS writes all maps to one FITS file.
+func (f *Frame) WriteFITS(w io.Writer, version string) error {
+	return fits.Encode(w, f.FITSHeader(version), f.FITSImages())
+}

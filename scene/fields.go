@@ -1,0 +1,126 @@
+package scene
+
+import (
+	"fmt"
+	"math"
+	"strconv"
+	"strings"
+)
+
+// Field is one scene value that a command-line flag can override.
+type Field struct {
+	Flag  string // flag name, without dashes
+	Key   string // scene key, section.key
+	Usage string
+	Bool  bool // a switch: --flag alone sets it
+	set   func(s *Scene, v string) error
+}
+
+// Set parses v and stores it in s.
+func (f Field) Set(s *Scene, v string) error { return f.set(s, v) }
+
+func parseNumber(v string) (float64, error) {
+	x, err := strconv.ParseFloat(strings.TrimSpace(v), 64)
+	if err != nil {
+		return 0, fmt.Errorf("not a number")
+	}
+	if math.IsNaN(x) || math.IsInf(x, 0) {
+		return 0, fmt.Errorf("must be a finite number")
+	}
+	return x, nil
+}
+
+func num(p func(*Scene) *float64) func(*Scene, string) error {
+	return func(s *Scene, v string) error {
+		x, err := parseNumber(v)
+		if err == nil {
+			*p(s) = x
+		}
+		return err
+	}
+}
+
+func optNum(p func(*Scene) **float64) func(*Scene, string) error {
+	return func(s *Scene, v string) error {
+		x, err := parseNumber(v)
+		if err == nil {
+			*p(s) = &x
+		}
+		return err
+	}
+}
+
+func whole(p func(*Scene) *int) func(*Scene, string) error {
+	return func(s *Scene, v string) error {
+		x, err := strconv.Atoi(strings.TrimSpace(v))
+		if err != nil {
+			return fmt.Errorf("not a whole number")
+		}
+		*p(s) = x
+		return nil
+	}
+}
+
+func text(p func(*Scene) *string) func(*Scene, string) error {
+	return func(s *Scene, v string) error { *p(s) = strings.TrimSpace(v); return nil }
+}
+
+func list(p func(*Scene) *[]string) func(*Scene, string) error {
+	return func(s *Scene, v string) error {
+		var out []string
+		for _, x := range strings.Split(v, ",") {
+			if x = strings.TrimSpace(x); x != "" {
+				out = append(out, x)
+			}
+		}
+		*p(s) = out
+		return nil
+	}
+}
+
+func boolean(p func(*Scene) *bool, on bool) func(*Scene, string) error {
+	return func(s *Scene, v string) error {
+		b, err := strconv.ParseBool(v)
+		if err != nil {
+			return fmt.Errorf("must be true or false")
+		}
+		*p(s) = b == on
+		return nil
+	}
+}
+
+// Fields lists every scene value with its flag, in help order.
+func Fields() []Field {
+	return []Field{
+		{Flag: "spin", Key: "black_hole.spin", Usage: "black-hole spin a, signed, -1 < a < 1 (a > 0: disk co-rotates)", set: num(func(s *Scene) *float64 { return &s.Hole.Spin })},
+		{Flag: "mass", Key: "black_hole.mass_msun", Usage: "black-hole mass in solar masses (with a distance: axes in µas too)", set: optNum(func(s *Scene) **float64 { return &s.Hole.MassSolar })},
+		{Flag: "distance-kpc", Key: "black_hole.distance_kpc", Usage: "distance in kpc", set: optNum(func(s *Scene) **float64 { return &s.Hole.DistanceKpc })},
+		{Flag: "distance-mpc", Key: "black_hole.distance_mpc", Usage: "distance in Mpc", set: optNum(func(s *Scene) **float64 { return &s.Hole.DistanceMpc })},
+		{Flag: "inclination", Key: "observer.inclination_deg", Usage: "observer inclination from the spin axis, degrees, 0 to 180", set: num(func(s *Scene) *float64 { return &s.Observer.InclinationDeg })},
+		{Flag: "width", Key: "screen.width", Usage: "image width in pixels", set: whole(func(s *Scene) *int { return &s.Screen.Width })},
+		{Flag: "height", Key: "screen.height", Usage: "image height in pixels", set: whole(func(s *Scene) *int { return &s.Screen.Height })},
+		{Flag: "fov", Key: "screen.field_of_view", Usage: "horizontal field of view in M", set: num(func(s *Scene) *float64 { return &s.Screen.FieldOfView })},
+		{Flag: "center-alpha", Key: "screen.center_alpha", Usage: "window centre α in M", set: num(func(s *Scene) *float64 { return &s.Screen.CenterAlpha })},
+		{Flag: "center-beta", Key: "screen.center_beta", Usage: "window centre β in M", set: num(func(s *Scene) *float64 { return &s.Screen.CenterBeta })},
+		{Flag: "inner", Key: "disk.inner_radius", Usage: "disk inner edge in M (default: the ISCO)", set: optNum(func(s *Scene) **float64 { return &s.Disk.InnerRadius })},
+		{Flag: "outer", Key: "disk.outer_radius", Usage: "disk outer edge in M", set: num(func(s *Scene) *float64 { return &s.Disk.OuterRadius })},
+		{Flag: "transparent", Key: "disk.opaque", Usage: "every crossing adds light (default: opaque, the first landing stops the ray)", Bool: true, set: boolean(func(s *Scene) *bool { return &s.Disk.Opaque }, false)},
+		{Flag: "orders", Key: "disk.orders", Usage: "image orders to follow", set: whole(func(s *Scene) *int { return &s.Disk.Orders })},
+		{Flag: "plunging", Key: "disk.plunging", Usage: "gas inside the ISCO shines (plunging geodesics)", Bool: true, set: boolean(func(s *Scene) *bool { return &s.Disk.Plunging }, true)},
+		{Flag: "line", Key: "emission.line_kev", Usage: "line rest energy in keV", set: num(func(s *Scene) *float64 { return &s.Emission.LineKeV })},
+		{Flag: "emissivity", Key: "emission.emissivity", Usage: "emissivity law: powerlaw, broken, novikov-thorne", set: text(func(s *Scene) *string { return &s.Emission.Emissivity })},
+		{Flag: "index", Key: "emission.index", Usage: "power-law emissivity index q (ε ∝ r^-q)", set: num(func(s *Scene) *float64 { return &s.Emission.Index })},
+		{Flag: "index-inner", Key: "emission.index_inner", Usage: "broken power law: index inside the break", set: num(func(s *Scene) *float64 { return &s.Emission.IndexInner })},
+		{Flag: "index-outer", Key: "emission.index_outer", Usage: "broken power law: index outside the break", set: num(func(s *Scene) *float64 { return &s.Emission.IndexOuter })},
+		{Flag: "break-radius", Key: "emission.break_radius", Usage: "broken power law: break radius in M", set: num(func(s *Scene) *float64 { return &s.Emission.BreakRad })},
+		{Flag: "limb", Key: "emission.limb", Usage: "limb law: isotropic, laor", set: text(func(s *Scene) *string { return &s.Emission.Limb })},
+		{Flag: "emin", Key: "spectrum.energy_min_kev", Usage: "spectrum lower energy in keV (default 0.2 × line)", set: optNum(func(s *Scene) **float64 { return &s.Spectrum.MinKeV })},
+		{Flag: "emax", Key: "spectrum.energy_max_kev", Usage: "spectrum upper energy in keV (default 1.8 × line)", set: optNum(func(s *Scene) **float64 { return &s.Spectrum.MaxKeV })},
+		{Flag: "bins", Key: "spectrum.bins", Usage: "number of spectrum bins", set: whole(func(s *Scene) *int { return &s.Spectrum.Bins })},
+		{Flag: "fwhm", Key: "spectrum.instrument_fwhm_ev", Usage: "Gaussian instrument resolution FWHM in eV (0 = none)", set: num(func(s *Scene) *float64 { return &s.Spectrum.FWHMeV })},
+		{Flag: "out", Key: "output.directory", Usage: "output directory", set: text(func(s *Scene) *string { return &s.Output.Directory })},
+		{Flag: "maps", Key: "output.maps", Usage: "comma-separated maps: " + strings.Join(MapNames, ","), set: list(func(s *Scene) *[]string { return &s.Output.Maps })},
+		{Flag: "formats", Key: "output.formats", Usage: "comma-separated outputs: png (figures), bare (pixel-exact PNG), fits, csv (spectrum)", set: list(func(s *Scene) *[]string { return &s.Output.Formats })},
+		{Flag: "intensity-scale", Key: "output.intensity_scale", Usage: "intensity map scale: log or linear", set: text(func(s *Scene) *string { return &s.Output.IntensityScale })},
+	}
+}
