@@ -47,7 +47,7 @@ func (f *Frame) writeAll(out *Outputs, version string) error {
 		}
 	}
 	if o.Has("csv") {
-		if err := out.Write("spectrum.csv", func(w io.Writer) error { return spec.WriteCSV(w, f.Caption()) }); err != nil {
+		if err := out.Write("spectrum.csv", func(w io.Writer) error { return spec.WriteCSV(w, f.Res.Caption()) }); err != nil {
 			return err
 		}
 	}
@@ -55,16 +55,6 @@ func (f *Frame) writeAll(out *Outputs, version string) error {
 		return err
 	}
 	return out.Write("manifest.toml", func(w io.Writer) error { return WriteManifest(w, f.Res.Scene, version) })
-}
-
-// Caption is the one-line description of the scene used in titles.
-func (f *Frame) Caption() string {
-	r := f.Res
-	disk := "opaque"
-	if !r.Disk.Opaque {
-		disk = "transparent"
-	}
-	return fmt.Sprintf("a = %g, i = %g°, %s disk %.4g–%.4g M", r.Hole.Spin, r.Observer.InclinationDeg, disk, r.Inner, r.Disk.OuterRadius)
 }
 
 // WriteManifest writes the effective scene as TOML, headed by the program

@@ -389,3 +389,12 @@ func (s Scene) TOML() ([]byte, error) {
 	}
 	return b.Bytes(), nil
 }
+
+// Caption is the one-line description of the scene used in titles.
+func (r Resolved) Caption() string {
+	disk := "opaque"
+	if !r.Disk.Opaque {
+		disk = "transparent"
+	}
+	return fmt.Sprintf("a = %g, i = %g°, %s disk %.4g–%.4g M", r.Hole.Spin, r.Observer.InclinationDeg, disk, r.Inner, r.Disk.OuterRadius)
+}

@@ -29,6 +29,8 @@ type command struct {
 
 func commands() []command {
 	return []command{
+		{"demo", "render the built-in demo scene into ./kerrscope-demo", runDemo},
+		{"render", "render a scene: maps, shadow, spectrum, FITS (see --help)", runRender},
 		{"probe", "trace the photon of one screen point and list its disk crossings", runProbe},
 		{"version", "print the program version", func([]string, io.Writer, io.Writer) error {
 			fmt.Println("kerrscope", version)

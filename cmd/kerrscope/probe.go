@@ -3,15 +3,14 @@ package main
 import (
 	"io"
 
-	"kerrscope/raytrace"
 	"kerrscope/render"
+	"kerrscope/scene"
 )
 
 func runProbe(args []string, stdout, stderr io.Writer) error {
 	f := newFlags("probe", stdout)
-	var spin, inc, alpha, beta float64
-	f.float(&spin, "spin", 0.9, "black-hole spin a, signed, -1 < a < 1 (a > 0: disk co-rotates)")
-	f.float(&inc, "inclination", 60, "observer inclination from the spin axis, degrees, 0 to 180")
+	path, _, vals := sceneFlags(f, "orders")
+	var alpha, beta float64
 	f.float(&alpha, "alpha", 0, "screen coordinate α (right), in M (required)")
 	f.float(&beta, "beta", 0, "screen coordinate β (up, along the projected spin axis), in M (required)")
 	orders := f.fs.Int("orders", 3, "how many equatorial crossings to list, 1 to 64")
@@ -19,10 +18,22 @@ func runProbe(args []string, stdout, stderr io.Writer) error {
 	if err := f.parse(args); err != nil {
 		return err
 	}
-	if !(spin > -1 && spin < 1) {
-		return usagef("--spin %g is outside the allowed range -1 < spin < 1", spin)
+	s := scene.Default()
+	if *path != "" {
+		var err error
+		if s, err = scene.Load(*path); err != nil {
+			return usagef("%v", err)
+		}
 	}
-	if !(inc >= 0 && inc <= 180) {
+	for _, p := range *vals {
+		if err := p.field.Set(&s, p.value); err != nil {
+			return usagef("--%s: %v", p.field.Flag, err)
+		}
+	}
+	if a := s.Hole.Spin; !(a > -1 && a < 1) {
+		return usagef("--spin %g is outside the allowed range -1 < spin < 1", a)
+	}
+	if inc := s.Observer.InclinationDeg; !(inc >= 0 && inc <= 180) {
 		return usagef("--inclination %g is outside the allowed range 0 to 180 degrees", inc)
 	}
 	for _, name := range []string{"alpha", "beta"} {
@@ -33,11 +44,16 @@ func runProbe(args []string, stdout, stderr io.Writer) error {
 	if *orders < 1 || *orders > 64 {
 		return usagef("--orders %d is outside the allowed range 1 to 64", *orders)
 	}
-	o, err := raytrace.NewObserver(spin, inc)
+	s.Disk.Orders = min(*orders, scene.MaxOrders)
+	r, err := s.Resolve()
 	if err != nil {
 		return usagef("%v", err)
 	}
-	rep := render.Probe(o, alpha, beta, *orders, nil)
+	m, err := render.NewModel(r)
+	if err != nil {
+		return usagef("%v", err)
+	}
+	rep := render.Probe(m.Obs, alpha, beta, *orders, m.RedshiftAt)
 	if *asJSON {
 		return rep.WriteJSON(stdout)
 	}

@@ -1,0 +1,138 @@
+package main
+
+import (
+	"context"
+	"flag"
+	"fmt"
+	"io"
+	"os"
+	"os/signal"
+
+	"golang.org/x/term"
+
+	"kerrscope/render"
+	"kerrscope/scene"
+)
+
+// sceneFlag adapts a scene.Field to the flag package; values are applied
+// after the scene file is loaded.
+type sceneFlag struct {
+	field scene.Field
+	vals  *[]pending
+}
+
+type pending struct {
+	field scene.Field
+	value string
+}
+
+func (s sceneFlag) String() string   { return "" }
+func (s sceneFlag) IsBoolFlag() bool { return s.field.Bool }
+func (s sceneFlag) Set(v string) error {
+	// Check the value now so the error names the flag.
+	probe := scene.Default()
+	if err := s.field.Set(&probe, v); err != nil {
+		return err
+	}
+	*s.vals = append(*s.vals, pending{s.field, v})
+	return nil
+}
+
+// sceneFlags registers --scene, --quiet and one flag per scene value.
+// Flags named in skip are left out (a command may define its own).
+func sceneFlags(f *flags, skip ...string) (path *string, quiet *bool, vals *[]pending) {
+	vals = &[]pending{}
+	path = f.fs.String("scene", "", "TOML scene file (flags below override its values)")
+	quiet = f.fs.Bool("quiet", false, "no progress bar")
+fields:
+	for _, fl := range scene.Fields() {
+		for _, s := range skip {
+			if fl.Flag == s {
+				continue fields
+			}
+		}
+		f.fs.Var(sceneFlag{fl, vals}, fl.Flag, fl.Usage+" ["+fl.Key+"]")
+	}
+	return path, quiet, vals
+}
+
+// buildScene loads the file (or base) and applies the flags.
+func buildScene(path string, base scene.Scene, vals []pending) (scene.Resolved, error) {
+	s := base
+	if path != "" {
+		var err error
+		if s, err = scene.Load(path); err != nil {
+			return scene.Resolved{}, usagef("%v", err)
+		}
+	}
+	for _, p := range vals {
+		if err := p.field.Set(&s, p.value); err != nil {
+			return scene.Resolved{}, usagef("--%s: %v", p.field.Flag, err)
+		}
+	}
+	r, err := s.Resolve()
+	if err != nil {
+		return r, usagef("%v", err)
+	}
+	return r, nil
+}
+
+func progressWriter(quiet bool, stderr io.Writer) io.Writer {
+	if quiet {
+		return nil
+	}
+	if f, ok := stderr.(*os.File); ok && term.IsTerminal(int(f.Fd())) {
+		return stderr
+	}
+	return nil
+}
+
+func runRender(args []string, stdout, stderr io.Writer) error {
+	f := newFlags("render", stdout)
+	path, quiet, vals := sceneFlags(f)
+	if err := f.parse(args); err != nil {
+		return err
+	}
+	r, err := buildScene(*path, scene.Default(), *vals)
+	if err != nil {
+		return err
+	}
+	return renderAndReport(r, *quiet, stdout, stderr)
+}
+
+func runDemo(args []string, stdout, stderr io.Writer) error {
+	f := newFlags("demo", stdout)
+	path, quiet, vals := sceneFlags(f)
+	if err := f.parse(args); err != nil {
+		return err
+	}
+	if *path != "" {
+		return usagef("--scene: the demo uses its built-in scene (use kerrscope render --scene)")
+	}
+	demo, err := scene.Demo()
+	if err != nil {
+		return err
+	}
+	r, err := buildScene("", demo, *vals)
+	if err != nil {
+		return err
+	}
+	fmt.Fprintf(stdout, "demo: an invented black hole, %s\n", r.Caption())
+	return renderAndReport(r, *quiet, stdout, stderr)
+}
+
+func renderAndReport(r scene.Resolved, quiet bool, stdout, stderr io.Writer) error {
+	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
+	defer stop()
+	files, err := render.Run(ctx, r, render.Options{Version: version, Progress: progressWriter(quiet, stderr)})
+	if err != nil {
+		return err
+	}
+	fmt.Fprintf(stdout, "wrote %d files:\n", len(files))
+	for _, p := range files {
+		fmt.Fprintf(stdout, "  %s\n", p)
+	}
+	return nil
+}
+
+var _ flag.Value = sceneFlag{}

@@ -1,0 +1,160 @@
+package scene
+
+import (
+	"strings"
+	"testing"
+)
+
+func TestDefaultAndDemoResolve(t *testing.T) {
+	for name, s := range map[string]func() (Scene, error){
+		"default": func() (Scene, error) { return Default(), nil },
+		"demo":    Demo,
+	} {
+		sc, err := s()
+		if err != nil {
+			t.Fatalf("%s: %v", name, err)
+		}
+		if _, err := sc.Resolve(); err != nil {
+			t.Fatalf("%s: %v", name, err)
+		}
+	}
+	d, _ := Demo()
+	if !(d.Hole.Spin > 0.9) || !(d.Observer.InclinationDeg > 50) {
+		t.Errorf("demo should be a high-spin hole seen above 50°: %+v %+v", d.Hole, d.Observer)
+	}
+}
+
+func TestParseErrorsNameKeyAndLine(t *testing.T) {
+	cases := []struct{ src, want string }{
+		{"[black_hole]\nspin = \"fast\"\n", `scene.toml:2: key "black_hole.spin": wrong type: TOML string where a number is expected`},
+		{"[disk]\norbits = 3\n", `scene.toml:2: unknown key "disk.orbits"`},
+		{"[screen]\nwidth = 2.5\n", `scene.toml:2: key "screen.width": wrong type`},
+		{"[disk]\nopaque = 1\n", `scene.toml:2: key "disk.opaque": wrong type`},
+		{"[output]\nmaps = \"redshift\"\n", `scene.toml:2: key "output.maps": wrong type`},
+		{"\n\n[observer]\ninclination_deg = \n", `scene.toml:4:`},
+		{"[nowhere]\nx = 1\n", `unknown key "nowhere`},
+	}
+	for _, c := range cases {
+		_, err := Parse("scene.toml", []byte(c.src))
+		if err == nil || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("%q: error %v, want it to contain %q", c.src, err, c.want)
+		}
+	}
+}
+
+func TestResolveRejects(t *testing.T) {
+	f := func(v float64) *float64 { return &v }
+	cases := []struct {
+		name string
+		edit func(s *Scene)
+		want string
+	}{
+		{"spin 1", func(s *Scene) { s.Hole.Spin = 1 }, "black_hole.spin"},
+		{"spin -1.2", func(s *Scene) { s.Hole.Spin = -1.2 }, "black_hole.spin"},
+		{"mass without distance", func(s *Scene) { s.Hole.MassSolar = f(4e6) }, "distance"},
+		{"two distances", func(s *Scene) { s.Hole.MassSolar, s.Hole.DistanceKpc, s.Hole.DistanceMpc = f(1), f(1), f(1) }, "not both"},
+		{"negative mass", func(s *Scene) { s.Hole.MassSolar, s.Hole.DistanceKpc = f(-1), f(8) }, "mass_msun"},
+		{"zero distance", func(s *Scene) { s.Hole.MassSolar, s.Hole.DistanceKpc = f(1e6), f(0) }, "distance"},
+		{"inclination 200", func(s *Scene) { s.Observer.InclinationDeg = 200 }, "inclination_deg"},
+		{"inclination -1", func(s *Scene) { s.Observer.InclinationDeg = -1 }, "inclination_deg"},
+		{"zero width", func(s *Scene) { s.Screen.Width = 0 }, "screen.width"},
+		{"absurd height", func(s *Scene) { s.Screen.Height = 1 << 20 }, "screen.width × screen.height"},
+		{"too much memory", func(s *Scene) { s.Screen.Width, s.Screen.Height, s.Disk.Orders = 16384, 16384, 16 }, "GiB"},
+		{"zero fov", func(s *Scene) { s.Screen.FieldOfView = 0 }, "field_of_view"},
+		{"fov finer than float", func(s *Scene) { s.Screen.FieldOfView, s.Screen.CenterAlpha = 1e-12, 5 }, "floating point"},
+		{"orders 0", func(s *Scene) { s.Disk.Orders = 0 }, "disk.orders"},
+		{"orders 99", func(s *Scene) { s.Disk.Orders = 99 }, "disk.orders"},
+		{"inner inside horizon", func(s *Scene) { s.Disk.InnerRadius = f(1.2) }, "horizon"},
+		{"outer below inner", func(s *Scene) { s.Disk.OuterRadius = 2 }, "outer_radius"},
+		{"line 0 keV", func(s *Scene) { s.Emission.LineKeV = 0 }, "line_kev"},
+		{"unknown emissivity", func(s *Scene) { s.Emission.Emissivity = "gaussian" }, "emission.emissivity"},
+		{"broken without break", func(s *Scene) { s.Emission.Emissivity, s.Emission.BreakRad = "broken", 0 }, "emission"},
+		{"unknown limb", func(s *Scene) { s.Emission.Limb = "dark" }, "emission.limb"},
+		{"energy range reversed", func(s *Scene) { s.Spectrum.MinKeV, s.Spectrum.MaxKeV = f(7), f(2) }, "energy_min_kev"},
+		{"negative energy", func(s *Scene) { s.Spectrum.MinKeV = f(-1) }, "energy_min_kev"},
+		{"zero bins", func(s *Scene) { s.Spectrum.Bins = 0 }, "spectrum.bins"},
+		{"negative FWHM", func(s *Scene) { s.Spectrum.FWHMeV = -5 }, "instrument_fwhm_ev"},
+		{"no directory", func(s *Scene) { s.Output.Directory = " " }, "output.directory"},
+		{"unknown map", func(s *Scene) { s.Output.Maps = []string{"redshift", "temperature"} }, "output.maps"},
+		{"map twice", func(s *Scene) { s.Output.Maps = []string{"order", "order"} }, "twice"},
+		{"no formats", func(s *Scene) { s.Output.Formats = nil }, "output.formats"},
+		{"bad scale", func(s *Scene) { s.Output.IntensityScale = "sqrt" }, "intensity_scale"},
+	}
+	for _, c := range cases {
+		s := Default()
+		c.edit(&s)
+		_, err := s.Resolve()
+		if err == nil || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("%s: error %v, want it to mention %q", c.name, err, c.want)
+		}
+	}
+}
+
+func TestInnerEdgeInsideISCO(t *testing.T) {
+	s := Default()
+	in := 1.6
+	s.Disk.InnerRadius = &in
+	r, err := s.Resolve()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if r.Inner != r.ISCO {
+		t.Errorf("without plunging gas the edge should rise to the ISCO, got %v", r.Inner)
+	}
+	s.Disk.Plunging = true
+	if r, _ = s.Resolve(); r.Inner != in {
+		t.Errorf("with plunging gas the edge should stay at %v, got %v", in, r.Inner)
+	}
+}
+
+func TestManifestRoundTrip(t *testing.T) {
+	s, _ := Demo()
+	in := 3.5
+	s.Disk.InnerRadius = &in
+	s.Output.Maps = []string{"redshift"}
+	text, err := s.TOML()
+	if err != nil {
+		t.Fatal(err)
+	}
+	back, err := Parse("manifest.toml", text)
+	if err != nil {
+		t.Fatal(err)
+	}
+	again, _ := back.TOML()
+	if string(again) != string(text) {
+		t.Errorf("manifest does not round-trip:\n%s\n---\n%s", text, again)
+	}
+}
+
+func TestFieldsSet(t *testing.T) {
+	s := Default()
+	set := func(flag, v string) error {
+		for _, f := range Fields() {
+			if f.Flag == flag {
+				return f.Set(&s, v)
+			}
+		}
+		t.Fatalf("no flag %s", flag)
+		return nil
+	}
+	for _, c := range [][2]string{{"spin", "0.95"}, {"inclination", "75"}, {"transparent", "true"}, {"maps", "redshift, order"}, {"inner", "4"}, {"width", "100"}} {
+		if err := set(c[0], c[1]); err != nil {
+			t.Fatalf("%v: %v", c, err)
+		}
+	}
+	if s.Hole.Spin != 0.95 || s.Observer.InclinationDeg != 75 || s.Disk.Opaque || len(s.Output.Maps) != 2 || *s.Disk.InnerRadius != 4 || s.Screen.Width != 100 {
+		t.Errorf("flags not applied: %+v", s)
+	}
+	for _, c := range [][2]string{{"spin", "fast"}, {"spin", "NaN"}, {"width", "1.5"}, {"transparent", "maybe"}} {
+		if err := set(c[0], c[1]); err == nil {
+			t.Errorf("%v accepted", c)
+		}
+	}
+	seen := map[string]bool{}
+	for _, f := range Fields() {
+		if seen[f.Flag] || seen[f.Key] {
+			t.Errorf("duplicate field %s / %s", f.Flag, f.Key)
+		}
+		seen[f.Flag], seen[f.Key] = true, true
+	}
+}
