@@ -1,0 +1,205 @@
+package render
+
+import (
+	"bytes"
+	"context"
+	"encoding/json"
+	"io"
+	"math"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"testing"
+
+	"kerrscope/scene"
+)
+
+func runScene(t *testing.T, dir string, edit func(s *scene.Scene)) []string {
+	t.Helper()
+	r := resolve(t, func(s *scene.Scene) {
+		s.Output.Directory = dir
+		edit(s)
+	})
+	files, err := Run(context.Background(), r, Options{Version: "test"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	return files
+}
+
+func TestRunIsReproducible(t *testing.T) {
+	// Same scene twice → byte-identical files (common practice for
+	// reproducible figures).
+	a, b := t.TempDir(), t.TempDir()
+	edit := func(s *scene.Scene) { s.Screen.Width, s.Screen.Height = 48, 40; s.Spectrum.FWHMeV = 100 }
+	fa := runScene(t, a, edit)
+	fb := runScene(t, b, edit)
+	if len(fa) != len(fb) || len(fa) < 3 {
+		t.Fatalf("files %v vs %v", fa, fb)
+	}
+	for i := range fa {
+		x, _ := os.ReadFile(fa[i])
+		y, _ := os.ReadFile(fb[i])
+		// Only the output directory may differ (it is recorded in the manifest).
+		y = bytes.ReplaceAll(y, []byte(b), []byte(a))
+		if filepath.Base(fa[i]) != filepath.Base(fb[i]) || !bytes.Equal(x, y) {
+			t.Errorf("%s differs between runs", filepath.Base(fa[i]))
+		}
+	}
+	// The manifest reproduces the run.
+	m, err := scene.Load(filepath.Join(a, "manifest.toml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if m.Screen.Width != 48 || m.Spectrum.FWHMeV != 100 {
+		t.Errorf("manifest lost values: %+v", m)
+	}
+}
+
+func TestFailedRunLeavesNothing(t *testing.T) {
+	dir := t.TempDir()
+	r := resolve(t, func(s *scene.Scene) { s.Output.Directory = dir; s.Screen.Height = 200 })
+	ctx, cancel := context.WithCancel(context.Background())
+	// Cancel midway through the rows, as an interrupt would.
+	_, err := Run(ctx, r, Options{Version: "test"})
+	_ = err
+	cancel()
+	ctx2, cancel2 := context.WithCancel(context.Background())
+	rows := 0
+	f, err := Render(ctx2, r, func(n int) {
+		rows = n
+		if n == 50 {
+			cancel2()
+		}
+	})
+	if err == nil || f != nil {
+		t.Fatalf("cancelled render returned %v, %v after %d rows", f, err, rows)
+	}
+	// A write that fails midway: an output directory that is a file.
+	bad := filepath.Join(dir, "not-a-dir")
+	os.WriteFile(bad, []byte("x"), 0o644)
+	r2 := resolve(t, func(s *scene.Scene) { s.Output.Directory = bad })
+	if _, err := Run(context.Background(), r2, Options{}); err == nil {
+		t.Fatal("writing into a file succeeded")
+	}
+	// A staged run that fails before committing leaves only what was there.
+	out, err := NewOutputs(filepath.Join(dir, "staged"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	out.Write("a.txt", func(w io.Writer) error { _, err := w.Write([]byte("half")); return err })
+	out.Write("b.txt", func(w io.Writer) error { return os.ErrInvalid })
+	out.Abort()
+	left, _ := os.ReadDir(filepath.Join(dir, "staged"))
+	if len(left) != 0 {
+		t.Errorf("aborted outputs left %v", left)
+	}
+}
+
+// findAstropy returns a Python that imports astropy, or "".
+func findAstropy(t *testing.T) string {
+	for _, py := range []string{"/usr/bin/python3", "python3"} {
+		if exec.Command(py, "-c", "import astropy.io.fits, astropy.wcs").Run() == nil {
+			return py
+		}
+	}
+	if os.Getenv("CI") != "" {
+		t.Fatal("CI needs python3-astropy (see .ci/run)")
+	}
+	t.Skip("no python3 with astropy")
+	return ""
+}
+
+const readMaps = `
+import json, sys, numpy as np
+from astropy.io import fits
+from astropy.wcs import WCS
+out = {}
+with fits.open(sys.argv[1]) as h:
+    h.verify('exception')
+    out['primary'] = {k: h[0].header[k] for k in ('SPIN', 'INCLIN', 'RISCO', 'ORIGIN')}
+    for e in h[1:]:
+        d = e.data
+        w = WCS(e.header)
+        ny, nx = d.shape
+        corners = w.wcs_pix2world([[1, 1], [nx, ny], [3, 2]], 1).tolist()
+        out[e.header['EXTNAME']] = {'shape': [nx, ny], 'corners': corners,
+            'p32': None if np.isnan(d[1, 2]) else float(d[1, 2]),
+            'nan': int(np.isnan(d).sum()), 'sum': float(np.nansum(d.astype(np.float64)))}
+print(json.dumps(out))
+`
+
+func TestFITSReadByAstropy(t *testing.T) {
+	// Independent reader: astropy.io.fits and astropy.wcs (IAU FITS Standard 4.0).
+	py := findAstropy(t)
+	dir := t.TempDir()
+	r := resolve(t, func(s *scene.Scene) {
+		s.Output.Directory = dir
+		s.Output.Formats = []string{"fits"}
+		s.Screen.Width, s.Screen.Height = 37, 29
+		s.Screen.CenterAlpha, s.Screen.CenterBeta = -1.5, 2.25
+	})
+	f := render(t, r)
+	if _, err := Run(context.Background(), r, Options{Version: "test"}); err != nil {
+		t.Fatal(err)
+	}
+	outb, err := exec.Command(py, "-c", readMaps, filepath.Join(dir, "maps.fits")).CombinedOutput()
+	if err != nil {
+		t.Fatalf("astropy: %v\n%s", err, outb)
+	}
+	var got map[string]struct {
+		Shape   []int
+		Corners [][]float64
+		P32     *float64
+		NaN     int
+		Sum     float64
+	}
+	if err := json.Unmarshal(outb, &got); err != nil {
+		// The primary entry has another shape; decode it apart.
+		t.Logf("%s", outb)
+	}
+	var prim struct {
+		Primary map[string]any `json:"primary"`
+	}
+	json.Unmarshal(outb, &prim)
+	if prim.Primary["SPIN"].(float64) != r.Hole.Spin || prim.Primary["RISCO"].(float64) != r.ISCO {
+		t.Errorf("primary header %v", prim.Primary)
+	}
+	want := map[string][]float32{"REDSHIFT": f.FirstSeen(f.G), "RADIUS": f.FirstSeen(f.R), "INTENSITY": f.Total(f.Line)}
+	for name, vals := range want {
+		e, ok := got[name]
+		if !ok {
+			t.Fatalf("no extension %s in %v", name, outb)
+		}
+		if e.Shape[0] != f.W || e.Shape[1] != f.H {
+			t.Errorf("%s shape %v", name, e.Shape)
+		}
+		// FITS pixel (1,1) is our bottom-left pixel centre; (W,H) the top-right.
+		checks := [][3]float64{
+			{PixelAlpha(r, 0), PixelBeta(r, f.H-1)},
+			{PixelAlpha(r, f.W-1), PixelBeta(r, 0)},
+			{PixelAlpha(r, 2), PixelBeta(r, f.H-2)},
+		}
+		for i, c := range checks {
+			if math.Abs(e.Corners[i][0]-c[0]) > 1e-12 || math.Abs(e.Corners[i][1]-c[1]) > 1e-12 {
+				t.Errorf("%s: WCS of corner %d = %v, renderer used (%v, %v)", name, i, e.Corners[i], c[0], c[1])
+			}
+		}
+		// numpy d[1, 2] is FITS pixel (3, 2): our column 2, row H-2.
+		v := vals[(f.H-2)*f.W+2]
+		if (e.P32 == nil) != math.IsNaN(float64(v)) || (e.P32 != nil && float32(*e.P32) != v) {
+			t.Errorf("%s pixel (3,2): astropy %v, renderer %v", name, e.P32, v)
+		}
+		nan, sum := 0, 0.0
+		for _, x := range vals {
+			if math.IsNaN(float64(x)) {
+				nan++
+			} else {
+				sum += float64(x)
+			}
+		}
+		if e.NaN != nan || math.Abs(e.Sum-sum) > 1e-9*math.Abs(sum) {
+			t.Errorf("%s: astropy %d NaN, sum %v; renderer %d, %v", name, e.NaN, e.Sum, nan, sum)
+		}
+	}
+}
