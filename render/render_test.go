@@ -137,8 +137,10 @@ func TestSpectrumFluxBookkeeping(t *testing.T) {
 	if math.Abs(got-sum) > 1e-6*sum {
 		t.Errorf("spectrum holds %v, image %v", got, sum)
 	}
-	if spec.Below+spec.Above > 1e-9*sum {
-		t.Errorf("flux outside 0.5–12 keV: %v", spec.Below+spec.Above)
+	// The sub-pixel spread (a linear model of g across each pixel) may carry
+	// a trace past the physical g range at this coarse resolution, no more.
+	if spec.Below+spec.Above > 1e-4*sum {
+		t.Errorf("flux outside 0.5–12 keV: %v of %v", spec.Below+spec.Above, sum)
 	}
 	// Gaussian broadening keeps the flux that stays in range.
 	b := spec.Broaden(150)
