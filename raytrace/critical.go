@@ -86,6 +86,26 @@ func (o Observer) CriticalCurve(n int) []ScreenPoint {
 		}
 		return pts
 	}
+	ts := o.criticalParams(n)
+	if ts == nil {
+		return nil
+	}
+	pts := make([]ScreenPoint, 0, 2*len(ts))
+	for _, t := range ts {
+		al, b2 := o.criticalBeta2(t)
+		pts = append(pts, ScreenPoint{al, math.Sqrt(math.Max(0, b2))})
+	}
+	for i := len(ts) - 1; i >= 0; i-- {
+		al, b2 := o.criticalBeta2(ts[i])
+		pts = append(pts, ScreenPoint{al, -math.Sqrt(math.Max(0, b2))})
+	}
+	return pts
+}
+
+// criticalParams returns sorted curve parameters t covering the part of
+// the critical curve seen at this inclination (β² ≥ 0), clustered at both
+// ends and, geometrically, toward the prograde end; nil if none is seen.
+func (o Observer) criticalParams(n int) []float64 {
 	// Find the t-interval where β² ≥ 0 by scanning, then bisecting its ends.
 	const scan = 4096
 	first, last := -1, -1
@@ -130,14 +150,88 @@ func (o Observer) CriticalCurve(n int) []ScreenPoint {
 		ts = append(ts, tlo+span*math.Pow(10, -12+float64(j)/4))
 	}
 	sort.Float64s(ts)
-	pts := make([]ScreenPoint, 0, 2*len(ts))
-	for _, t := range ts {
+	return ts
+}
+
+// CriticalDistance returns the distance on the screen (in M) from (α, β)
+// to the critical curve, and the point of the curve nearest to it. It
+// brackets the nearest point on a dense sampling of the curve and refines
+// the curve parameter by golden-section search, so it stays accurate far
+// below the sampling step (down to ~1e-12 M near the near-extremal
+// vertical piece). On the spin axis (θo = 0°, 180°) the curve is a circle.
+func (o Observer) CriticalDistance(alpha, beta float64) (float64, ScreenPoint) {
+	return o.NewCriticalLocator().Distance(alpha, beta)
+}
+
+// CriticalLocator answers many CriticalDistance queries for one observer,
+// sampling the curve once. Safe for concurrent use.
+type CriticalLocator struct {
+	o  Observer
+	ts []float64
+}
+
+// NewCriticalLocator samples the observer's critical curve for Distance.
+func (o Observer) NewCriticalLocator() CriticalLocator {
+	c := CriticalLocator{o: o}
+	if o.sin != 0 {
+		c.ts = o.criticalParams(400)
+	}
+	return c
+}
+
+// Distance is CriticalDistance with the sampling done once.
+func (c CriticalLocator) Distance(alpha, beta float64) (float64, ScreenPoint) {
+	o := c.o
+	if o.sin == 0 {
+		pts := o.CriticalCurve(8)
+		rad := math.Hypot(pts[0].Alpha, pts[0].Beta)
+		rho := math.Hypot(alpha, beta)
+		if rho == 0 {
+			return rad, pts[0]
+		}
+		return math.Abs(rho - rad), ScreenPoint{alpha * rad / rho, beta * rad / rho}
+	}
+	ts := c.ts
+	if len(ts) == 0 {
+		return math.Inf(1), ScreenPoint{math.NaN(), math.NaN()}
+	}
+	sign := 1.0
+	if beta < 0 {
+		sign = -1
+	}
+	pt := func(t float64) ScreenPoint {
 		al, b2 := o.criticalBeta2(t)
-		pts = append(pts, ScreenPoint{al, math.Sqrt(math.Max(0, b2))})
+		return ScreenPoint{al, sign * math.Sqrt(math.Max(0, b2))}
 	}
-	for i := len(ts) - 1; i >= 0; i-- {
-		al, b2 := o.criticalBeta2(ts[i])
-		pts = append(pts, ScreenPoint{al, -math.Sqrt(math.Max(0, b2))})
+	dist := func(t float64) float64 {
+		p := pt(t)
+		return math.Hypot(p.Alpha-alpha, p.Beta-beta)
 	}
-	return pts
+	best := 0
+	bd := math.Inf(1)
+	for i, t := range ts {
+		if d := dist(t); d < bd {
+			best, bd = i, d
+		}
+	}
+	lo, hi := ts[max(0, best-1)], ts[min(len(ts)-1, best+1)]
+	const gr = 0.6180339887498949
+	x1, x2 := hi-gr*(hi-lo), lo+gr*(hi-lo)
+	f1, f2 := dist(x1), dist(x2)
+	for i := 0; i < 200 && hi-lo > 1e-17*math.Max(1, math.Abs(hi)); i++ {
+		if f1 < f2 {
+			hi, x2, f2 = x2, x1, f1
+			x1 = hi - gr*(hi-lo)
+			f1 = dist(x1)
+		} else {
+			lo, x1, f1 = x1, x2, f2
+			x2 = lo + gr*(hi-lo)
+			f2 = dist(x2)
+		}
+	}
+	t := (lo + hi) / 2
+	if d := dist(t); d < bd {
+		return d, pt(t)
+	}
+	return bd, pt(ts[best])
 }

@@ -86,3 +86,27 @@ func TestShadowEdgeSeparatesFates(t *testing.T) {
 		}
 	}
 }
+
+func TestCriticalDistance(t *testing.T) {
+	// Points pushed off the analytic curve (Bardeen 1973) along its normal
+	// by a known distance must measure back that distance.
+	for _, c := range []struct{ a, inc float64 }{{0, 30}, {0.7, 60}, {1 - 1e-10, 75}} {
+		o, _ := NewObserver(c.a, c.inc)
+		pts := o.CriticalCurve(300)
+		for i := 5; i < len(pts)-5; i += 37 {
+			p, q := pts[i-1], pts[i+1]
+			dx, dy := q.Alpha-p.Alpha, q.Beta-p.Beta
+			n := math.Hypot(dx, dy)
+			if n == 0 || math.Abs(pts[i].Beta) < 1e-3 {
+				continue
+			}
+			for _, d := range []float64{1e-9, 1e-5, 0.01} {
+				x, y := pts[i].Alpha-d*dy/n, pts[i].Beta+d*dx/n
+				got, _ := o.CriticalDistance(x, y)
+				if math.Abs(got-d) > 1e-3*d+1e-12 {
+					t.Errorf("a=%v i=%v point %d: distance %.6g, want %.6g", c.a, c.inc, i, got, d)
+				}
+			}
+		}
+	}
+}
