@@ -13,6 +13,7 @@ import (
 type Options struct {
 	Version  string    // program version recorded in the outputs
 	Progress io.Writer // progress bar destination; nil = none
+	Scales   Scales    // fixed colour scales; zero = chosen per frame
 }
 
 // Run renders the scene and writes every requested output into its
@@ -30,7 +31,7 @@ func Run(ctx context.Context, r scene.Resolved, opt Options) ([]string, error) {
 	if err != nil {
 		return nil, err
 	}
-	if err := f.writeAll(out, opt.Version); err != nil {
+	if err := f.writeAll(out, opt); err != nil {
 		out.Abort()
 		return nil, err
 	}
@@ -38,7 +39,8 @@ func Run(ctx context.Context, r scene.Resolved, opt Options) ([]string, error) {
 }
 
 // writeAll stages every output of the frame.
-func (f *Frame) writeAll(out *Outputs, version string) error {
+func (f *Frame) writeAll(out *Outputs, opt Options) error {
+	version := opt.Version
 	o := f.Res.Output
 	spec := f.Spectrum()
 	if o.Has("fits") {
@@ -51,7 +53,7 @@ func (f *Frame) writeAll(out *Outputs, version string) error {
 			return err
 		}
 	}
-	if err := f.writeFigures(out, &spec); err != nil {
+	if err := f.writeFigures(out, &spec, opt.Scales); err != nil {
 		return err
 	}
 	return out.Write("manifest.toml", func(w io.Writer) error { return WriteManifest(w, f.Res.Scene, version) })
