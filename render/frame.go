@@ -23,6 +23,10 @@ type Frame struct {
 	R, G   [][]float32 // [order][pixel]; NaN where that order is not seen
 	Line   [][]float32 // g³ ε L per order
 	Bol    [][]float32 // g⁴ ε L per order
+	// Photons is the number of photons traced to make the frame.
+	Photons int64
+	// refined is the spectrum collapsed from the refined samples, if any.
+	refined *Spectrum
 }
 
 // PixelAlpha returns α of the centre of column i.
@@ -89,6 +93,7 @@ func Render(ctx context.Context, r scene.Resolved, progress func(rows int)) (*Fr
 	if err := ctx.Err(); err != nil {
 		return nil, err
 	}
+	f.Photons = int64(w) * int64(h)
 	return f, nil
 }
 

@@ -148,8 +148,18 @@ func trapezoidCDF(x, a, b float64) float64 {
 // energy g E0 (physics notes §8), spread over the g range the pixel
 // covers (AddSpread) using the differences of g to the neighbouring
 // pixels of the same image order.
+//
+// For a frame made by RenderRefined it is the spectrum of the refined
+// samples, weighted by their areas.
 func (f *Frame) Spectrum() Spectrum {
 	r := f.Res
+	if f.refined != nil {
+		s := *f.refined
+		if r.Spectrum.FWHMeV > 0 {
+			s = s.Broaden(r.Spectrum.FWHMeV)
+		}
+		return s
+	}
 	s := NewSpectrum(r.MinKeV, r.MaxKeV, r.Emission.LineKeV, r.Spectrum.Bins, f.Orders)
 	dOmega := r.PixelSize * r.PixelSize
 	for o := 0; o < f.Orders; o++ {

@@ -1,0 +1,289 @@
+package render
+
+import (
+	"context"
+	"math"
+	"runtime"
+	"sync"
+	"sync/atomic"
+
+	"kerrscope/raytrace"
+	"kerrscope/scene"
+)
+
+// Refinement controls adaptive sampling. Every pixel is first sampled at
+// its four corners; a cell whose corner samples differ in fate or image
+// order, or whose source radius or redshift differ by more than the
+// tolerances, is split into four, recursively, down to Depth levels.
+type Refinement struct {
+	Depth int     // subdivision levels below the pixel (0: corners only)
+	TolR  float64 // relative spread of r that splits a cell
+	TolG  float64 // absolute spread of g that splits a cell
+}
+
+// point is one photon's record in compact form.
+type point struct {
+	fate  raytrace.Fate
+	first int8
+	hits  [scene.MaxOrders]hit32
+}
+
+type hit32 struct {
+	r, g, line, bol float32
+	seen            bool
+}
+
+// pixelAcc gathers the area-weighted samples of one pixel.
+type pixelAcc struct {
+	area, captured float64
+	firstArea      [scene.MaxOrders + 1]float64 // index first+1
+	w, r, g        [scene.MaxOrders]float64
+	line, bol      [scene.MaxOrders]float64
+}
+
+type refiner struct {
+	m       *Model
+	res     scene.Resolved
+	ref     Refinement
+	a0, b0  float64 // α of the left edge, β of the top edge
+	h       float64 // pixel size
+	photons atomic.Int64
+}
+
+func (rf *refiner) sample(x, y float64, p *raytrace.Path, s *Sample) point {
+	rf.m.Shade(rf.a0+x*rf.h, rf.b0-y*rf.h, p, s)
+	pt := point{fate: s.Fate, first: int8(s.First)}
+	for o := 0; o < rf.m.Orders; o++ {
+		hh := s.Hits[o]
+		pt.hits[o] = hit32{float32(hh.R), float32(hh.G), float32(hh.Line), float32(hh.Bol), hh.Seen}
+	}
+	rf.photons.Add(1)
+	return pt
+}
+
+// agree reports whether four corner samples describe a smooth cell.
+func (rf *refiner) agree(c *[4]point) bool {
+	for k := 1; k < 4; k++ {
+		if c[k].fate != c[0].fate || c[k].first != c[0].first {
+			return false
+		}
+	}
+	for o := 0; o < rf.m.Orders; o++ {
+		s := c[0].hits[o].seen
+		rmin, rmax := math.Inf(1), math.Inf(-1)
+		gmin, gmax := math.Inf(1), math.Inf(-1)
+		for k := 0; k < 4; k++ {
+			hh := c[k].hits[o]
+			if hh.seen != s {
+				return false
+			}
+			if s {
+				rmin, rmax = math.Min(rmin, float64(hh.r)), math.Max(rmax, float64(hh.r))
+				gmin, gmax = math.Min(gmin, float64(hh.g)), math.Max(gmax, float64(hh.g))
+			}
+		}
+		if s && (rmax > rmin*(1+rf.ref.TolR) || gmax-gmin > rf.ref.TolG) {
+			return false
+		}
+	}
+	return true
+}
+
+// cell refines the square of side size (in pixels) with top-left corner
+// (x, y) and corners c = top-left, top-right, bottom-left, bottom-right.
+func (rf *refiner) cell(x, y, size float64, c [4]point, depth int, p *raytrace.Path, s *Sample, acc *pixelAcc, spec *Spectrum) {
+	if depth >= rf.ref.Depth || rf.agree(&c) {
+		rf.leaf(size*size, &c, acc, spec)
+		return
+	}
+	hs := size / 2
+	top := rf.sample(x+hs, y, p, s)
+	left := rf.sample(x, y+hs, p, s)
+	mid := rf.sample(x+hs, y+hs, p, s)
+	right := rf.sample(x+size, y+hs, p, s)
+	bottom := rf.sample(x+hs, y+size, p, s)
+	rf.cell(x, y, hs, [4]point{c[0], top, left, mid}, depth+1, p, s, acc, spec)
+	rf.cell(x+hs, y, hs, [4]point{top, c[1], mid, right}, depth+1, p, s, acc, spec)
+	rf.cell(x, y+hs, hs, [4]point{left, mid, c[2], bottom}, depth+1, p, s, acc, spec)
+	rf.cell(x+hs, y+hs, hs, [4]point{mid, right, bottom, c[3]}, depth+1, p, s, acc, spec)
+}
+
+// leaf adds a final cell of the given area (in pixel units): each corner
+// stands for a quarter of it. Where all four corners see an order, its
+// flux goes into the spectrum spread over the cell's bilinear g range;
+// otherwise each corner's quarter goes in at its own g.
+func (rf *refiner) leaf(area float64, c *[4]point, acc *pixelAcc, spec *Spectrum) {
+	w := area / 4
+	acc.area += area
+	dOmega := area * rf.h * rf.h
+	for k := 0; k < 4; k++ {
+		if c[k].fate == raytrace.Captured {
+			acc.captured += w
+		}
+		acc.firstArea[int(c[k].first)+1] += w
+	}
+	for o := 0; o < rf.m.Orders; o++ {
+		n := 0
+		line, g := 0.0, 0.0
+		for k := 0; k < 4; k++ {
+			hh := c[k].hits[o]
+			if !hh.seen {
+				continue
+			}
+			n++
+			acc.w[o] += w
+			acc.r[o] += w * float64(hh.r)
+			acc.g[o] += w * float64(hh.g)
+			acc.line[o] += w * float64(hh.line)
+			acc.bol[o] += w * float64(hh.bol)
+			line += float64(hh.line)
+			g += float64(hh.g)
+		}
+		if spec == nil || n == 0 {
+			continue
+		}
+		if n == 4 {
+			h := c[0].hits[o].g
+			gx := (float64(c[1].hits[o].g-h) + float64(c[3].hits[o].g-c[2].hits[o].g)) / 2
+			gy := (float64(c[2].hits[o].g-h) + float64(c[3].hits[o].g-c[1].hits[o].g)) / 2
+			spec.AddSpread(o, g/4, gx, gy, line/4*dOmega)
+			continue
+		}
+		for k := 0; k < 4; k++ {
+			if hh := c[k].hits[o]; hh.seen {
+				spec.Add(o, float64(hh.g), float64(hh.line)*dOmega/4)
+			}
+		}
+	}
+}
+
+// RenderRefined renders the scene with adaptive refinement. It returns the
+// frame of area-weighted pixel means (nil unless keepMaps) and the spectrum
+// collapsed from the samples with their areas (before any instrument
+// broadening), and counts the photons in Frame.Photons / the returned
+// count. Deterministic: rows are summed in order.
+func RenderRefined(ctx context.Context, r scene.Resolved, ref Refinement, keepMaps bool, progress func(rows int)) (*Frame, Spectrum, int64, error) {
+	m, err := NewModel(r)
+	if err != nil {
+		return nil, Spectrum{}, 0, err
+	}
+	w, h, n := r.Screen.Width, r.Screen.Height, r.Disk.Orders
+	a0, _, _, b1 := (&Frame{Res: r, W: w, H: h}).Window()
+	rf := &refiner{m: &m, res: r, ref: ref, a0: a0, b0: b1, h: r.PixelSize}
+	total := NewSpectrum(r.MinKeV, r.MaxKeV, r.Emission.LineKeV, r.Spectrum.Bins, n)
+	var f *Frame
+	if keepMaps {
+		f = &Frame{Res: r, Model: m, W: w, H: h, Orders: n, Fate: make([]raytrace.Fate, w*h), First: make([]int8, w*h)}
+		alloc := func() [][]float32 {
+			out := make([][]float32, n)
+			for k := range out {
+				out[k] = make([]float32, w*h)
+			}
+			return out
+		}
+		f.R, f.G, f.Line, f.Bol = alloc(), alloc(), alloc(), alloc()
+	}
+	workers := runtime.GOMAXPROCS(0)
+	const chunk = 32
+	corners := make([][]point, chunk+1)
+	for i := range corners {
+		corners[i] = make([]point, w+1)
+	}
+	rowSpec := make([]Spectrum, chunk)
+	for i := range rowSpec {
+		rowSpec[i] = NewSpectrum(r.MinKeV, r.MaxKeV, r.Emission.LineKeV, r.Spectrum.Bins, n)
+	}
+	parallel := func(count int, job func(i int, p *raytrace.Path, s *Sample)) {
+		var next atomic.Int64
+		var wg sync.WaitGroup
+		for range workers {
+			wg.Add(1)
+			go func() {
+				defer wg.Done()
+				p := raytrace.Path{Crossings: make([]raytrace.Crossing, 0, n)}
+				var s Sample
+				for {
+					i := int(next.Add(1) - 1)
+					if i >= count || ctx.Err() != nil {
+						return
+					}
+					job(i, &p, &s)
+				}
+			}()
+		}
+		wg.Wait()
+	}
+	for j0 := 0; j0 < h; j0 += chunk {
+		rows := min(chunk, h-j0)
+		// Corner rows j0 … j0+rows (row j0 is carried over from the last chunk).
+		start := 0
+		if j0 > 0 {
+			corners[0], corners[chunk] = corners[chunk], corners[0]
+			start = 1
+		}
+		parallel(rows+1-start, func(i int, p *raytrace.Path, s *Sample) {
+			row := corners[i+start]
+			for x := 0; x <= w; x++ {
+				row[x] = rf.sample(float64(x), float64(j0+i+start), p, s)
+			}
+		})
+		parallel(rows, func(i int, p *raytrace.Path, s *Sample) {
+			j := j0 + i
+			spec := &rowSpec[i]
+			for o := range spec.Order {
+				clear(spec.Order[o])
+			}
+			spec.Below, spec.Above = 0, 0
+			for x := 0; x < w; x++ {
+				var acc pixelAcc
+				c := [4]point{corners[i][x], corners[i][x+1], corners[i+1][x], corners[i+1][x+1]}
+				rf.cell(float64(x), float64(j), 1, c, 0, p, s, &acc, spec)
+				if f != nil {
+					f.storeAcc(j*w+x, &acc)
+				}
+			}
+		})
+		if err := ctx.Err(); err != nil {
+			return nil, Spectrum{}, 0, err
+		}
+		for i := 0; i < rows; i++ {
+			total.Merge(&rowSpec[i])
+		}
+		if progress != nil {
+			progress(j0 + rows)
+		}
+	}
+	photons := rf.photons.Load()
+	if f != nil {
+		f.Photons = photons
+		f.refined = &total
+	}
+	return f, total, photons, nil
+}
+
+// storeAcc turns a pixel's accumulated samples into its records.
+func (f *Frame) storeAcc(k int, a *pixelAcc) {
+	nan := float32(math.NaN())
+	if a.captured > a.area/2 {
+		f.Fate[k] = raytrace.Captured
+	} else {
+		f.Fate[k] = raytrace.Escaped
+	}
+	best, bestArea := -1, a.firstArea[0]
+	for o := 0; o < f.Orders; o++ {
+		if a.firstArea[o+1] > bestArea {
+			best, bestArea = o, a.firstArea[o+1]
+		}
+	}
+	f.First[k] = int8(best)
+	for o := 0; o < f.Orders; o++ {
+		if a.w[o] == 0 {
+			f.R[o][k], f.G[o][k], f.Line[o][k], f.Bol[o][k] = nan, nan, nan, nan
+			continue
+		}
+		f.R[o][k] = float32(a.r[o] / a.w[o])
+		f.G[o][k] = float32(a.g[o] / a.w[o])
+		f.Line[o][k] = float32(a.line[o] / a.area)
+		f.Bol[o][k] = float32(a.bol[o] / a.area)
+	}
+}
