@@ -237,3 +237,51 @@ func polish(r, A, B, C float64) (float64, bool) {
 	terms := r2*r2 + math.Abs(A)*r2 + math.Abs(B*r) + math.Abs(C)
 	return r, math.Abs(f) <= 1e-13*terms
 }
+
+// refineNearPair re-polishes the roots r2, r3, r4 of case I with R(r)
+// evaluated in its physical form R = (r² + a² - aλ)² - Δ(r)(η + (λ - a)²),
+// Δ = (r - 1)² - (1 - a)(1 + a) (Bardeen 1973), which keeps its relative
+// accuracy where two roots crowd together near r = 1 for a → 1 and
+// λ → 2 (there the polynomial coefficients lose it to cancellation). A
+// root is replaced only if Newton's method settles on it well inside the
+// gap to its neighbour; otherwise (a true near-double root, at the
+// critical curve) the Ferrari values stand.
+func (q *quartic) refineNearPair(a, lambda, eta float64) {
+	if q.cs != FourReal {
+		return
+	}
+	amb := a * (a - lambda)
+	k := eta + (lambda-a)*(lambda-a)
+	ca := (1 - a) * (1 + a)
+	newton := func(r float64) (float64, float64) {
+		step := math.Inf(1)
+		for i := 0; i < 12; i++ {
+			p := r*r + amb
+			d := (r-1)*(r-1) - ca
+			f := p*p - d*k
+			df := 4*r*p - 2*(r-1)*k
+			if df == 0 || f == 0 {
+				return r, 0
+			}
+			step = f / df
+			r -= step
+			if math.Abs(step) <= 1e-16*math.Abs(r) {
+				break
+			}
+		}
+		return r, math.Abs(step)
+	}
+	r2, e2 := newton(q.r2)
+	r3, e3 := newton(q.r3)
+	r4, e4 := newton(q.r4)
+	if !(r2 < r3 && r3 < r4) {
+		return
+	}
+	if gap := r4 - r3; gap > 1e3*(e3+e4) && gap > 1e3*1e-16*math.Abs(r4) {
+		q.r3, q.r4, q.r43 = r3, r4, gap
+	}
+	if gap := r3 - r2; gap > 1e3*(e2+e3) && gap > 1e3*1e-16*math.Abs(r3) {
+		q.r2 = r2
+		q.r21 = q.r2 - q.r1
+	}
+}

@@ -139,6 +139,10 @@ func (o Observer) trace(lambda, eta, beta float64, orders int, p *Path) {
 	B := 2 * (eta + lma*lma)
 	C := -a * a * eta
 	q := radialRoots(A, B, C)
+	if math.Abs(a) > 0.9 && math.Abs(lambda-2*a) < 0.5 {
+		// Near-extremal holes: roots crowd at r ≈ 1 (see refineNearPair).
+		q.refineNearPair(a, lambda, eta)
+	}
 	p.Roots = q.cs
 	rh := o.horizon
 

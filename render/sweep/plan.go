@@ -1,0 +1,312 @@
+package sweep
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"math"
+	"slices"
+	"strconv"
+	"strings"
+
+	"kerrscope/render"
+	"kerrscope/scene"
+)
+
+// Plan is a validated sweep: the base scene, the axes, the colour scales
+// fixed by the user and every frame's resolved scene. Frame k of a grid
+// of two axes has values (axis 0 value k / n1, axis 1 value k mod n1):
+// the first axis is the outer one.
+type Plan struct {
+	Base   scene.Scene
+	Axes   []Axis
+	Fixed  render.Scales // zero fields are chosen by a low-resolution pre-pass
+	Points []Point
+}
+
+// Point is one frame of a plan.
+type Point struct {
+	Index  int
+	Values []float64 // one per axis
+	Scene  scene.Resolved
+}
+
+// PointError reports a frame whose scene is invalid.
+type PointError struct {
+	Index int
+	Label string // the frame's swept values, "key = value, ..."
+	Err   error
+}
+
+func (e *PointError) Error() string {
+	return fmt.Sprintf("frame %d (%s): %v", e.Index, e.Label, e.Err)
+}
+
+// Unwrap returns the scene's error.
+func (e *PointError) Unwrap() error { return e.Err }
+
+// NewPlan validates the axes and the fixed scales, and resolves the scene
+// of every frame (base with the swept values set) before anything is
+// rendered; an invalid frame gives a *PointError. The output directory is
+// base.Output.Directory.
+func NewPlan(base scene.Scene, axes []Axis, fixed render.Scales) (*Plan, error) {
+	if len(axes) < 1 || len(axes) > MaxAxes {
+		return nil, fmt.Errorf("a sweep varies 1 or %d scene values, not %d", MaxAxes, len(axes))
+	}
+	if len(axes) == 2 && axes[0].Key == axes[1].Key {
+		return nil, fmt.Errorf("%s is varied twice", axes[0].Key)
+	}
+	if strings.TrimSpace(base.Output.Directory) == "" {
+		return nil, errors.New("output.directory is empty")
+	}
+	if err := validateScales(fixed); err != nil {
+		return nil, err
+	}
+	vals := make([][]float64, len(axes))
+	fields := make([]scene.Field, len(axes))
+	total := 1
+	for i, a := range axes {
+		v, err := a.Values()
+		if err != nil {
+			return nil, err
+		}
+		vals[i] = v
+		fields[i], _ = NumericField(a.Key)
+		total *= a.Count
+		if total > MaxFrames {
+			return nil, fmt.Errorf("the sweep has more than %d frames", MaxFrames)
+		}
+	}
+	p := &Plan{Base: base, Axes: append([]Axis(nil), axes...), Fixed: fixed}
+	for k := 0; k < total; k++ {
+		pt := Point{Index: k, Values: p.valuesOf(k, vals)}
+		s := base
+		// Lists are shared with base; frames never modify them.
+		for i, f := range fields {
+			if err := f.Set(&s, formatValue(pt.Values[i])); err != nil {
+				return nil, &PointError{k, p.Label(pt.Values), err}
+			}
+		}
+		r, err := s.Resolve()
+		if err != nil {
+			return nil, &PointError{k, p.Label(pt.Values), err}
+		}
+		pt.Scene = r
+		p.Points = append(p.Points, pt)
+	}
+	return p, nil
+}
+
+// valuesOf returns the axis values of frame k.
+func (p *Plan) valuesOf(k int, vals [][]float64) []float64 {
+	if len(vals) == 1 {
+		return []float64{vals[0][k]}
+	}
+	n1 := len(vals[1])
+	return []float64{vals[0][k/n1], vals[1][k%n1]}
+}
+
+// Label describes swept values, e.g. "black_hole.spin = 0.99".
+func (p *Plan) Label(values []float64) string {
+	var parts []string
+	for i, v := range values {
+		parts = append(parts, p.Axes[i].Key+" = "+formatValue(v))
+	}
+	return strings.Join(parts, ", ")
+}
+
+// Dir returns the output directory.
+func (p *Plan) Dir() string { return p.Base.Output.Directory }
+
+// digits is the zero-padded width of frame numbers.
+func (p *Plan) digits() int { return max(4, len(strconv.Itoa(len(p.Points)-1))) }
+
+// framePrefix returns "frame-0007" for frame 7.
+func (p *Plan) framePrefix(k int) string { return fmt.Sprintf("frame-%0*d", p.digits(), k) }
+
+// FileNames returns the files of frame k, sorted: for every map of the
+// scene, the figure (format png), the pixel-exact image (bare) and the
+// 8-bit palette image the GIFs are made from (always); the spectrum as
+// CSV (csv) and plot (png and csv); the FITS maps (fits).
+func (p *Plan) FileNames(k int) []string {
+	o := p.Base.Output
+	pre := p.framePrefix(k)
+	var out []string
+	for _, m := range o.Maps {
+		if o.Has("png") {
+			out = append(out, pre+"-"+m+".png")
+		}
+		if o.Has("bare") {
+			out = append(out, pre+"-"+m+"-bare.png")
+		}
+		out = append(out, pre+"-"+m+"-indexed.png")
+	}
+	if o.Has("csv") {
+		out = append(out, pre+"-spectrum.csv")
+		if o.Has("png") {
+			out = append(out, pre+"-spectrum.png")
+		}
+	}
+	if o.Has("fits") {
+		out = append(out, pre+"-maps.fits")
+	}
+	slices.Sort(out)
+	return out
+}
+
+// validateScales checks the user-fixed scales (zero = not fixed).
+func validateScales(s render.Scales) error {
+	bad := func(v float64) bool { return math.IsNaN(v) || math.IsInf(v, 0) || v < 0 }
+	switch {
+	case bad(s.GMin) || bad(s.GMax) || bad(s.IMax) || bad(s.IDecades) || bad(s.RMin) || bad(s.RMax) || bad(s.FluxMax):
+		return errors.New("fixed scales must be finite and not negative (0 = chosen from the sweep)")
+	case s.GMin != 0 && !(s.GMin < 1):
+		return fmt.Errorf("redshift scale minimum %v must be between 0 and 1", s.GMin)
+	case s.GMax != 0 && !(s.GMax > 1):
+		return fmt.Errorf("redshift scale maximum %v must be above 1", s.GMax)
+	case s.IDecades > 30:
+		return fmt.Errorf("intensity decades %v must be at most 30", s.IDecades)
+	case s.RMin != 0 && s.RMax != 0 && !(s.RMax > s.RMin):
+		return fmt.Errorf("radius scale %v to %v is empty", s.RMin, s.RMax)
+	}
+	return nil
+}
+
+// Pre-pass settings: how many frames and how many pixels across.
+const (
+	prepassFrames = 16
+	prepassWidth  = 96
+)
+
+// chooseScales completes the fixed scales from the plan: the radius range
+// spans every frame's emitting disk; the redshift range, the intensity
+// maximum and the spectrum's flux maximum come from up to prepassFrames
+// frames (ends and corners included) rendered at most prepassWidth pixels
+// across over the same window, widened by a margin and rounded outward
+// to two significant digits, so that every process of a sweep computes
+// the same values.
+func (p *Plan) chooseScales(ctx context.Context) (render.Scales, error) {
+	sc := p.Fixed
+	if sc.IDecades == 0 {
+		sc.IDecades = 4
+	}
+	rmin, rmax := math.Inf(1), math.Inf(-1)
+	for _, pt := range p.Points {
+		rmin, rmax = math.Min(rmin, pt.Scene.Inner), math.Max(rmax, pt.Scene.Disk.OuterRadius)
+	}
+	if sc.RMin == 0 {
+		sc.RMin = rmin
+	}
+	if sc.RMax == 0 {
+		sc.RMax = math.Max(rmax, sc.RMin*1.01)
+	}
+	if !(sc.RMax > sc.RMin) {
+		return sc, fmt.Errorf("radius scale %v to %v is empty", sc.RMin, sc.RMax)
+	}
+	if sc.GMin != 0 && sc.GMax != 0 && sc.IMax != 0 && sc.FluxMax != 0 {
+		return sc, nil
+	}
+	gmin, gmax, imax, fmax := math.Inf(1), math.Inf(-1), 0.0, 0.0
+	for _, k := range p.prepassIndices() {
+		r := p.Points[k].Scene
+		w := min(r.Screen.Width, prepassWidth)
+		if w < r.Screen.Width {
+			h := max(1, int(math.Round(float64(r.Screen.Height)*float64(w)/float64(r.Screen.Width))))
+			s := r.Scene
+			s.Screen.Width, s.Screen.Height = w, h
+			var err error
+			if r, err = s.Resolve(); err != nil {
+				return sc, err
+			}
+		}
+		f, err := render.Render(ctx, r, nil)
+		if err != nil {
+			return sc, err
+		}
+		for _, g := range f.FirstSeen(f.G) {
+			if v := float64(g); !math.IsNaN(v) {
+				gmin, gmax = math.Min(gmin, v), math.Max(gmax, v)
+			}
+		}
+		for _, v := range f.Total(f.Line) {
+			imax = math.Max(imax, float64(v))
+		}
+		spec := f.Spectrum()
+		for _, v := range spec.Total() {
+			fmax = math.Max(fmax, v/spec.Width())
+		}
+	}
+	if sc.GMin == 0 {
+		sc.GMin = 1 / 1.5
+		if gmin <= gmax {
+			sc.GMin = roundSig(math.Min(0.95, gmin*0.97), false)
+		}
+	}
+	if sc.GMax == 0 {
+		sc.GMax = 1.5
+		if gmin <= gmax {
+			sc.GMax = roundSig(math.Max(1.05, gmax*1.03), true)
+		}
+	}
+	if sc.IMax == 0 {
+		sc.IMax = 1
+		if imax > 0 {
+			sc.IMax = roundSig(imax*1.5, true)
+		}
+	}
+	if sc.FluxMax == 0 {
+		sc.FluxMax = 1
+		if fmax > 0 {
+			sc.FluxMax = roundSig(fmax*1.1, true)
+		}
+	}
+	return sc, nil
+}
+
+// prepassIndices returns up to prepassFrames frame indices spread evenly
+// over the sweep, always with its first and last frame and, for a grid,
+// its four corners; sorted and distinct.
+func (p *Plan) prepassIndices() []int {
+	n := len(p.Points)
+	seen := map[int]bool{}
+	var out []int
+	add := func(k int) {
+		if !seen[k] {
+			seen[k] = true
+			out = append(out, k)
+		}
+	}
+	if len(p.Axes) == 2 {
+		n1 := p.Axes[1].Count
+		add(n1 - 1)
+		add(n - n1)
+	}
+	m := min(n, prepassFrames)
+	for i := 0; i < m; i++ {
+		if m == 1 {
+			add(0)
+			break
+		}
+		add(int(math.Round(float64(i) * float64(n-1) / float64(m-1))))
+	}
+	slices.Sort(out)
+	return out
+}
+
+// roundSig rounds x > 0 to two significant digits, up or down.
+func roundSig(x float64, up bool) float64 {
+	e := int(math.Floor(math.Log10(x))) - 1
+	scaled := x / math.Pow(10, float64(e))
+	var k float64
+	if up {
+		k = math.Ceil(scaled - 1e-9)
+	} else {
+		k = math.Floor(scaled + 1e-9)
+	}
+	if k < 1 {
+		k = 1
+	}
+	// k·10^e written and read back in decimal is the double nearest to it.
+	v, _ := strconv.ParseFloat(strconv.FormatFloat(k, 'f', 0, 64)+"e"+strconv.Itoa(e), 64)
+	return v
+}
