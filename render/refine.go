@@ -157,15 +157,20 @@ func (rf *refiner) leaf(area float64, c *[4]point, acc *pixelAcc, spec *Spectrum
 	}
 }
 
+// RefineStats summarises a refined render.
+type RefineStats struct {
+	Photons      int64   // photons traced
+	CapturedArea float64 // screen area whose photons come from the horizon, M²
+}
+
 // RenderRefined renders the scene with adaptive refinement. It returns the
-// frame of area-weighted pixel means (nil unless keepMaps) and the spectrum
+// frame of area-weighted pixel means (nil unless keepMaps), the spectrum
 // collapsed from the samples with their areas (before any instrument
-// broadening), and counts the photons in Frame.Photons / the returned
-// count. Deterministic: rows are summed in order.
-func RenderRefined(ctx context.Context, r scene.Resolved, ref Refinement, keepMaps bool, progress func(rows int)) (*Frame, Spectrum, int64, error) {
+// broadening) and the photon count. Deterministic: rows are summed in order.
+func RenderRefined(ctx context.Context, r scene.Resolved, ref Refinement, keepMaps bool, progress func(rows int)) (*Frame, Spectrum, RefineStats, error) {
 	m, err := NewModel(r)
 	if err != nil {
-		return nil, Spectrum{}, 0, err
+		return nil, Spectrum{}, RefineStats{}, err
 	}
 	w, h, n := r.Screen.Width, r.Screen.Height, r.Disk.Orders
 	a0, _, _, b1 := (&Frame{Res: r, W: w, H: h}).Window()
@@ -189,6 +194,7 @@ func RenderRefined(ctx context.Context, r scene.Resolved, ref Refinement, keepMa
 	for i := range corners {
 		corners[i] = make([]point, w+1)
 	}
+	rowCaptured := make([]float64, chunk)
 	rowSpec := make([]Spectrum, chunk)
 	for i := range rowSpec {
 		rowSpec[i] = NewSpectrum(r.MinKeV, r.MaxKeV, r.Emission.LineKeV, r.Spectrum.Bins, n)
@@ -213,6 +219,7 @@ func RenderRefined(ctx context.Context, r scene.Resolved, ref Refinement, keepMa
 		}
 		wg.Wait()
 	}
+	captured := 0.0
 	for j0 := 0; j0 < h; j0 += chunk {
 		rows := min(chunk, h-j0)
 		// Corner rows j0 … j0+rows (row j0 is carried over from the last chunk).
@@ -234,31 +241,34 @@ func RenderRefined(ctx context.Context, r scene.Resolved, ref Refinement, keepMa
 				clear(spec.Order[o])
 			}
 			spec.Below, spec.Above = 0, 0
+			rowCaptured[i] = 0
 			for x := 0; x < w; x++ {
 				var acc pixelAcc
 				c := [4]point{corners[i][x], corners[i][x+1], corners[i+1][x], corners[i+1][x+1]}
 				rf.cell(float64(x), float64(j), 1, c, 0, p, s, &acc, spec)
+				rowCaptured[i] += acc.captured
 				if f != nil {
 					f.storeAcc(j*w+x, &acc)
 				}
 			}
 		})
 		if err := ctx.Err(); err != nil {
-			return nil, Spectrum{}, 0, err
+			return nil, Spectrum{}, RefineStats{}, err
 		}
 		for i := 0; i < rows; i++ {
 			total.Merge(&rowSpec[i])
+			captured += rowCaptured[i]
 		}
 		if progress != nil {
 			progress(j0 + rows)
 		}
 	}
-	photons := rf.photons.Load()
+	st := RefineStats{Photons: rf.photons.Load(), CapturedArea: captured * rf.h * rf.h}
 	if f != nil {
-		f.Photons = photons
+		f.Photons = st.Photons
 		f.refined = &total
 	}
-	return f, total, photons, nil
+	return f, total, st, nil
 }
 
 // storeAcc turns a pixel's accumulated samples into its records.

@@ -1,0 +1,297 @@
+package sweep
+
+import (
+	"bytes"
+	"crypto/sha256"
+	"encoding/hex"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+	"regexp"
+	"slices"
+	"strconv"
+	"strings"
+
+	"kerrscope/render"
+)
+
+// Shard is process K of N (1 ≤ K ≤ N): it renders the frames whose index
+// k has k mod N = K − 1 and records them in its own manifest.
+type Shard struct {
+	K int `json:"k"`
+	N int `json:"n"`
+}
+
+// MaxShards bounds N.
+const MaxShards = 100000
+
+// ParseShard reads "K/N".
+func ParseShard(s string) (Shard, error) {
+	ks, ns, ok := strings.Cut(strings.TrimSpace(s), "/")
+	k, err1 := strconv.Atoi(strings.TrimSpace(ks))
+	n, err2 := strconv.Atoi(strings.TrimSpace(ns))
+	if !ok || err1 != nil || err2 != nil {
+		return Shard{}, fmt.Errorf("%q: want K/N, e.g. 3/8 for the third of eight processes", s)
+	}
+	sh := Shard{K: k, N: n}
+	return sh, sh.Validate()
+}
+
+// Validate checks 1 ≤ K ≤ N ≤ MaxShards.
+func (s Shard) Validate() error {
+	if s.N < 1 || s.N > MaxShards {
+		return fmt.Errorf("%d/%d: N must be between 1 and %d", s.K, s.N, MaxShards)
+	}
+	if s.K < 1 || s.K > s.N {
+		return fmt.Errorf("%d/%d: K must be between 1 and N = %d", s.K, s.N, s.N)
+	}
+	return nil
+}
+
+// Owns reports whether frame k belongs to the shard.
+func (s Shard) Owns(k int) bool { return k%s.N == s.K-1 }
+
+// String returns "K/N".
+func (s Shard) String() string { return fmt.Sprintf("%d/%d", s.K, s.N) }
+
+// ManifestName returns the shard's manifest file name,
+// sweep-shard-K-of-N.json.
+func (s Shard) ManifestName() string { return fmt.Sprintf("sweep-shard-%d-of-%d.json", s.K, s.N) }
+
+// manifestFormat names the manifest layout.
+const manifestFormat = "kerrscope sweep manifest 1"
+
+// manifestPattern matches manifest file names.
+var manifestPattern = regexp.MustCompile(`^sweep-shard-([0-9]+)-of-([0-9]+)\.json$`)
+
+// manifest is one shard's record of a sweep: what is swept, with which
+// scales, and every finished frame with its files.
+type manifest struct {
+	Format     string        `json:"format"`
+	Program    string        `json:"program"`
+	Definition definition    `json:"definition"`
+	Scales     scaleRecord   `json:"scales"`
+	Shard      Shard         `json:"shard"`
+	Frames     []frameRecord `json:"frames"`
+
+	name string // file name, when loaded
+}
+
+// definition is what makes two sweeps the same: the base scene (without
+// its output directory, and with the swept values at their first value),
+// the axes and the scales the user fixed.
+type definition struct {
+	Scene string      `json:"scene_toml"`
+	Axes  []Axis      `json:"axes"`
+	Fixed scaleRecord `json:"fixed_scales"`
+}
+
+// scaleRecord is render.Scales in the manifest (0 = not fixed).
+type scaleRecord struct {
+	GMin     float64 `json:"g_min"`
+	GMax     float64 `json:"g_max"`
+	IMax     float64 `json:"intensity_max"`
+	IDecades float64 `json:"intensity_decades"`
+	RMin     float64 `json:"radius_min"`
+	RMax     float64 `json:"radius_max"`
+	FluxMax  float64 `json:"flux_max_per_kev"`
+}
+
+func toRecord(s render.Scales) scaleRecord {
+	return scaleRecord{s.GMin, s.GMax, s.IMax, s.IDecades, s.RMin, s.RMax, s.FluxMax}
+}
+
+func (s scaleRecord) scales() render.Scales {
+	return render.Scales{GMin: s.GMin, GMax: s.GMax, IMax: s.IMax, IDecades: s.IDecades, RMin: s.RMin, RMax: s.RMax, FluxMax: s.FluxMax}
+}
+
+// frameRecord is one finished frame.
+type frameRecord struct {
+	Index  int           `json:"index"`
+	Values []valueRecord `json:"values"`
+	Files  []fileRecord  `json:"files"`
+}
+
+type valueRecord struct {
+	Key   string  `json:"key"`
+	Value float64 `json:"value"`
+}
+
+// fileRecord is one file of a frame with its size and SHA-256.
+type fileRecord struct {
+	Name   string `json:"name"`
+	Bytes  int64  `json:"bytes"`
+	SHA256 string `json:"sha256"`
+}
+
+// definition returns the plan's definition.
+func (p *Plan) definition() (definition, error) {
+	s := p.Base
+	s.Output.Directory = ""
+	for _, a := range p.Axes {
+		f, _ := NumericField(a.Key)
+		if err := f.Set(&s, formatValue(a.From)); err != nil {
+			return definition{}, err
+		}
+	}
+	text, err := s.TOML()
+	if err != nil {
+		return definition{}, err
+	}
+	return definition{Scene: string(text), Axes: p.Axes, Fixed: toRecord(p.Fixed)}, nil
+}
+
+// same reports whether two definitions are equal, and if not, names the
+// part that differs.
+func (d definition) same(o definition) (bool, string) {
+	switch {
+	case d.Scene != o.Scene:
+		return false, "the scene"
+	case !slices.Equal(d.Axes, o.Axes):
+		return false, "the swept values"
+	case d.Fixed != o.Fixed:
+		return false, "the fixed scales"
+	}
+	return true, ""
+}
+
+// loadManifests reads every shard manifest in dir, sorted by name. A
+// missing directory has none.
+func loadManifests(dir string) ([]*manifest, error) {
+	ents, err := os.ReadDir(dir)
+	if errors.Is(err, os.ErrNotExist) {
+		return nil, nil
+	}
+	if err != nil {
+		return nil, err
+	}
+	var out []*manifest
+	for _, e := range ents {
+		m := manifestPattern.FindStringSubmatch(e.Name())
+		if m == nil || e.IsDir() {
+			continue
+		}
+		data, err := os.ReadFile(filepath.Join(dir, e.Name()))
+		if err != nil {
+			return nil, err
+		}
+		var mf manifest
+		d := json.NewDecoder(bytes.NewReader(data))
+		d.DisallowUnknownFields()
+		if err := d.Decode(&mf); err != nil || mf.Format != manifestFormat {
+			return nil, fmt.Errorf("%s is not a sweep manifest this program reads (remove it, or start over with --restart)", e.Name())
+		}
+		if mf.Shard.ManifestName() != e.Name() {
+			return nil, fmt.Errorf("%s records shard %s", e.Name(), mf.Shard)
+		}
+		mf.name = e.Name()
+		out = append(out, &mf)
+	}
+	return out, nil
+}
+
+// write stores the manifest atomically as dir/name: a temporary file in
+// the same directory, synced, then renamed over the old one.
+func (m *manifest) write(dir string) error {
+	data, err := json.MarshalIndent(m, "", "  ")
+	if err != nil {
+		return err
+	}
+	data = append(data, '\n')
+	tmp, err := os.CreateTemp(dir, ".sweep-manifest-*.tmp")
+	if err != nil {
+		return err
+	}
+	_, err = tmp.Write(data)
+	if err == nil {
+		err = tmp.Sync()
+	}
+	if cerr := tmp.Close(); err == nil {
+		err = cerr
+	}
+	if err == nil {
+		err = os.Rename(tmp.Name(), filepath.Join(dir, m.Shard.ManifestName()))
+	}
+	if err != nil {
+		os.Remove(tmp.Name())
+		return fmt.Errorf("manifest: %w", err)
+	}
+	return nil
+}
+
+// hashFile returns the size and SHA-256 (hex) of a file.
+func hashFile(path string) (int64, string, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return 0, "", err
+	}
+	defer f.Close()
+	h := sha256.New()
+	n, err := io.Copy(h, f)
+	if err != nil {
+		return 0, "", err
+	}
+	return n, hex.EncodeToString(h.Sum(nil)), nil
+}
+
+// verify reports whether rec describes frame pt of the plan and all its
+// files are in dir with the recorded sizes and hashes.
+func (p *Plan) verify(rec frameRecord, pt Point) bool {
+	if rec.Index != pt.Index || len(rec.Values) != len(pt.Values) {
+		return false
+	}
+	for i, v := range rec.Values {
+		if v.Key != p.Axes[i].Key || v.Value != pt.Values[i] {
+			return false
+		}
+	}
+	want := p.FileNames(pt.Index)
+	if len(rec.Files) != len(want) {
+		return false
+	}
+	for i, f := range rec.Files {
+		if f.Name != want[i] {
+			return false
+		}
+		n, sum, err := hashFile(filepath.Join(p.Dir(), f.Name))
+		if err != nil || n != f.Bytes || sum != f.SHA256 {
+			return false
+		}
+	}
+	return true
+}
+
+// valuesRecord returns the record of a point's values.
+func (p *Plan) valuesRecord(pt Point) []valueRecord {
+	out := make([]valueRecord, len(pt.Values))
+	for i, v := range pt.Values {
+		out[i] = valueRecord{p.Axes[i].Key, v}
+	}
+	return out
+}
+
+// hashingWriter passes writes on and keeps their SHA-256 and length.
+type hashingWriter struct {
+	w io.Writer
+	n int64
+	s interface {
+		io.Writer
+		Sum([]byte) []byte
+	}
+}
+
+func newHashingWriter(w io.Writer) *hashingWriter { return &hashingWriter{w: w, s: sha256.New()} }
+
+func (hw *hashingWriter) Write(b []byte) (int, error) {
+	n, err := hw.w.Write(b)
+	hw.s.Write(b[:n])
+	hw.n += int64(n)
+	return n, err
+}
+
+func (hw *hashingWriter) record(name string) fileRecord {
+	return fileRecord{Name: name, Bytes: hw.n, SHA256: hex.EncodeToString(hw.s.Sum(nil))}
+}
