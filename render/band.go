@@ -1,54 +1,21 @@
 package render
 
 import (
+	"image"
+	"image/color"
+
 	"encoding/json"
 	"fmt"
 	"io"
+	"kerrscope/colormap"
+	"kerrscope/render/figure"
+	"kerrscope/render/fits"
 	"math"
 	"strconv"
-	"strings"
 	"text/tabwriter"
 
 	"kerrscope/raytrace"
-	"kerrscope/scene"
 )
-
-// ParseRadius reads a radius expression: a number of M, or "isco" or
-// "horizon" optionally followed by "*x" (scaled) or "+x" (shifted by x M),
-// e.g. "isco*1.1", "horizon+0.05", "3.5".
-func ParseRadius(expr string, r scene.Resolved) (float64, error) {
-	e := strings.ToLower(strings.ReplaceAll(expr, " ", ""))
-	base := 0.0
-	rest := e
-	switch {
-	case strings.HasPrefix(e, "isco"):
-		base, rest = r.ISCO, e[4:]
-	case strings.HasPrefix(e, "horizon"):
-		base, rest = r.Horizon, e[7:]
-	default:
-		v, err := strconv.ParseFloat(e, 64)
-		if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
-			return 0, fmt.Errorf("radius %q: want a number, or isco / horizon with an optional *x or +x", expr)
-		}
-		return v, nil
-	}
-	if rest == "" {
-		return base, nil
-	}
-	v, err := strconv.ParseFloat(rest[1:], 64)
-	if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
-		return 0, fmt.Errorf("radius %q: cannot read %q", expr, rest)
-	}
-	switch rest[0] {
-	case '*':
-		return base * v, nil
-	case '+':
-		return base + v, nil
-	case '-':
-		return base - v, nil
-	}
-	return 0, fmt.Errorf("radius %q: after %s use *x, +x or -x", expr, e[:len(e)-len(rest)])
-}
 
 // BandReport says where emission from source radii [RMin, RMax] lands on
 // the screen. Fractions are of the line flux of the whole rendered window.
@@ -173,4 +140,121 @@ func (b BandReport) WriteText(w io.Writer) error {
 		fmt.Fprintf(w, "photons traced: %d\n", b.Photons)
 	}
 	return nil
+}
+
+// writeBand stages the band report (text and JSON), its masks as FITS
+// images (1 = in the band) and its figure.
+func (f *Frame) writeBand(out *Outputs, rep BandReport, mask [][]bool, version string) error {
+	if err := out.Write("band.json", rep.WriteJSON); err != nil {
+		return err
+	}
+	if err := out.Write("band.txt", rep.WriteText); err != nil {
+		return err
+	}
+	o := f.Res.Output
+	if o.Has("fits") {
+		axes := f.fitsAxes()
+		var ims []fits.Image
+		for ord, m := range mask {
+			v := make([]float32, len(m))
+			for k, in := range m {
+				if in {
+					v[k] = 1
+				}
+			}
+			ims = append(ims, fits.Image{Name: fmt.Sprintf("BAND_ORD%d", ord), Width: f.W, Height: f.H, Data: flipRows(v, f.W, f.H), Axes: axes,
+				Cards: []fits.Card{{Key: "RBANDMIN", Value: rep.RMin, Comment: "band inner radius [M]"}, {Key: "RBANDMAX", Value: rep.RMax, Comment: "band outer radius [M]"},
+					{Key: "COMMENT", Value: fmt.Sprintf("1 = image order %d of this pixel comes from the band", ord)}}})
+		}
+		if err := out.Write("band.fits", func(w io.Writer) error { return fits.Encode(w, f.FITSHeader(version), ims) }); err != nil {
+			return err
+		}
+	}
+	if o.Has("png") || o.Has("bare") {
+		img := f.bandImage(mask)
+		if o.Has("bare") {
+			if err := out.Write("band-bare.png", func(w io.Writer) error { return figure.EncodePNG(w, img) }); err != nil {
+				return err
+			}
+		}
+		if o.Has("png") {
+			p := f.Panel("shadow", Scales{})
+			p.Image = img
+			p.Title = fmt.Sprintf("where source radii %.6g–%.6g M land", rep.RMin, rep.RMax)
+			p.Legend = []figure.LegendEntry{p.Legend[1]}
+			bar := &figure.ColorBar{Label: "image order"}
+			for ord := 0; ord < f.Orders; ord++ {
+				bar.Swatches = append(bar.Swatches, figure.Swatch{Color: colormap.Order(ord), Label: fmt.Sprintf("band, n = %d", ord)})
+			}
+			bar.Swatches = append(bar.Swatches, figure.Swatch{Color: bandOther, Label: "other light"}, figure.Swatch{Color: colormap.Shadow, Label: "horizon"})
+			p.Bar = bar
+			fig, err := figure.DrawPanel(p, 0)
+			if err != nil {
+				return err
+			}
+			if err := out.Write("band.png", func(w io.Writer) error { return figure.EncodePNG(w, fig) }); err != nil {
+				return err
+			}
+			if rep.GMin != nil {
+				sc := Scales{GMin: math.Min(0.95, *rep.GMin), GMax: math.Max(1.05, *rep.GMax)}
+				p := f.Panel("redshift", sc)
+				p.Image = f.bandRedshiftImage(mask, sc)
+				p.Title = fmt.Sprintf("redshift factor g of the light from r = %.6g–%.6g M", rep.RMin, rep.RMax)
+				var pts [][2]float64
+				for _, q := range f.Model.Obs.CriticalCurve(1000) {
+					pts = append(pts, [2]float64{q.Alpha, q.Beta})
+				}
+				blue := color.RGBA{0x12, 0x4e, 0xd8, 0xff}
+				p.Lines = []figure.Polyline{{Points: pts, Color: blue, Width: 2, Dashed: true, Closed: true}}
+				p.Legend = []figure.LegendEntry{{Color: blue, Label: "critical curve (Bardeen 1973)", Dashed: true}}
+				fig, err := figure.DrawPanel(p, 0)
+				if err != nil {
+					return err
+				}
+				if err := out.Write("band-redshift.png", func(w io.Writer) error { return figure.EncodePNG(w, fig) }); err != nil {
+					return err
+				}
+			}
+		}
+	}
+	return nil
+}
+
+// bandRedshiftImage colours the pixels whose light comes from the band by
+// the g of the lowest such image order; the rest is light grey.
+func (f *Frame) bandRedshiftImage(mask [][]bool, sc Scales) *image.RGBA {
+	img := image.NewRGBA(image.Rect(0, 0, f.W, f.H))
+	for k := range f.Fate {
+		c := bandOther
+		for ord := range mask {
+			if mask[ord][k] {
+				c = colormap.Redshift.At(sc.gPosition(float64(f.G[ord][k])))
+				break
+			}
+		}
+		img.SetRGBA(k%f.W, k/f.W, c)
+	}
+	return img
+}
+
+var bandOther = color.RGBA{0xe4, 0xe4, 0xe0, 0xff}
+
+// bandImage colours each pixel by the lowest image order that comes from
+// the band; other pixels are light, captured ones dark.
+func (f *Frame) bandImage(mask [][]bool) *image.RGBA {
+	img := image.NewRGBA(image.Rect(0, 0, f.W, f.H))
+	for k := range f.Fate {
+		c := bandOther
+		if f.Fate[k] == raytrace.Captured && f.First[k] < 0 {
+			c = colormap.Shadow
+		}
+		for ord := range mask {
+			if mask[ord][k] {
+				c = colormap.Order(ord)
+				break
+			}
+		}
+		img.SetRGBA(k%f.W, k/f.W, c)
+	}
+	return img
 }

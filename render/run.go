@@ -14,37 +14,57 @@ type Options struct {
 	Version  string    // program version recorded in the outputs
 	Progress io.Writer // progress bar destination; nil = none
 	Scales   Scales    // fixed colour scales; zero = chosen per frame
+	Band     bool      // also locate the scene's band of source radii
+}
+
+// Summary is what a run did.
+type Summary struct {
+	Files   []string    // paths written, sorted
+	Photons int64       // photons traced
+	Band    *BandReport // when Options.Band
+}
+
+// Frame renders the scene's frame: one photon per pixel centre, or with
+// adaptive refinement when the scene asks for it.
+func RenderScene(ctx context.Context, r scene.Resolved, progress func(rows int)) (*Frame, error) {
+	if r.Refine.Depth > 0 {
+		f, _, _, err := RenderRefined(ctx, r, Refinement{Depth: r.Refine.Depth, TolR: r.Refine.TolR, TolG: r.Refine.TolG}, true, progress)
+		return f, err
+	}
+	return Render(ctx, r, progress)
 }
 
 // Run renders the scene and writes every requested output into its
 // directory: figures, pixel-exact PNGs, a FITS file of all maps, the
-// spectrum (CSV and plot) and manifest.toml (the effective scene). It
-// returns the paths written. On any error nothing new is left behind.
-func Run(ctx context.Context, r scene.Resolved, opt Options) ([]string, error) {
+// spectrum (CSV and plot), the band report and masks (Options.Band) and
+// manifest.toml (the effective scene). On any error nothing new is left
+// behind.
+func Run(ctx context.Context, r scene.Resolved, opt Options) (Summary, error) {
 	bar := NewProgress(opt.Progress, r.Screen.Height, "tracing rows")
-	f, err := Render(ctx, r, bar.Set)
+	f, err := RenderScene(ctx, r, bar.Set)
 	bar.Done()
 	if err != nil {
-		return nil, err
+		return Summary{}, err
 	}
 	out, err := NewOutputs(r.Output.Directory)
 	if err != nil {
-		return nil, err
+		return Summary{}, err
 	}
-	if err := f.writeAll(out, opt); err != nil {
+	sum := Summary{Photons: f.Photons}
+	if err := f.writeAll(out, opt, &sum); err != nil {
 		out.Abort()
-		return nil, err
+		return Summary{}, err
 	}
-	return out.Commit()
+	sum.Files, err = out.Commit()
+	return sum, err
 }
 
 // writeAll stages every output of the frame.
-func (f *Frame) writeAll(out *Outputs, opt Options) error {
-	version := opt.Version
+func (f *Frame) writeAll(out *Outputs, opt Options, sum *Summary) error {
 	o := f.Res.Output
 	spec := f.Spectrum()
 	if o.Has("fits") {
-		if err := out.Write("maps.fits", func(w io.Writer) error { return f.WriteFITS(w, version) }); err != nil {
+		if err := out.Write("maps.fits", func(w io.Writer) error { return f.WriteFITS(w, opt.Version) }); err != nil {
 			return err
 		}
 	}
@@ -56,7 +76,14 @@ func (f *Frame) writeAll(out *Outputs, opt Options) error {
 	if err := f.writeFigures(out, &spec, opt.Scales); err != nil {
 		return err
 	}
-	return out.Write("manifest.toml", func(w io.Writer) error { return WriteManifest(w, f.Res.Scene, version) })
+	if opt.Band {
+		rep, mask := f.LocateBand(f.Res.BandMin, f.Res.BandMax)
+		sum.Band = &rep
+		if err := f.writeBand(out, rep, mask, opt.Version); err != nil {
+			return err
+		}
+	}
+	return out.Write("manifest.toml", func(w io.Writer) error { return WriteManifest(w, f.Res.Scene, opt.Version) })
 }
 
 // WriteManifest writes the effective scene as TOML, headed by the program

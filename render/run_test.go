@@ -20,11 +20,11 @@ func runScene(t *testing.T, dir string, edit func(s *scene.Scene)) []string {
 		s.Output.Directory = dir
 		edit(s)
 	})
-	files, err := Run(context.Background(), r, Options{Version: "test"})
+	sum, err := Run(context.Background(), r, Options{Version: "test", Band: true})
 	if err != nil {
 		t.Fatal(err)
 	}
-	return files
+	return sum.Files
 }
 
 func TestRunIsReproducible(t *testing.T) {

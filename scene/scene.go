@@ -7,6 +7,7 @@ import (
 	"math"
 	"os"
 	"regexp"
+	"strconv"
 	"strings"
 
 	"github.com/pelletier/go-toml/v2"
@@ -23,7 +24,27 @@ type Scene struct {
 	Disk     Disk     `toml:"disk"`
 	Emission Emission `toml:"emission"`
 	Spectrum Spectrum `toml:"spectrum"`
+	Refine   Refine   `toml:"refine"`
+	Band     Band     `toml:"band"`
 	Output   Output   `toml:"output"`
+}
+
+// Refine is adaptive sampling: Depth 0 traces one photon per pixel centre;
+// Depth > 0 samples pixel corners and splits cells whose samples differ in
+// fate or image order, or in r (relative) or g (absolute) by more than
+// the tolerances, down to Depth levels.
+type Refine struct {
+	Depth int     `toml:"depth"`
+	TolR  float64 `toml:"tolerance_r"`
+	TolG  float64 `toml:"tolerance_g"`
+}
+
+// Band is the range of source radii that "kerrscope locate" finds on the
+// screen. Each end is a number of M or an expression of "isco" or
+// "horizon" (e.g. "isco*1.1", "horizon+0.05").
+type Band struct {
+	RMin string `toml:"r_min"`
+	RMax string `toml:"r_max"`
 }
 
 // Hole is the black hole. Mass and distance are optional; when both are
@@ -106,6 +127,8 @@ func Default() Scene {
 		Emission: Emission{LineKeV: 6.4, Emissivity: "powerlaw", Index: DefaultPowerLawIndex,
 			IndexInner: 6, IndexOuter: 3, BreakRad: 6, Limb: "isotropic"},
 		Spectrum: Spectrum{Bins: 240},
+		Refine:   Refine{Depth: 0, TolR: 0.05, TolG: 0.01},
+		Band:     Band{RMin: "isco", RMax: "isco*1.1"},
 		Output: Output{Directory: "kerrscope-out", Maps: append([]string(nil), MapNames...),
 			Formats: append([]string(nil), FormatNames...), IntensityScale: "log"},
 	}
@@ -187,10 +210,11 @@ type Resolved struct {
 	MinKeV    float64
 	MaxKeV    float64
 	// MicroArcsecPerM is the angle one M subtends, if mass and distance are given (else 0).
-	MicroArcsecPerM float64
-	Gas             Gas
-	Emissivity      Emissivity
-	Limb            Limb
+	MicroArcsecPerM  float64
+	BandMin, BandMax float64 // band of source radii to locate, M
+	Gas              Gas
+	Emissivity       Emissivity
+	Limb             Limb
 }
 
 // Limits on what one render may ask for.
@@ -317,6 +341,22 @@ func (s Scene) Resolve() (Resolved, error) {
 	if !(sp.FWHMeV >= 0) || !finite(sp.FWHMeV) {
 		return r, fmt.Errorf("spectrum.instrument_fwhm_ev = %v: must be ≥ 0 (0 = no instrument broadening)", sp.FWHMeV)
 	}
+	rf := s.Refine
+	if rf.Depth < 0 || rf.Depth > 12 {
+		return r, fmt.Errorf("refine.depth = %d: must be between 0 (off) and 12", rf.Depth)
+	}
+	if !(rf.TolR > 0) || !finite(rf.TolR) || !(rf.TolG > 0) || !finite(rf.TolG) {
+		return r, fmt.Errorf("refine.tolerance_r, tolerance_g = %v, %v: must be positive", rf.TolR, rf.TolG)
+	}
+	if r.BandMin, err = ParseRadius(s.Band.RMin, r); err != nil {
+		return r, fmt.Errorf("band.r_min: %v", err)
+	}
+	if r.BandMax, err = ParseRadius(s.Band.RMax, r); err != nil {
+		return r, fmt.Errorf("band.r_max: %v", err)
+	}
+	if !(r.BandMax > r.BandMin) {
+		return r, fmt.Errorf("band.r_min, r_max = %q, %q (%.6g, %.6g M): need r_min < r_max", s.Band.RMin, s.Band.RMax, r.BandMin, r.BandMax)
+	}
 	o := s.Output
 	if strings.TrimSpace(o.Directory) == "" {
 		return r, errors.New("output.directory is empty")
@@ -397,4 +437,41 @@ func (r Resolved) Caption() string {
 		disk = "transparent"
 	}
 	return fmt.Sprintf("a = %g, i = %g°, %s disk %.4g–%.4g M", r.Hole.Spin, r.Observer.InclinationDeg, disk, r.Inner, r.Disk.OuterRadius)
+}
+
+// ParseRadius reads a radius expression: a number of M, or "isco" or
+// "horizon" optionally followed by "*x" (scaled) or "+x" (shifted by x M),
+// e.g. "isco*1.1", "horizon+0.05", "3.5".
+func ParseRadius(expr string, r Resolved) (float64, error) {
+	e := strings.ToLower(strings.ReplaceAll(expr, " ", ""))
+	base := 0.0
+	rest := e
+	switch {
+	case strings.HasPrefix(e, "isco"):
+		base, rest = r.ISCO, e[4:]
+	case strings.HasPrefix(e, "horizon"):
+		base, rest = r.Horizon, e[7:]
+	default:
+		v, err := strconv.ParseFloat(e, 64)
+		if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
+			return 0, fmt.Errorf("radius %q: want a number, or isco / horizon with an optional *x or +x", expr)
+		}
+		return v, nil
+	}
+	if rest == "" {
+		return base, nil
+	}
+	v, err := strconv.ParseFloat(rest[1:], 64)
+	if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
+		return 0, fmt.Errorf("radius %q: cannot read %q", expr, rest)
+	}
+	switch rest[0] {
+	case '*':
+		return base * v, nil
+	case '+':
+		return base + v, nil
+	case '-':
+		return base - v, nil
+	}
+	return 0, fmt.Errorf("radius %q: after %s use *x, +x or -x", expr, e[:len(e)-len(rest)])
 }

@@ -31,6 +31,10 @@ func commands() []command {
 	return []command{
 		{"demo", "render the built-in demo scene into ./kerrscope-demo", runDemo},
 		{"render", "render a scene: maps, shadow, spectrum, FITS (see --help)", runRender},
+		{"locate", "find where a band of source radii lands on the screen (refined render + report)", runLocate},
+		{"lensing", "widths of the lensing bands of each image order along screen directions", runLensing},
+		{"sweep", "render a scene over a range of spins, inclinations, ... (resumable, shardable)", runSweep},
+		{"sweep-merge", "merge a finished sweep: animated GIFs, all spectra in one plot", runSweepMerge},
 		{"probe", "trace the photon of one screen point and list its disk crossings", runProbe},
 		{"version", "print the program version", func([]string, io.Writer, io.Writer) error {
 			fmt.Println("kerrscope", version)

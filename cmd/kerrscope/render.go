@@ -97,7 +97,22 @@ func runRender(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	return renderAndReport(r, *quiet, stdout, stderr)
+	return renderAndReport(r, false, *quiet, stdout, stderr)
+}
+
+func runLocate(args []string, stdout, stderr io.Writer) error {
+	f := newFlags("locate", stdout)
+	path, quiet, vals := sceneFlags(f)
+	if err := f.parse(args); err != nil {
+		return err
+	}
+	base := scene.Default()
+	base.Refine.Depth = 3 // thin features: refine unless the scene says otherwise
+	r, err := buildScene(*path, base, *vals)
+	if err != nil {
+		return err
+	}
+	return renderAndReport(r, true, *quiet, stdout, stderr)
 }
 
 func runDemo(args []string, stdout, stderr io.Writer) error {
@@ -118,18 +133,22 @@ func runDemo(args []string, stdout, stderr io.Writer) error {
 		return err
 	}
 	fmt.Fprintf(stdout, "demo: an invented black hole, %s\n", r.Caption())
-	return renderAndReport(r, *quiet, stdout, stderr)
+	return renderAndReport(r, false, *quiet, stdout, stderr)
 }
 
-func renderAndReport(r scene.Resolved, quiet bool, stdout, stderr io.Writer) error {
+func renderAndReport(r scene.Resolved, band, quiet bool, stdout, stderr io.Writer) error {
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
 	defer stop()
-	files, err := render.Run(ctx, r, render.Options{Version: version, Progress: progressWriter(quiet, stderr)})
+	sum, err := render.Run(ctx, r, render.Options{Version: version, Progress: progressWriter(quiet, stderr), Band: band})
 	if err != nil {
 		return err
 	}
-	fmt.Fprintf(stdout, "wrote %d files:\n", len(files))
-	for _, p := range files {
+	if sum.Band != nil {
+		sum.Band.WriteText(stdout)
+		fmt.Fprintln(stdout)
+	}
+	fmt.Fprintf(stdout, "traced %d photons; wrote %d files:\n", sum.Photons, len(sum.Files))
+	for _, p := range sum.Files {
 		fmt.Fprintf(stdout, "  %s\n", p)
 	}
 	return nil

@@ -86,7 +86,8 @@ func measureBar(st *styles, b *ColorBar, h float64) barBox {
 		q, pitch := swatchSize(st)
 		w := width(st.label, b.Label)
 		for _, s := range b.Swatches {
-			w = math.Max(w, q+0.5*st.em+width(st.tick, s.Label))
+			// 0.5 em of slack: hinted glyphs can draw wider than measured.
+			w = math.Max(w, q+0.5*st.em+width(st.tick, s.Label)+0.5*st.em)
 		}
 		ht := float64(len(b.Swatches)-1)*pitch + q
 		if b.Label != "" {

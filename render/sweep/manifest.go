@@ -207,6 +207,9 @@ func (m *manifest) write(dir string) error {
 	}
 	_, err = tmp.Write(data)
 	if err == nil {
+		err = tmp.Chmod(0o644)
+	}
+	if err == nil {
 		err = tmp.Sync()
 	}
 	if cerr := tmp.Close(); err == nil {

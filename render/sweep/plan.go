@@ -229,7 +229,9 @@ func (p *Plan) chooseScales(ctx context.Context) (render.Scales, error) {
 			}
 		}
 		for _, v := range f.Total(f.Line) {
-			imax = math.Max(imax, float64(v))
+			if x := float64(v); x > imax { // NaN (no disk) is never larger
+				imax = x
+			}
 		}
 		spec := f.Spectrum()
 		for _, v := range spec.Total() {

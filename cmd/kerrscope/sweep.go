@@ -1,0 +1,193 @@
+package main
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"os/signal"
+	"strings"
+	"syscall"
+
+	"kerrscope/render"
+	"kerrscope/render/sweep"
+	"kerrscope/scene"
+)
+
+// axesFlag collects the --vary specifications.
+type axesFlag struct{ axes *[]sweep.Axis }
+
+func (a axesFlag) String() string { return "" }
+func (a axesFlag) Set(v string) error {
+	ax, err := sweep.ParseAxis(v)
+	if err != nil {
+		return err
+	}
+	*a.axes = append(*a.axes, ax)
+	return nil
+}
+
+// shardFlag reads --shard K/N.
+type shardFlag struct{ s *sweep.Shard }
+
+func (s shardFlag) String() string { return "" }
+func (s shardFlag) Set(v string) error {
+	sh, err := sweep.ParseShard(v)
+	if err == nil {
+		*s.s = sh
+	}
+	return err
+}
+
+func runSweep(args []string, stdout, stderr io.Writer) error {
+	f := newFlags("sweep", stdout)
+	path, quiet, vals := sceneFlags(f)
+	var axes []sweep.Axis
+	f.fs.Var(axesFlag{&axes}, "vary", "swept value KEY=FROM:TO:COUNT[:SPACING], SPACING linear (default), log or log1m (1 − v log-spaced); KEY a flag or scene key, e.g. spin=0.5:0.999999:60:log1m; give it twice for a grid (required)")
+	var sh sweep.Shard
+	f.fs.Var(shardFlag{&sh}, "shard", "render only share K of N (frames with index mod N = K−1), e.g. --shard $SLURM_ARRAY_TASK_ID/8 (default 1/1)")
+	restart := f.fs.Bool("restart", false, "discard the sweep in the output directory and start over")
+	var sc render.Scales
+	f.float(&sc.GMin, "g-min", 0, "redshift colour scale lower end, 0 < g < 1 (default: from a pre-pass)")
+	f.float(&sc.GMax, "g-max", 0, "redshift colour scale upper end, g > 1 (default: from a pre-pass)")
+	f.float(&sc.IMax, "intensity-max", 0, "intensity colour scale maximum, > 0 (default: from a pre-pass)")
+	f.float(&sc.IDecades, "intensity-decades", 0, "decades on the log intensity scale, 0 < d ≤ 30 (default 4)")
+	f.float(&sc.RMin, "radius-min", 0, "radius colour scale lower end in M, > 0 (default: the smallest inner edge)")
+	f.float(&sc.RMax, "radius-max", 0, "radius colour scale upper end in M (default: the largest outer edge)")
+	f.float(&sc.FluxMax, "flux-max", 0, "spectrum plots' upper flux limit per keV, > 0 (default: from a pre-pass)")
+	if err := f.parse(args); err != nil {
+		return err
+	}
+	switch {
+	case len(axes) == 0:
+		return usagef("--vary is required: KEY=FROM:TO:COUNT[:SPACING], e.g. --vary spin=0.5:0.999999:60:log1m")
+	case len(axes) > sweep.MaxAxes:
+		return usagef("--vary is given %d times; a sweep varies at most %d values", len(axes), sweep.MaxAxes)
+	case len(axes) == 2 && axes[0].Key == axes[1].Key:
+		return usagef("--vary: %s is varied twice", axes[0].Key)
+	}
+	if err := checkScaleFlags(f, sc); err != nil {
+		return err
+	}
+	base := scene.Default()
+	if *path != "" {
+		var err error
+		if base, err = scene.Load(*path); err != nil {
+			return usagef("%v", err)
+		}
+	}
+	for _, p := range *vals {
+		if err := p.field.Set(&base, p.value); err != nil {
+			return usagef("--%s: %v", p.field.Flag, err)
+		}
+	}
+	plan, err := sweep.NewPlan(base, axes, sc)
+	var pe *sweep.PointError
+	switch {
+	case errors.As(err, &pe):
+		return usagef("--vary: %v", err)
+	case err != nil:
+		return usagef("%v", err)
+	}
+	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
+	defer stop()
+	rep, err := sweep.Run(ctx, plan, sweep.Options{Shard: sh, Restart: *restart, Version: version, Progress: progressWriter(*quiet, stderr)})
+	switch {
+	case errors.Is(err, sweep.ErrDefinitionChanged):
+		return usagef("--out %s: %v", plan.Dir(), err)
+	case errors.Is(err, context.Canceled):
+		return fmt.Errorf("interrupted: %d frames rendered and recorded in %s; run the same command again to finish", len(rep.Rendered), rep.Manifest)
+	case err != nil:
+		return err
+	}
+	var swept []string
+	for _, a := range axes {
+		swept = append(swept, a.String())
+	}
+	s := rep.Scales
+	fmt.Fprintf(stdout, "sweep of %d frames (%s) in %s\n", len(plan.Points), strings.Join(swept, " × "), plan.Dir())
+	fmt.Fprintf(stdout, "shard %s: %d frames, %d already finished, %d rendered now\n", rep.Shard, rep.Frames, rep.Skipped, len(rep.Rendered))
+	fmt.Fprintf(stdout, "scales: g %g–%g, intensity max %g (%g decades), radius %g–%g M, flux max %g per keV\n",
+		s.GMin, s.GMax, s.IMax, s.IDecades, s.RMin, s.RMax, s.FluxMax)
+	fmt.Fprintf(stdout, "manifest: %s\nwhen every shard is done: kerrscope sweep-merge --out %s\n", rep.Manifest, plan.Dir())
+	return nil
+}
+
+// checkScaleFlags checks the scale flags that were given.
+func checkScaleFlags(f *flags, sc render.Scales) error {
+	checks := []struct {
+		name string
+		ok   bool
+		want string
+	}{
+		{"g-min", sc.GMin > 0 && sc.GMin < 1, "between 0 and 1, exclusive"},
+		{"g-max", sc.GMax > 1, "above 1"},
+		{"intensity-max", sc.IMax > 0, "positive"},
+		{"intensity-decades", sc.IDecades > 0 && sc.IDecades <= 30, "above 0 and at most 30"},
+		{"radius-min", sc.RMin > 0, "positive"},
+		{"radius-max", sc.RMax > 0 && (!f.given("radius-min") || sc.RMax > sc.RMin), "positive and above --radius-min"},
+		{"flux-max", sc.FluxMax > 0, "positive"},
+	}
+	for _, c := range checks {
+		if f.given(c.name) && !c.ok {
+			return usagef("--%s %s: must be %s", c.name, f.fs.Lookup(c.name).Value, c.want)
+		}
+	}
+	return nil
+}
+
+// mapsFlag reads a comma-separated list of map names.
+type mapsFlag struct{ maps *[]string }
+
+func (m mapsFlag) String() string { return "" }
+func (m mapsFlag) Set(v string) error {
+	out := []string{}
+	if strings.TrimSpace(v) != "none" {
+		for _, x := range strings.Split(v, ",") {
+			x = strings.TrimSpace(x)
+			ok := false
+			for _, n := range scene.MapNames {
+				ok = ok || x == n
+			}
+			if !ok {
+				return fmt.Errorf("unknown map %q (valid: %s, or none)", x, strings.Join(scene.MapNames, ", "))
+			}
+			out = append(out, x)
+		}
+	}
+	*m.maps = out
+	return nil
+}
+
+func runSweepMerge(args []string, stdout, stderr io.Writer) error {
+	f := newFlags("sweep-merge", stdout)
+	dir := f.fs.String("out", "", "the sweep's output directory (required)")
+	var maps []string
+	f.fs.Var(mapsFlag{&maps}, "gif", "comma-separated maps to animate, or none (default: the sweep's first map)")
+	delay := f.fs.Int("delay-ms", 100, "time each GIF frame is shown, in ms: a multiple of 10 from 10 to 655350")
+	if err := f.parse(args); err != nil {
+		return err
+	}
+	if strings.TrimSpace(*dir) == "" {
+		return usagef("--out is required: the directory of the sweep")
+	}
+	if d := *delay; d < 10 || d > 655350 || d%10 != 0 {
+		return usagef("--delay-ms %d: must be a multiple of 10 from 10 to 655350 (GIF timing is in steps of 10 ms)", d)
+	}
+	if st, err := os.Stat(*dir); err != nil || !st.IsDir() {
+		return usagef("--out %s: not a directory", *dir)
+	}
+	if !f.given("gif") {
+		maps = nil
+	}
+	files, err := sweep.Merge(*dir, sweep.MergeOptions{GIFs: maps, DelayMS: *delay})
+	if err != nil {
+		return err
+	}
+	fmt.Fprintf(stdout, "wrote %d files:\n", len(files))
+	for _, p := range files {
+		fmt.Fprintf(stdout, "  %s\n", p)
+	}
+	return nil
+}

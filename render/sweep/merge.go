@@ -1,0 +1,350 @@
+package sweep
+
+import (
+	"bytes"
+	"encoding/csv"
+	"errors"
+	"fmt"
+	"image"
+	"image/color"
+	"image/gif"
+	"image/png"
+	"io"
+	"math"
+	"os"
+	"path/filepath"
+	"slices"
+	"strconv"
+	"strings"
+
+	"kerrscope/colormap"
+	"kerrscope/render"
+	"kerrscope/render/figure"
+	"kerrscope/scene"
+)
+
+// MergeOptions control Merge.
+type MergeOptions struct {
+	// GIFs are the maps to animate, one GIF each; nil means the first
+	// map of the sweep, and an empty non-nil slice none.
+	GIFs []string
+	// DelayMS is the time each GIF frame is shown, a multiple of 10 ms
+	// from 10 to 655350; 0 means 100.
+	DelayMS int
+}
+
+// Merge reads every shard manifest in dir, checks that they describe one
+// sweep with one set of scales and that every frame is finished with
+// intact files, and writes: sweep-MAP.gif for each map asked for (the
+// frames' 8-bit palette images in frame order, looping), the line
+// profiles of all frames in one plot colour-coded by the first axis
+// (sweep-spectra.png; for a grid, sweep-spectra-NN.png for each value NN
+// of the second axis), if the sweep wrote spectra, and sweep-frames.csv,
+// the frame numbers with their swept values. It returns the paths
+// written; on error nothing is written.
+func Merge(dir string, opt MergeOptions) ([]string, error) {
+	delay := opt.DelayMS
+	if delay == 0 {
+		delay = 100
+	}
+	if delay < 10 || delay > 655350 || delay%10 != 0 {
+		return nil, fmt.Errorf("frame delay %d ms: must be a multiple of 10 ms from 10 to 655350", opt.DelayMS)
+	}
+	ms, err := loadManifests(dir)
+	if err != nil {
+		return nil, err
+	}
+	if len(ms) == 0 {
+		return nil, fmt.Errorf("%s holds no sweep manifest (sweep-shard-K-of-N.json); run kerrscope sweep first", dir)
+	}
+	for _, m := range ms[1:] {
+		if ok, what := ms[0].Definition.same(m.Definition); !ok {
+			return nil, fmt.Errorf("%s and %s describe different sweeps (%s differs)", ms[0].name, m.name, what)
+		}
+	}
+	sc, err := agreedScales(ms)
+	if err != nil {
+		return nil, err
+	}
+	p, err := planOf(ms[0].Definition, dir)
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", ms[0].name, err)
+	}
+	if err := p.checkComplete(ms); err != nil {
+		return nil, err
+	}
+	maps := opt.GIFs
+	if maps == nil {
+		maps = p.Base.Output.Maps[:1]
+	}
+	for _, m := range maps {
+		if !slices.Contains(p.Base.Output.Maps, m) {
+			return nil, fmt.Errorf("map %q is not in the sweep (its maps: %s)", m, strings.Join(p.Base.Output.Maps, ", "))
+		}
+	}
+
+	out, err := render.NewOutputs(dir)
+	if err != nil {
+		return nil, err
+	}
+	fail := func(err error) ([]string, error) {
+		out.Abort()
+		return nil, err
+	}
+	for _, m := range maps {
+		anim, err := p.animation(m, delay/10)
+		if err != nil {
+			return fail(err)
+		}
+		if err := out.Write("sweep-"+m+".gif", func(w io.Writer) error { return gif.EncodeAll(w, anim) }); err != nil {
+			return fail(err)
+		}
+	}
+	if p.Base.Output.Has("csv") {
+		plots, err := p.spectraPlots(sc)
+		if err != nil {
+			return fail(err)
+		}
+		for _, pl := range plots {
+			img, err := figure.DrawPlot(pl.plot)
+			if err != nil {
+				return fail(fmt.Errorf("%s: %w", pl.name, err))
+			}
+			if err := out.Write(pl.name, func(w io.Writer) error { return figure.EncodePNG(w, img) }); err != nil {
+				return fail(err)
+			}
+		}
+	}
+	if err := out.Write("sweep-frames.csv", p.writeTable); err != nil {
+		return fail(err)
+	}
+	return out.Commit()
+}
+
+// planOf rebuilds the plan a manifest definition describes.
+func planOf(d definition, dir string) (*Plan, error) {
+	base, err := scene.Parse("scene_toml", []byte(d.Scene))
+	if err != nil {
+		return nil, err
+	}
+	base.Output.Directory = dir
+	return NewPlan(base, d.Axes, d.Fixed.scales())
+}
+
+// checkComplete reports the frames that no manifest records with intact
+// files.
+func (p *Plan) checkComplete(ms []*manifest) error {
+	known := map[int][]frameRecord{}
+	for _, m := range ms {
+		for _, fr := range m.Frames {
+			known[fr.Index] = append(known[fr.Index], fr)
+		}
+	}
+	var missing []string
+	n := 0
+	for _, pt := range p.Points {
+		ok := false
+		for _, fr := range known[pt.Index] {
+			if ok = p.verify(fr, pt); ok {
+				break
+			}
+		}
+		if !ok {
+			n++
+			if len(missing) < 8 {
+				missing = append(missing, strconv.Itoa(pt.Index))
+			}
+		}
+	}
+	if n > 0 {
+		more := ""
+		if n > len(missing) {
+			more = ", …"
+		}
+		return fmt.Errorf("%d of %d frames are not finished or their files changed (frames %s%s); run the sweep again (every shard) to complete them",
+			n, len(p.Points), strings.Join(missing, ", "), more)
+	}
+	return nil
+}
+
+// animation assembles the palette images of map m into a looping GIF
+// with delay centiseconds per frame.
+func (p *Plan) animation(m string, delay int) (*gif.GIF, error) {
+	pal := MapPalette(m)
+	r := p.Points[0].Scene
+	anim := &gif.GIF{Config: image.Config{ColorModel: pal, Width: r.Screen.Width, Height: r.Screen.Height}}
+	for _, pt := range p.Points {
+		name := p.framePrefix(pt.Index) + "-" + m + "-indexed.png"
+		data, err := os.ReadFile(filepath.Join(p.Dir(), name))
+		if err != nil {
+			return nil, err
+		}
+		im, err := png.Decode(bytes.NewReader(data))
+		if err != nil {
+			return nil, fmt.Errorf("%s: %w", name, err)
+		}
+		pi, ok := im.(*image.Paletted)
+		if !ok || !samePalette(pi.Palette, pal) || pi.Rect.Dx() != r.Screen.Width || pi.Rect.Dy() != r.Screen.Height {
+			return nil, fmt.Errorf("%s is not a %d×%d palette image of the %s map", name, r.Screen.Width, r.Screen.Height, m)
+		}
+		pi.Palette = pal
+		anim.Image = append(anim.Image, pi)
+		anim.Delay = append(anim.Delay, delay)
+	}
+	return anim, nil
+}
+
+// samePalette reports whether two palettes hold the same colours.
+func samePalette(a, b color.Palette) bool {
+	if len(a) != len(b) {
+		return false
+	}
+	for i := range a {
+		r1, g1, b1, a1 := a[i].RGBA()
+		r2, g2, b2, a2 := b[i].RGBA()
+		if r1 != r2 || g1 != g2 || b1 != b2 || a1 != a2 {
+			return false
+		}
+	}
+	return true
+}
+
+// namedPlot is a plot and its file name.
+type namedPlot struct {
+	name string
+	plot figure.Plot
+}
+
+// Where the spectra's colours lie on colormap.Sequential: its lightest
+// end would vanish on the white plot.
+const seqLo, seqHi = 0.0, 0.8
+
+// spectraPlots returns one plot of all frames' total line profiles,
+// coloured by the first axis; for a grid, one plot per value of the
+// second axis.
+func (p *Plan) spectraPlots(sc render.Scales) ([]namedPlot, error) {
+	a := p.Axes[0]
+	groups := [][]Point{p.Points}
+	if len(p.Axes) == 2 {
+		n1 := p.Axes[1].Count
+		groups = make([][]Point, n1)
+		for _, pt := range p.Points {
+			groups[pt.Index%n1] = append(groups[pt.Index%n1], pt)
+		}
+	}
+	base := p.Points[0].Scene
+	bar := &figure.ColorBar{Label: a.Key}
+	for i := 0; i < 256; i++ {
+		bar.Colors = append(bar.Colors, colormap.Sequential.At(seqLo+(seqHi-seqLo)*float64(i)/255))
+	}
+	for _, v := range a.ticks() {
+		t := a.Position(v)
+		if a.To < a.From {
+			t = 1 - t
+		}
+		bar.Ticks = append(bar.Ticks, figure.Tick{T: math.Min(1, math.Max(0, t)), Label: formatValue(v)})
+	}
+	var out []namedPlot
+	for j, g := range groups {
+		pl := figure.Plot{
+			Title:    "line profiles over the sweep",
+			Subtitle: fmt.Sprintf("%d frames, %s from %s to %s (%s spacing)", len(g), a.Key, formatValue(a.From), formatValue(a.To), a.Spacing),
+			XLabel:   "observed energy E [keV]",
+			YLabel:   "photon flux density F_E [keV⁻¹, relative]",
+			YMax:     sc.FluxMax,
+			Bar:      bar,
+		}
+		if len(p.Axes) == 2 {
+			pl.Subtitle += fmt.Sprintf("; %s = %s", p.Axes[1].Key, formatValue(g[0].Values[1]))
+		}
+		if !slices.Contains([]string{a.Key, axisKey(p, 1)}, "emission.line_kev") {
+			pl.VLines = []figure.VLine{{X: base.Emission.LineKeV, Label: fmt.Sprintf("%g keV rest", base.Emission.LineKeV), Color: color.RGBA{0x60, 0x60, 0x60, 0xff}, Dashed: true}}
+		}
+		xlo, xhi := math.Inf(1), math.Inf(-1)
+		for _, pt := range g {
+			name := p.framePrefix(pt.Index) + "-spectrum.csv"
+			e, lo, hi, flux, err := readSpectrum(filepath.Join(p.Dir(), name))
+			if err != nil {
+				return nil, fmt.Errorf("%s: %w", name, err)
+			}
+			xlo, xhi = math.Min(xlo, lo), math.Max(xhi, hi)
+			t := a.Position(pt.Values[0])
+			if a.To < a.From {
+				t = 1 - t
+			}
+			pl.Series = append(pl.Series, figure.Series{X: e, Y: flux, Width: 1.5,
+				Color: colormap.Sequential.At(seqLo + (seqHi-seqLo)*t)})
+		}
+		pl.XMin, pl.XMax = xlo, xhi
+		name := "sweep-spectra.png"
+		if len(p.Axes) == 2 {
+			name = fmt.Sprintf("sweep-spectra-%0*d.png", max(2, len(strconv.Itoa(p.Axes[1].Count-1))), j)
+		}
+		out = append(out, namedPlot{name, pl})
+	}
+	return out, nil
+}
+
+// axisKey returns the key of axis i, or "".
+func axisKey(p *Plan, i int) string {
+	if i < len(p.Axes) {
+		return p.Axes[i].Key
+	}
+	return ""
+}
+
+// readSpectrum reads a spectrum CSV written by render.Spectrum.WriteCSV:
+// bin centres, the lowest and highest bin edge, and the total flux
+// density per keV.
+func readSpectrum(path string) (e []float64, lo, hi float64, flux []float64, err error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, 0, 0, nil, err
+	}
+	defer f.Close()
+	r := csv.NewReader(f)
+	r.Comment = '#'
+	rows, err := r.ReadAll()
+	if err != nil {
+		return nil, 0, 0, nil, err
+	}
+	if len(rows) < 2 || len(rows[0]) < 4 || rows[0][0] != "energy_kev" || rows[0][1] != "energy_lo_kev" || rows[0][2] != "energy_hi_kev" || rows[0][3] != "flux_total" {
+		return nil, 0, 0, nil, errors.New("not a spectrum table (energy_kev, energy_lo_kev, energy_hi_kev, flux_total, ...)")
+	}
+	lo, hi = math.Inf(1), math.Inf(-1)
+	for i, row := range rows[1:] {
+		var v [4]float64
+		for c := range v {
+			if v[c], err = strconv.ParseFloat(row[c], 64); err != nil {
+				return nil, 0, 0, nil, fmt.Errorf("row %d: %w", i+1, err)
+			}
+		}
+		e, flux = append(e, v[0]), append(flux, v[3])
+		lo, hi = math.Min(lo, v[1]), math.Max(hi, v[2])
+	}
+	return e, lo, hi, flux, nil
+}
+
+// writeTable writes sweep-frames.csv: frame number, file prefix and the
+// swept values of every frame.
+func (p *Plan) writeTable(w io.Writer) error {
+	fmt.Fprintf(w, "# kerrscope sweep: %d frames; swept:", len(p.Points))
+	for _, a := range p.Axes {
+		fmt.Fprintf(w, " %s", a)
+	}
+	fmt.Fprint(w, "\nframe,prefix")
+	for _, a := range p.Axes {
+		fmt.Fprintf(w, ",%s", a.Key)
+	}
+	fmt.Fprintln(w)
+	for _, pt := range p.Points {
+		fmt.Fprintf(w, "%d,%s", pt.Index, p.framePrefix(pt.Index))
+		for _, v := range pt.Values {
+			fmt.Fprintf(w, ",%s", formatValue(v))
+		}
+		if _, err := fmt.Fprintln(w); err != nil {
+			return err
+		}
+	}
+	return nil
+}
