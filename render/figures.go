@@ -251,7 +251,7 @@ func (s Scales) gPosition(g float64) float64 {
 // niceRatios returns tick values of g between GMin and GMax, at least
 // 0.07 apart on the colour bar, always including g = 1.
 func niceRatios(sc Scales) []float64 {
-	cands := []float64{1, 0.5, 2, 0.2, 5, 0.1, 10, 0.3, 3, 0.7, 1.5, 0.4, 0.6, 0.8, 1.2, 1.1, 1.3, 4, 0.9, 1.4, 1.05, 0.95}
+	cands := []float64{1, 0.5, 2, 0.2, 5, 0.1, 10, 0.05, 0.02, 0.01, 0.005, 0.3, 3, 0.7, 1.5, 0.4, 0.6, 0.8, 1.2, 1.1, 1.3, 4, 0.9, 1.4, 1.05, 0.95}
 	var out []float64
 	for _, g := range cands {
 		if g < sc.GMin*0.999 || g > sc.GMax*1.001 {

@@ -23,7 +23,7 @@ func NewOutputs(dir string) (*Outputs, error) {
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return nil, fmt.Errorf("output directory: %w", err)
 	}
-	stage, err := os.MkdirTemp(dir, ".kerrscope-partial-")
+	stage, err := os.MkdirTemp(dir, fmt.Sprintf(".kerrscope-partial-%d-", os.Getpid()))
 	if err != nil {
 		return nil, fmt.Errorf("output directory: %w", err)
 	}

@@ -24,7 +24,7 @@ type Summary struct {
 	Band    *BandReport // when Options.Band
 }
 
-// Frame renders the scene's frame: one photon per pixel centre, or with
+// RenderScene renders the scene's frame: one photon per pixel centre, or with
 // adaptive refinement when the scene asks for it.
 func RenderScene(ctx context.Context, r scene.Resolved, progress func(rows int)) (*Frame, error) {
 	if r.Refine.Depth > 0 {

@@ -203,3 +203,25 @@ func TestFITSReadByAstropy(t *testing.T) {
 		}
 	}
 }
+
+func TestZoomWindow(t *testing.T) {
+	// A window 1e-6 M wide on the near-extremal vertical piece: distinct,
+	// evenly spaced pixel centres and a figure whose axes stay readable.
+	r := resolve(t, func(s *scene.Scene) {
+		s.Hole.Spin, s.Observer.InclinationDeg = 1-1e-8, 75
+		s.Screen.Width, s.Screen.Height = 32, 32
+		s.Screen.FieldOfView = 1e-6
+		s.Screen.CenterAlpha, s.Screen.CenterBeta = -2.0707, 0.3
+		s.Output.Directory = t.TempDir()
+		s.Output.Maps = []string{"redshift", "shadow"}
+	})
+	for i := 1; i < 32; i++ {
+		d := PixelAlpha(r, i) - PixelAlpha(r, i-1)
+		if math.Abs(d-1e-6/32) > 1e-9*1e-6 {
+			t.Fatalf("column spacing %v", d)
+		}
+	}
+	if _, err := Run(context.Background(), r, Options{Version: "test"}); err != nil {
+		t.Fatal(err)
+	}
+}

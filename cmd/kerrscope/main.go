@@ -48,7 +48,7 @@ func usage(w io.Writer) {
 	fmt.Fprintln(w, "\nusage: kerrscope <command> [flags]   (kerrscope <command> --help for its flags)")
 	fmt.Fprintln(w, "\ncommands:")
 	for _, c := range commands() {
-		fmt.Fprintf(w, "  %-9s %s\n", c.name, c.summary)
+		fmt.Fprintf(w, "  %-12s %s\n", c.name, c.summary)
 	}
 }
 

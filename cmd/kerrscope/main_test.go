@@ -3,6 +3,8 @@ package main
 import (
 	"bytes"
 	"encoding/json"
+	"math"
+	"os"
 	"strings"
 	"testing"
 )
@@ -76,5 +78,87 @@ func TestProbeText(t *testing.T) {
 	code, out, _ := runCLI("probe", "--alpha", "0", "--beta", "0", "--spin", "0", "--inclination", "0")
 	if code != 0 || !strings.Contains(out, "horizon") {
 		t.Errorf("exit %d: %s", code, out)
+	}
+}
+
+func TestLensingCLI(t *testing.T) {
+	code, out, _ := runCLI("lensing", "--spin", "0", "--inclination", "0", "--directions", "30", "--orders", "4", "--json")
+	if code != 0 {
+		t.Fatalf("exit %d", code)
+	}
+	var m struct {
+		Bands []struct {
+			Order int     `json:"order"`
+			Width float64 `json:"width"`
+			Ratio float64 `json:"ratio_to_previous"`
+		} `json:"bands"`
+	}
+	if err := json.Unmarshal([]byte(out), &m); err != nil || len(m.Bands) != 4 {
+		t.Fatalf("%v: %s", err, out)
+	}
+	// Successive widths shrink by ≈ e^{-π} for a = 0 (Johnson et al. 2020).
+	if r := m.Bands[3].Ratio; r < 0.042 || r > 0.0445 {
+		t.Errorf("ratio %v", r)
+	}
+	for _, bad := range [][]string{{"--orders", "0"}, {"--directions", "north"}, {"--spin", "2"}} {
+		if code, _, errs := runCLI(append([]string{"lensing"}, bad...)...); code != 2 || !strings.Contains(errs, bad[0]) {
+			t.Errorf("%v: exit %d %q", bad, code, errs)
+		}
+	}
+}
+
+func TestLocateCLI(t *testing.T) {
+	dir := t.TempDir()
+	code, out, errs := runCLI("locate", "--spin", "0.9", "--inclination", "60", "--width", "48", "--height", "48",
+		"--band-min", "isco", "--band-max", "isco*1.2", "--refine-depth", "2", "--formats", "csv", "--out", dir, "--quiet")
+	if code != 0 || !strings.Contains(out, "fraction of the window's line flux") {
+		t.Fatalf("exit %d: %s %s", code, out, errs)
+	}
+	for _, bad := range [][]string{{"--band-min", "iscoo"}, {"--band-min", "5", "--band-max", "4"}, {"--refine-depth", "-1"}} {
+		args := append([]string{"locate", "--out", dir, "--width", "8", "--height", "8"}, bad...)
+		if code, _, errs := runCLI(args...); code != 2 || strings.Count(errs, "\n") != 1 {
+			t.Errorf("%v: exit %d %q", bad, code, errs)
+		}
+	}
+}
+
+func TestRenderCLIRejects(t *testing.T) {
+	dir := t.TempDir()
+	for _, bad := range [][]string{{"--spin", "1.5"}, {"--width", "0"}, {"--outer", "1"}, {"--fwhm", "-1"}, {"--maps", "sky"}, {"--spin", "fast"}, {"--scene", "/nonexistent.toml"}} {
+		args := append([]string{"render", "--out", dir}, bad...)
+		code, out, errs := runCLI(args...)
+		if code != 2 || out != "" || strings.Count(errs, "\n") != 1 {
+			t.Errorf("%v: exit %d, %q %q", bad, code, out, errs)
+		}
+	}
+	entries, _ := os.ReadDir(dir)
+	if len(entries) != 0 {
+		t.Errorf("rejected runs left %v", entries)
+	}
+}
+
+func TestProbeReportsG(t *testing.T) {
+	code, out, _ := runCLI("probe", "--spin", "0", "--inclination", "0", "--alpha", "10", "--beta", "0", "--outer", "50", "--json")
+	if code != 0 {
+		t.Fatal(code)
+	}
+	var m struct {
+		Crossings []struct {
+			R float64  `json:"r"`
+			G *float64 `json:"g"`
+		} `json:"crossings"`
+	}
+	json.Unmarshal([]byte(out), &m)
+	if len(m.Crossings) == 0 || m.Crossings[0].G == nil {
+		t.Fatalf("%s", out)
+	}
+	// Face-on Schwarzschild: g = sqrt(1 - 3/r) (Cunningham 1975).
+	c := m.Crossings[0]
+	if want := math.Sqrt(1 - 3/c.R); math.Abs(*c.G-want) > 1e-12 {
+		t.Errorf("g = %v at r = %v, want %v", *c.G, c.R, want)
+	}
+	code, out, _ = runCLI("probe", "--spin", "0", "--inclination", "0", "--alpha", "10", "--beta", "0", "--outer", "8", "--json")
+	if code != 0 || !strings.Contains(out, `"g":null`) {
+		t.Errorf("crossing beyond the outer edge should have g null: %s", out)
 	}
 }

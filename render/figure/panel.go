@@ -279,8 +279,9 @@ func drawPanel(p Panel, zoom float64) (*image.RGBA, image.Rectangle, error) {
 	for _, c := range p.Contours {
 		drawContourLines(dc, st, c, ax)
 	}
+	win := [4]float64{p.X.Min, p.X.Max, p.Y.Min, p.Y.Max}
 	for _, l := range p.Lines {
-		drawPolyline(dc, st, l, toFig)
+		drawPolyline(dc, st, l, win, toFig)
 	}
 	for _, c := range p.Contours {
 		drawContourLabel(dc, st, c, ax)
@@ -387,37 +388,82 @@ func lineWidth(st *styles, w float64) float64 {
 }
 
 // drawPolyline strokes l, mapped to figure coordinates by toFig, breaking
-// it at points that are not finite.
-func drawPolyline(dc *gg.Context, st *styles, l Polyline, toFig func(x, y float64) (float64, float64)) {
+// it at points that are not finite. Segments are clipped to the data
+// window win (x0, x1, y0, y1) widened by 2% first, so that a line mostly
+// far outside a zoomed window does not make the rasteriser walk millions
+// of pixels (and dashes) off the figure.
+func drawPolyline(dc *gg.Context, st *styles, l Polyline, win [4]float64, toFig func(x, y float64) (float64, float64)) {
 	setStroke(dc, orBlack(l.Color), lineWidth(st, l.Width), l.Dashed)
 	dc.SetLineCapRound()
 	dc.SetLineJoinRound()
 	finite := func(p [2]float64) bool {
 		return !math.IsNaN(p[0]) && !math.IsNaN(p[1]) && !math.IsInf(p[0], 0) && !math.IsInf(p[1], 0)
 	}
-	allFinite := true
-	for _, p := range l.Points {
-		allFinite = allFinite && finite(p)
+	mx, my := 0.02*(win[1]-win[0]), 0.02*(win[3]-win[2])
+	box := [4]float64{win[0] - mx, win[1] + mx, win[2] - my, win[3] + my}
+	pts := l.Points
+	n := len(pts)
+	segs := n - 1
+	if l.Closed && n > 2 {
+		segs = n
 	}
+	var last [2]float64
 	pen := false
-	for _, p := range l.Points {
-		if !finite(p) {
+	for i := 0; i < segs; i++ {
+		p, q := pts[i], pts[(i+1)%n]
+		if !finite(p) || !finite(q) {
 			pen = false
 			continue
 		}
-		x, y := toFig(p[0], p[1])
-		if pen {
-			dc.LineTo(x, y)
-		} else {
-			dc.MoveTo(x, y)
-			pen = true
+		a, b, ok := clipSegment(p, q, box)
+		if !ok {
+			pen = false
+			continue
 		}
-	}
-	if l.Closed && allFinite && len(l.Points) > 2 {
-		dc.ClosePath()
+		if !pen || a != last {
+			x, y := toFig(a[0], a[1])
+			dc.MoveTo(x, y)
+		}
+		x, y := toFig(b[0], b[1])
+		dc.LineTo(x, y)
+		last, pen = b, true
 	}
 	dc.Stroke()
 	dc.SetDash()
+}
+
+// clipSegment clips the segment p–q to the box (x0, x1, y0, y1) by the
+// Liang–Barsky method (Liang & Barsky 1984, ACM Trans. Graph. 3, 1).
+func clipSegment(p, q [2]float64, box [4]float64) ([2]float64, [2]float64, bool) {
+	t0, t1 := 0.0, 1.0
+	dx, dy := q[0]-p[0], q[1]-p[1]
+	for _, c := range [4][2]float64{{-dx, p[0] - box[0]}, {dx, box[1] - p[0]}, {-dy, p[1] - box[2]}, {dy, box[3] - p[1]}} {
+		pp, qq := c[0], c[1]
+		if pp == 0 {
+			if qq < 0 {
+				return p, q, false
+			}
+			continue
+		}
+		r := qq / pp
+		if pp < 0 {
+			t0 = math.Max(t0, r)
+		} else {
+			t1 = math.Min(t1, r)
+		}
+		if t0 > t1 {
+			return p, q, false
+		}
+	}
+	a := [2]float64{p[0] + t0*dx, p[1] + t0*dy}
+	b := [2]float64{p[0] + t1*dx, p[1] + t1*dy}
+	if t0 == 0 {
+		a = p
+	}
+	if t1 == 1 {
+		b = q
+	}
+	return a, b, true
 }
 
 // contourPaths returns the pieces of c in figure coordinates of the map

@@ -11,6 +11,7 @@ package sweep
 import (
 	"fmt"
 	"math"
+	"math/big"
 	"strconv"
 	"strings"
 
@@ -63,10 +64,10 @@ var fixedKeys = map[string]string{
 	"spectrum.energy_max_kev": "every spectrum of a sweep shares one energy range",
 }
 
-// NumericField returns the scene field named by a flag name ("spin") or
+// numericField returns the scene field named by a flag name ("spin") or
 // a scene key ("black_hole.spin") if a sweep can vary it: it must take a
 // real number and must not be one of the values all frames share.
-func NumericField(name string) (scene.Field, error) {
+func numericField(name string) (scene.Field, error) {
 	for _, f := range scene.Fields() {
 		if f.Flag != name && f.Key != name {
 			continue
@@ -99,7 +100,7 @@ func ParseAxis(spec string) (Axis, error) {
 	if !ok {
 		return Axis{}, fmt.Errorf("want KEY=FROM:TO:COUNT[:SPACING], e.g. spin=0.5:0.999999:60:log1m")
 	}
-	f, err := NumericField(strings.TrimSpace(key))
+	f, err := numericField(strings.TrimSpace(key))
 	if err != nil {
 		return Axis{}, err
 	}
@@ -136,7 +137,7 @@ func (a Axis) String() string {
 // 1 to MaxFrames, finite distinct ends (equal ends exactly when the count
 // is 1) and ends that its spacing allows.
 func (a Axis) Validate() error {
-	if _, err := NumericField(a.Key); err != nil {
+	if _, err := numericField(a.Key); err != nil {
 		return err
 	}
 	if a.Count < 1 || a.Count > MaxFrames {
@@ -189,12 +190,12 @@ func (a Axis) Values() ([]float64, error) {
 	switch a.Spacing {
 	case Linear:
 		u0, u1 = a.From, a.To
-	case Log:
-		u0, u1 = math.Log(a.From), math.Log(a.To)
-		inv = math.Exp
+	case Log: // in log10, so that ends on decades give round values between
+		u0, u1 = math.Log10(a.From), math.Log10(a.To)
+		inv = func(u float64) float64 { return math.Pow(10, u) }
 	case Log1m:
-		u0, u1 = math.Log(1-a.From), math.Log(1-a.To)
-		inv = func(u float64) float64 { return 1 - math.Exp(u) }
+		u0, u1 = math.Log10(oneMinus(a.From)), math.Log10(oneMinus(a.To))
+		inv = func(u float64) float64 { return 1 - math.Pow(10, u) }
 	}
 	for k := range out {
 		t := float64(k) / float64(n-1)
@@ -220,7 +221,7 @@ func (a Axis) Position(v float64) float64 {
 	case Log:
 		return (math.Log(v) - math.Log(a.From)) / (math.Log(a.To) - math.Log(a.From))
 	case Log1m:
-		return (math.Log(1-v) - math.Log(1-a.From)) / (math.Log(1-a.To) - math.Log(1-a.From))
+		return (math.Log(oneMinus(v)) - math.Log(oneMinus(a.From))) / (math.Log(oneMinus(a.To)) - math.Log(oneMinus(a.From)))
 	}
 	return (v - a.From) / (a.To - a.From)
 }
@@ -278,6 +279,19 @@ func roundTo(v, step float64) float64 {
 	digits := max(0, int(-math.Floor(math.Log10(step)))+1)
 	r, _ := strconv.ParseFloat(strconv.FormatFloat(v, 'f', digits, 64), 64)
 	return r
+}
+
+// oneMinus returns 1 − v computed from v's shortest decimal form, so that
+// an end written 0.999999 gives 1 − v = 1e-6 rather than the 1.0000000000287557e-06
+// of float64 subtraction, and values between ends on decades come out
+// round (0.99, 0.999, ...).
+func oneMinus(v float64) float64 {
+	r, ok := new(big.Rat).SetString(formatValue(v))
+	if !ok {
+		return 1 - v
+	}
+	f, _ := r.Sub(big.NewRat(1, 1), r).Float64()
+	return f
 }
 
 // formatValue writes a swept value exactly (shortest round-trip form).

@@ -1,14 +1,18 @@
 package sweep
 
 import (
+	"bytes"
 	"context"
 	"fmt"
 	"image"
 	"image/color"
 	"io"
 	"math"
+	"runtime"
 	"slices"
 	"strings"
+	"sync"
+	"sync/atomic"
 
 	"kerrscope/colormap"
 	"kerrscope/raytrace"
@@ -20,12 +24,12 @@ import (
 // staged.
 var hookStaged func(index int, name string)
 
-// writeFrame renders point pt and commits its files (FileNames) into the
+// writeFrame renders point pt and commits its files (fileNames) into the
 // output directory through render.Outputs, so that an error or a
 // cancelled ctx leaves none of them behind. It returns their records,
 // sorted by name.
 func (p *Plan) writeFrame(ctx context.Context, pt Point, sc render.Scales, version string) ([]fileRecord, error) {
-	f, err := render.Render(ctx, pt.Scene, nil)
+	f, err := render.RenderScene(ctx, pt.Scene, nil)
 	if err != nil {
 		return nil, err
 	}
@@ -52,7 +56,7 @@ func (p *Plan) writeFrame(ctx context.Context, pt Point, sc render.Scales, versi
 		}
 		return nil
 	}
-	if err := p.stageFrame(f, pt, sc, version, put); err != nil {
+	if err := p.stageFrame(ctx, f, pt, sc, version, put); err != nil {
 		out.Abort()
 		return nil, err
 	}
@@ -67,47 +71,106 @@ func (p *Plan) writeFrame(ctx context.Context, pt Point, sc render.Scales, versi
 	return recs, nil
 }
 
-// stageFrame writes every file of the frame through put.
-func (p *Plan) stageFrame(f *render.Frame, pt Point, sc render.Scales, version string, put func(string, func(io.Writer) error) error) error {
+// staged is one encoded file of a frame.
+type staged struct {
+	name string
+	data []byte
+}
+
+// stageFrame writes every file of the frame through put, in a fixed
+// order. The images of the maps (figures, pixel-exact and palette PNGs,
+// the spectrum plot) are drawn and encoded on all cores at once, one map
+// per goroutine; the CSV and FITS tables are streamed.
+func (p *Plan) stageFrame(ctx context.Context, f *render.Frame, pt Point, sc render.Scales, version string, put func(string, func(io.Writer) error) error) error {
 	o := pt.Scene.Output
 	pre := p.framePrefix(pt.Index)
-	png := func(img image.Image) func(io.Writer) error {
-		return func(w io.Writer) error { return figure.EncodePNG(w, img) }
+	encode := func(name string, img image.Image) (staged, error) {
+		var b bytes.Buffer
+		err := figure.EncodePNG(&b, img)
+		return staged{name, b.Bytes()}, err
 	}
+	var jobs []func() ([]staged, error)
 	for _, m := range o.Maps {
+		jobs = append(jobs, func() ([]staged, error) {
+			var out []staged
+			var bare image.Image
+			if o.Has("png") {
+				panel := f.Panel(m, sc)
+				bare = panel.Image // the same image as MapImage(m, sc)
+				img, err := figure.DrawPanel(panel, 0)
+				if err != nil {
+					return nil, fmt.Errorf("%s figure: %w", m, err)
+				}
+				s, err := encode(pre+"-"+m+".png", img)
+				if err != nil {
+					return nil, err
+				}
+				out = append(out, s)
+			}
+			if o.Has("bare") {
+				if bare == nil {
+					bare = mapImage(f, m, sc)
+				}
+				s, err := encode(pre+"-"+m+"-bare.png", bare)
+				if err != nil {
+					return nil, err
+				}
+				out = append(out, s)
+			}
+			s, err := encode(pre+"-"+m+"-indexed.png", IndexedImage(f, m, sc))
+			return append(out, s), err
+		})
+	}
+	var spec render.Spectrum
+	if o.Has("csv") {
+		spec = f.Spectrum()
 		if o.Has("png") {
-			img, err := figure.DrawPanel(f.Panel(m, sc), 0)
-			if err != nil {
-				return fmt.Errorf("%s figure: %w", m, err)
+			jobs = append(jobs, func() ([]staged, error) {
+				title := fmt.Sprintf("line profile collapsed from the image, frame %d of %d", pt.Index, len(p.Points))
+				img, err := figure.DrawPlot(render.SpectrumPlot(&spec, title, f.Res.Caption(), sc.FluxMax))
+				if err != nil {
+					return nil, fmt.Errorf("spectrum figure: %w", err)
+				}
+				s, err := encode(pre+"-spectrum.png", img)
+				return []staged{s}, err
+			})
+		}
+	}
+	results := make([][]staged, len(jobs))
+	errs := make([]error, len(jobs))
+	var next atomic.Int64
+	var wg sync.WaitGroup
+	for range min(runtime.GOMAXPROCS(0), len(jobs)) {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for {
+				i := int(next.Add(1) - 1)
+				if i >= len(jobs) || ctx.Err() != nil {
+					return
+				}
+				results[i], errs[i] = jobs[i]()
 			}
-			if err := put(pre+"-"+m+".png", png(img)); err != nil {
+		}()
+	}
+	wg.Wait()
+	if err := ctx.Err(); err != nil {
+		return err
+	}
+	for i := range jobs {
+		if errs[i] != nil {
+			return errs[i]
+		}
+		for _, s := range results[i] {
+			if err := put(s.name, func(w io.Writer) error { _, err := w.Write(s.data); return err }); err != nil {
 				return err
 			}
-		}
-		if o.Has("bare") {
-			if err := put(pre+"-"+m+"-bare.png", png(f.MapImage(m, sc))); err != nil {
-				return err
-			}
-		}
-		if err := put(pre+"-"+m+"-indexed.png", png(IndexedImage(f, m, sc))); err != nil {
-			return err
 		}
 	}
 	if o.Has("csv") {
-		spec := f.Spectrum()
 		caption := f.Res.Caption()
 		if err := put(pre+"-spectrum.csv", func(w io.Writer) error { return spec.WriteCSV(w, caption) }); err != nil {
 			return err
-		}
-		if o.Has("png") {
-			title := fmt.Sprintf("line profile collapsed from the image, frame %d of %d", pt.Index, len(p.Points))
-			img, err := figure.DrawPlot(render.SpectrumPlot(&spec, title, caption, sc.FluxMax))
-			if err != nil {
-				return fmt.Errorf("spectrum figure: %w", err)
-			}
-			if err := put(pre+"-spectrum.png", png(img)); err != nil {
-				return err
-			}
 		}
 	}
 	if o.Has("fits") {
@@ -116,6 +179,50 @@ func (p *Plan) stageFrame(f *render.Frame, pt Point, sc render.Scales, version s
 		}
 	}
 	return nil
+}
+
+// mapImage is f.MapImage(m, sc) drawn in horizontal strips on all cores
+// for the maps whose pixels depend only on their own values (redshift,
+// intensity, radius): each strip is MapImage of a frame holding just
+// those rows. MapImage's colour lookup costs more than tracing the rays.
+// Scales that are not complete (which MapImage would complete from the
+// whole frame) draw the whole frame at once.
+func mapImage(f *render.Frame, m string, sc render.Scales) *image.RGBA {
+	n := min(runtime.GOMAXPROCS(0), f.H)
+	complete := sc.GMin > 0 && sc.GMin < 1 && sc.GMax > 1 && sc.IMax > 0 && sc.IDecades > 0 && sc.RMin > 0 && sc.RMax > sc.RMin
+	if n < 2 || !complete || !(m == "redshift" || m == "intensity" || m == "radius") {
+		return f.MapImage(m, sc)
+	}
+	img := image.NewRGBA(image.Rect(0, 0, f.W, f.H))
+	var wg sync.WaitGroup
+	for s := range n {
+		j0, j1 := s*f.H/n, (s+1)*f.H/n
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			part := rows(f, j0, j1).MapImage(m, sc)
+			copy(img.Pix[j0*img.Stride:j1*img.Stride], part.Pix)
+		}()
+	}
+	wg.Wait()
+	return img
+}
+
+// rows returns a frame of rows j0 to j1 of f, sharing its records.
+func rows(f *render.Frame, j0, j1 int) *render.Frame {
+	a, b := j0*f.W, j1*f.W
+	part := *f
+	part.H = j1 - j0
+	part.Fate, part.First = f.Fate[a:b], f.First[a:b]
+	cut := func(q [][]float32) [][]float32 {
+		out := make([][]float32, len(q))
+		for o := range q {
+			out[o] = q[o][a:b]
+		}
+		return out
+	}
+	part.R, part.G, part.Line, part.Bol = cut(f.R), cut(f.G), cut(f.Line), cut(f.Bol)
+	return &part
 }
 
 // The two fixed colours of the shadow map (as render draws them).

@@ -132,7 +132,7 @@ func (p *Plan) definition() (definition, error) {
 	s := p.Base
 	s.Output.Directory = ""
 	for _, a := range p.Axes {
-		f, _ := NumericField(a.Key)
+		f, _ := numericField(a.Key)
 		if err := f.Set(&s, formatValue(a.From)); err != nil {
 			return definition{}, err
 		}
@@ -251,7 +251,7 @@ func (p *Plan) verify(rec frameRecord, pt Point) bool {
 			return false
 		}
 	}
-	want := p.FileNames(pt.Index)
+	want := p.fileNames(pt.Index)
 	if len(rec.Files) != len(want) {
 		return false
 	}

@@ -71,7 +71,7 @@ func NewPlan(base scene.Scene, axes []Axis, fixed render.Scales) (*Plan, error) 
 			return nil, err
 		}
 		vals[i] = v
-		fields[i], _ = NumericField(a.Key)
+		fields[i], _ = numericField(a.Key)
 		total *= a.Count
 		if total > MaxFrames {
 			return nil, fmt.Errorf("the sweep has more than %d frames", MaxFrames)
@@ -84,12 +84,12 @@ func NewPlan(base scene.Scene, axes []Axis, fixed render.Scales) (*Plan, error) 
 		// Lists are shared with base; frames never modify them.
 		for i, f := range fields {
 			if err := f.Set(&s, formatValue(pt.Values[i])); err != nil {
-				return nil, &PointError{k, p.Label(pt.Values), err}
+				return nil, &PointError{k, p.label(pt.Values), err}
 			}
 		}
 		r, err := s.Resolve()
 		if err != nil {
-			return nil, &PointError{k, p.Label(pt.Values), err}
+			return nil, &PointError{k, p.label(pt.Values), err}
 		}
 		pt.Scene = r
 		p.Points = append(p.Points, pt)
@@ -106,8 +106,8 @@ func (p *Plan) valuesOf(k int, vals [][]float64) []float64 {
 	return []float64{vals[0][k/n1], vals[1][k%n1]}
 }
 
-// Label describes swept values, e.g. "black_hole.spin = 0.99".
-func (p *Plan) Label(values []float64) string {
+// label describes swept values, e.g. "black_hole.spin = 0.99".
+func (p *Plan) label(values []float64) string {
 	var parts []string
 	for i, v := range values {
 		parts = append(parts, p.Axes[i].Key+" = "+formatValue(v))
@@ -124,11 +124,11 @@ func (p *Plan) digits() int { return max(4, len(strconv.Itoa(len(p.Points)-1))) 
 // framePrefix returns "frame-0007" for frame 7.
 func (p *Plan) framePrefix(k int) string { return fmt.Sprintf("frame-%0*d", p.digits(), k) }
 
-// FileNames returns the files of frame k, sorted: for every map of the
+// fileNames returns the files of frame k, sorted: for every map of the
 // scene, the figure (format png), the pixel-exact image (bare) and the
 // 8-bit palette image the GIFs are made from (always); the spectrum as
 // CSV (csv) and plot (png and csv); the FITS maps (fits).
-func (p *Plan) FileNames(k int) []string {
+func (p *Plan) fileNames(k int) []string {
 	o := p.Base.Output
 	pre := p.framePrefix(k)
 	var out []string
@@ -219,7 +219,7 @@ func (p *Plan) chooseScales(ctx context.Context) (render.Scales, error) {
 				return sc, err
 			}
 		}
-		f, err := render.Render(ctx, r, nil)
+		f, err := render.RenderScene(ctx, r, nil)
 		if err != nil {
 			return sc, err
 		}

@@ -9,6 +9,7 @@ import (
 	"path/filepath"
 	"regexp"
 	"slices"
+	"strings"
 	"time"
 
 	"kerrscope/render"
@@ -95,7 +96,7 @@ func Run(ctx context.Context, p *Plan, opt Options) (Report, error) {
 			known[fr.Index] = append(known[fr.Index], fr)
 		}
 	}
-	own := &manifest{Format: manifestFormat, Program: "kerrscope " + opt.Version, Definition: def,
+	own := &manifest{Format: manifestFormat, Program: strings.TrimSpace("kerrscope " + opt.Version), Definition: def,
 		Scales: toRecord(sc), Shard: sh, Frames: []frameRecord{}}
 	var todo []Point
 	for _, pt := range p.Points {
@@ -122,7 +123,11 @@ func Run(ctx context.Context, p *Plan, opt Options) (Report, error) {
 		return rep, err
 	}
 
-	bar := render.NewProgress(opt.Progress, len(todo), fmt.Sprintf("sweep %s: frames", sh))
+	w := opt.Progress
+	if len(todo) == 0 {
+		w = nil
+	}
+	bar := render.NewProgress(w, len(todo), fmt.Sprintf("sweep %s: frames", sh))
 	defer bar.Done()
 	// The manifest is rewritten after every frame unless that would take
 	// more than a twentieth of the time (very long sweeps); the content
