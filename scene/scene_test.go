@@ -1,6 +1,7 @@
 package scene
 
 import (
+	"os"
 	"strings"
 	"testing"
 )
@@ -156,5 +157,29 @@ func TestFieldsSet(t *testing.T) {
 			t.Errorf("duplicate field %s / %s", f.Flag, f.Key)
 		}
 		seen[f.Flag], seen[f.Key] = true, true
+	}
+}
+
+func TestReadmeSceneExample(t *testing.T) {
+	// The scene example in README.md must parse and equal the defaults.
+	data, err := os.ReadFile("../README.md")
+	if err != nil {
+		t.Fatal(err)
+	}
+	text := string(data)
+	i := strings.Index(text, "```toml\n[black_hole]")
+	if i < 0 {
+		t.Fatal("no scene example in README.md")
+	}
+	block := text[i+len("```toml\n"):]
+	block = block[:strings.Index(block, "```")]
+	s, err := Parse("README.md", []byte(block))
+	if err != nil {
+		t.Fatal(err)
+	}
+	a, _ := s.TOML()
+	b, _ := Default().TOML()
+	if string(a) != string(b) {
+		t.Errorf("README example differs from the defaults:\n%s\n---\n%s", a, b)
 	}
 }
