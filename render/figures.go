@@ -70,57 +70,117 @@ func (s Scales) fill(f *Frame) Scales {
 	return s
 }
 
-// MapImage returns the pixel-exact colour image of a map (row 0 at the top).
-func (f *Frame) MapImage(name string, sc Scales) *image.RGBA {
-	sc = sc.fill(f)
-	img := image.NewRGBA(image.Rect(0, 0, f.W, f.H))
-	var first []float32
+// PixelClass is what a map pixel shows.
+type PixelClass uint8
+
+const (
+	NoDisk   PixelClass = iota // no disk seen, photon from infinity
+	Horizon                    // no disk seen, photon from the horizon
+	OnScale                    // a value on the map's colour scale (position in t)
+	Category                   // an image order (the order in t)
+	Escaped                    // shadow map: photon from infinity
+	Edge                       // shadow map: captured pixel on the ray-traced edge
+)
+
+// Colours of the shadow map's classes.
+var (
+	EscapedColor = color.RGBA{0xd8, 0xd8, 0xd4, 0xff}
+	EdgeColor    = color.RGBA{0xf0, 0x8c, 0x00, 0xff}
+)
+
+// MapScale returns the continuous colour scale of a map (the zero Map for
+// the categorical order and shadow maps).
+func MapScale(name string) colormap.Map {
 	switch name {
 	case "redshift":
-		first = f.FirstSeen(f.G)
-	case "intensity":
-		first = f.Total(f.Line)
-	case "radius":
-		first = f.FirstSeen(f.R)
+		return colormap.Redshift
+	case "intensity", "radius":
+		return colormap.Sequential
 	}
-	seq := colormap.Sequential
-	for k := range f.Fate {
-		c := colormap.NoHit
-		v := math.NaN()
-		if first != nil {
-			v = float64(first[k])
+	return colormap.Map{}
+}
+
+// MapPixels classifies every pixel of a map with the scales sc (completed
+// from the frame where zero): for OnScale pixels t is the position on the
+// colour scale in [0, 1], for Category pixels the image order.
+func (f *Frame) MapPixels(name string, sc Scales) (class []PixelClass, t []float64) {
+	sc = sc.fill(f)
+	class = make([]PixelClass, f.W*f.H)
+	t = make([]float64, f.W*f.H)
+	var v []float32
+	switch name {
+	case "redshift":
+		v = f.FirstSeen(f.G)
+	case "intensity":
+		v = f.Total(f.Line)
+	case "radius":
+		v = f.FirstSeen(f.R)
+	}
+	linear := f.Res.Output.IntensityScale == "linear"
+	ilo := sc.IMax * math.Pow(10, -sc.IDecades)
+	for k := range class {
+		captured := f.Fate[k] == raytrace.Captured
+		c := NoDisk
+		if captured {
+			c = Horizon
 		}
 		switch name {
-		case "redshift":
-			if !math.IsNaN(v) {
-				c = colormap.Redshift.At(sc.gPosition(v))
+		case "redshift", "intensity", "radius":
+			x := float64(v[k])
+			if math.IsNaN(x) {
+				break
 			}
-		case "intensity":
-			if !math.IsNaN(v) {
-				if f.Res.Output.IntensityScale == "linear" {
-					c = seq.At(colormap.Linear(v, 0, sc.IMax))
-				} else {
-					c = seq.At(colormap.Log(v, sc.IMax*math.Pow(10, -sc.IDecades), sc.IMax))
-				}
-			}
-		case "radius":
-			if !math.IsNaN(v) {
-				c = seq.At(colormap.Log(v, sc.RMin, sc.RMax))
+			c = OnScale
+			switch {
+			case name == "redshift":
+				t[k] = sc.gPosition(x)
+			case name == "intensity" && linear:
+				t[k] = colormap.Linear(x, 0, sc.IMax)
+			case name == "intensity":
+				t[k] = colormap.Log(x, ilo, sc.IMax)
+			default:
+				t[k] = colormap.Log(x, sc.RMin, sc.RMax)
 			}
 		case "order":
 			if o := f.First[k]; o >= 0 {
-				c = colormap.Order(int(o))
+				c, t[k] = Category, float64(o)
 			}
 		case "shadow":
-			c = color.RGBA{0xd8, 0xd8, 0xd4, 0xff}
+			c = Escaped
+			if captured {
+				c = Horizon
+				if f.onEdge(k) {
+					c = Edge
+				}
+			}
 		}
-		if f.Fate[k] == raytrace.Captured && (math.IsNaN(v) || name == "shadow") && !(name == "order" && f.First[k] >= 0) {
-			c = colormap.Shadow
+		class[k] = c
+	}
+	return class, t
+}
+
+// MapImage returns the pixel-exact colour image of a map (row 0 at the top).
+func (f *Frame) MapImage(name string, sc Scales) *image.RGBA {
+	class, t := f.MapPixels(name, sc)
+	cm := MapScale(name)
+	img := image.NewRGBA(image.Rect(0, 0, f.W, f.H))
+	for k, c := range class {
+		var col color.RGBA
+		switch c {
+		case NoDisk:
+			col = colormap.NoHit
+		case Horizon:
+			col = colormap.Shadow
+		case OnScale:
+			col = cm.At(t[k])
+		case Category:
+			col = colormap.Order(int(t[k]))
+		case Escaped:
+			col = EscapedColor
+		case Edge:
+			col = EdgeColor
 		}
-		if name == "shadow" && f.onEdge(k) {
-			c = color.RGBA{0xf0, 0x8c, 0x00, 0xff} // ray-traced edge
-		}
-		img.SetRGBA(k%f.W, k/f.W, c)
+		img.SetRGBA(k%f.W, k/f.W, col)
 	}
 	return img
 }
@@ -228,12 +288,12 @@ func (f *Frame) Panel(name string, sc Scales) figure.Panel {
 		blue := color.RGBA{0x12, 0x4e, 0xd8, 0xff}
 		p.Lines = []figure.Polyline{{Points: pts, Color: blue, Width: 2, Dashed: true, Closed: true}}
 		p.Legend = []figure.LegendEntry{
-			{Color: color.RGBA{0xf0, 0x8c, 0x00, 0xff}, Label: "ray-traced edge"},
+			{Color: EdgeColor, Label: "ray-traced edge"},
 			{Color: blue, Label: "critical curve (Bardeen 1973)", Dashed: true},
 		}
 		p.Bar = &figure.ColorBar{Label: "photon fate", Swatches: []figure.Swatch{
 			{Color: colormap.Shadow, Label: "from the horizon"},
-			{Color: color.RGBA{0xd8, 0xd8, 0xd4, 0xff}, Label: "from infinity"}}}
+			{Color: EscapedColor, Label: "from infinity"}}}
 	}
 	return p
 }

@@ -49,6 +49,32 @@ func Render(ctx context.Context, r scene.Resolved, progress func(rows int)) (*Fr
 		return nil, err
 	}
 	w, h, n := r.Screen.Width, r.Screen.Height, r.Disk.Orders
+	f := newFrame(r, m)
+	var mu sync.Mutex
+	done := 0
+	parallel(ctx, h, n, func(j int, p *raytrace.Path, s *Sample) {
+		beta := PixelBeta(r, j)
+		for i := 0; i < w; i++ {
+			m.Shade(PixelAlpha(r, i), beta, p, s)
+			f.store(j*w+i, s)
+		}
+		if progress != nil {
+			mu.Lock()
+			done++
+			progress(done)
+			mu.Unlock()
+		}
+	})
+	if err := ctx.Err(); err != nil {
+		return nil, err
+	}
+	f.Photons = int64(w) * int64(h)
+	return f, nil
+}
+
+// newFrame allocates the records of the scene's frame.
+func newFrame(r scene.Resolved, m Model) *Frame {
+	w, h, n := r.Screen.Width, r.Screen.Height, r.Disk.Orders
 	f := &Frame{Res: r, Model: m, W: w, H: h, Orders: n,
 		Fate: make([]raytrace.Fate, w*h), First: make([]int8, w*h)}
 	alloc := func() [][]float32 {
@@ -59,42 +85,32 @@ func Render(ctx context.Context, r scene.Resolved, progress func(rows int)) (*Fr
 		return out
 	}
 	f.R, f.G, f.Line, f.Bol = alloc(), alloc(), alloc(), alloc()
+	return f
+}
 
+// parallel runs job(i) for i in [0, count) on all cores, handing out
+// indices through an atomic counter; each goroutine has its own scratch
+// path (for orders crossings) and sample. It stops handing out work once
+// ctx is cancelled.
+func parallel(ctx context.Context, count, orders int, job func(i int, p *raytrace.Path, s *Sample)) {
 	var next atomic.Int64
-	var mu sync.Mutex
-	done := 0
 	var wg sync.WaitGroup
 	for range runtime.GOMAXPROCS(0) {
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
-			p := raytrace.Path{Crossings: make([]raytrace.Crossing, 0, n)}
+			p := raytrace.Path{Crossings: make([]raytrace.Crossing, 0, orders)}
 			var s Sample
 			for {
-				j := int(next.Add(1) - 1)
-				if j >= h || ctx.Err() != nil {
+				i := int(next.Add(1) - 1)
+				if i >= count || ctx.Err() != nil {
 					return
 				}
-				beta := PixelBeta(r, j)
-				for i := 0; i < w; i++ {
-					m.Shade(PixelAlpha(r, i), beta, &p, &s)
-					f.store(j*w+i, &s)
-				}
-				if progress != nil {
-					mu.Lock()
-					done++
-					progress(done)
-					mu.Unlock()
-				}
+				job(i, &p, &s)
 			}
 		}()
 	}
 	wg.Wait()
-	if err := ctx.Err(); err != nil {
-		return nil, err
-	}
-	f.Photons = int64(w) * int64(h)
-	return f, nil
 }
 
 func (f *Frame) store(k int, s *Sample) {

@@ -3,8 +3,6 @@ package render
 import (
 	"context"
 	"math"
-	"runtime"
-	"sync"
 	"sync/atomic"
 
 	"kerrscope/raytrace"
@@ -178,17 +176,8 @@ func RenderRefined(ctx context.Context, r scene.Resolved, ref Refinement, keepMa
 	total := NewSpectrum(r.MinKeV, r.MaxKeV, r.Emission.LineKeV, r.Spectrum.Bins, n)
 	var f *Frame
 	if keepMaps {
-		f = &Frame{Res: r, Model: m, W: w, H: h, Orders: n, Fate: make([]raytrace.Fate, w*h), First: make([]int8, w*h)}
-		alloc := func() [][]float32 {
-			out := make([][]float32, n)
-			for k := range out {
-				out[k] = make([]float32, w*h)
-			}
-			return out
-		}
-		f.R, f.G, f.Line, f.Bol = alloc(), alloc(), alloc(), alloc()
+		f = newFrame(r, m)
 	}
-	workers := runtime.GOMAXPROCS(0)
 	const chunk = 32
 	corners := make([][]point, chunk+1)
 	for i := range corners {
@@ -199,26 +188,6 @@ func RenderRefined(ctx context.Context, r scene.Resolved, ref Refinement, keepMa
 	for i := range rowSpec {
 		rowSpec[i] = NewSpectrum(r.MinKeV, r.MaxKeV, r.Emission.LineKeV, r.Spectrum.Bins, n)
 	}
-	parallel := func(count int, job func(i int, p *raytrace.Path, s *Sample)) {
-		var next atomic.Int64
-		var wg sync.WaitGroup
-		for range workers {
-			wg.Add(1)
-			go func() {
-				defer wg.Done()
-				p := raytrace.Path{Crossings: make([]raytrace.Crossing, 0, n)}
-				var s Sample
-				for {
-					i := int(next.Add(1) - 1)
-					if i >= count || ctx.Err() != nil {
-						return
-					}
-					job(i, &p, &s)
-				}
-			}()
-		}
-		wg.Wait()
-	}
 	captured := 0.0
 	for j0 := 0; j0 < h; j0 += chunk {
 		rows := min(chunk, h-j0)
@@ -228,13 +197,13 @@ func RenderRefined(ctx context.Context, r scene.Resolved, ref Refinement, keepMa
 			corners[0], corners[chunk] = corners[chunk], corners[0]
 			start = 1
 		}
-		parallel(rows+1-start, func(i int, p *raytrace.Path, s *Sample) {
+		parallel(ctx, rows+1-start, n, func(i int, p *raytrace.Path, s *Sample) {
 			row := corners[i+start]
 			for x := 0; x <= w; x++ {
 				row[x] = rf.sample(float64(x), float64(j0+i+start), p, s)
 			}
 		})
-		parallel(rows, func(i int, p *raytrace.Path, s *Sample) {
+		parallel(ctx, rows, n, func(i int, p *raytrace.Path, s *Sample) {
 			j := j0 + i
 			spec := &rowSpec[i]
 			for o := range spec.Order {

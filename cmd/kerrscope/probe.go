@@ -18,17 +18,9 @@ func runProbe(args []string, stdout, stderr io.Writer) error {
 	if err := f.parse(args); err != nil {
 		return err
 	}
-	s := scene.Default()
-	if *path != "" {
-		var err error
-		if s, err = scene.Load(*path); err != nil {
-			return usagef("%v", err)
-		}
-	}
-	for _, p := range *vals {
-		if err := p.field.Set(&s, p.value); err != nil {
-			return usagef("--%s: %v", p.field.Flag, err)
-		}
+	s, err := loadScene(*path, scene.Default(), *vals)
+	if err != nil {
+		return err
 	}
 	if a := s.Hole.Spin; !(a > -1 && a < 1) {
 		return usagef("--spin %g is outside the allowed range -1 < spin < 1", a)

@@ -56,19 +56,29 @@ fields:
 	return path, quiet, vals
 }
 
-// buildScene loads the file (or base) and applies the flags.
-func buildScene(path string, base scene.Scene, vals []pending) (scene.Resolved, error) {
+// loadScene reads the scene file (or starts from base) and applies the
+// flags given on the command line.
+func loadScene(path string, base scene.Scene, vals []pending) (scene.Scene, error) {
 	s := base
 	if path != "" {
 		var err error
 		if s, err = scene.Load(path); err != nil {
-			return scene.Resolved{}, usagef("%v", err)
+			return s, usagef("%v", err)
 		}
 	}
 	for _, p := range vals {
 		if err := p.field.Set(&s, p.value); err != nil {
-			return scene.Resolved{}, usagef("--%s: %v", p.field.Flag, err)
+			return s, usagef("--%s: %v", p.field.Flag, err)
 		}
+	}
+	return s, nil
+}
+
+// buildScene is loadScene followed by validation.
+func buildScene(path string, base scene.Scene, vals []pending) (scene.Resolved, error) {
+	s, err := loadScene(path, base, vals)
+	if err != nil {
+		return scene.Resolved{}, err
 	}
 	r, err := s.Resolve()
 	if err != nil {

@@ -70,17 +70,9 @@ func runSweep(args []string, stdout, stderr io.Writer) error {
 	if err := checkScaleFlags(f, sc); err != nil {
 		return err
 	}
-	base := scene.Default()
-	if *path != "" {
-		var err error
-		if base, err = scene.Load(*path); err != nil {
-			return usagef("%v", err)
-		}
-	}
-	for _, p := range *vals {
-		if err := p.field.Set(&base, p.value); err != nil {
-			return usagef("--%s: %v", p.field.Flag, err)
-		}
+	base, err := loadScene(*path, scene.Default(), *vals)
+	if err != nil {
+		return err
 	}
 	plan, err := sweep.NewPlan(base, axes, sc)
 	var pe *sweep.PointError

@@ -7,7 +7,6 @@ import (
 	"image"
 	"image/color"
 	"io"
-	"math"
 	"runtime"
 	"slices"
 	"strings"
@@ -15,7 +14,6 @@ import (
 	"sync/atomic"
 
 	"kerrscope/colormap"
-	"kerrscope/raytrace"
 	"kerrscope/render"
 	"kerrscope/render/figure"
 )
@@ -109,7 +107,7 @@ func (p *Plan) stageFrame(ctx context.Context, f *render.Frame, pt Point, sc ren
 			}
 			if o.Has("bare") {
 				if bare == nil {
-					bare = mapImage(f, m, sc)
+					bare = f.MapImage(m, sc)
 				}
 				s, err := encode(pre+"-"+m+"-bare.png", bare)
 				if err != nil {
@@ -181,56 +179,6 @@ func (p *Plan) stageFrame(ctx context.Context, f *render.Frame, pt Point, sc ren
 	return nil
 }
 
-// mapImage is f.MapImage(m, sc) drawn in horizontal strips on all cores
-// for the maps whose pixels depend only on their own values (redshift,
-// intensity, radius): each strip is MapImage of a frame holding just
-// those rows. MapImage's colour lookup costs more than tracing the rays.
-// Scales that are not complete (which MapImage would complete from the
-// whole frame) draw the whole frame at once.
-func mapImage(f *render.Frame, m string, sc render.Scales) *image.RGBA {
-	n := min(runtime.GOMAXPROCS(0), f.H)
-	complete := sc.GMin > 0 && sc.GMin < 1 && sc.GMax > 1 && sc.IMax > 0 && sc.IDecades > 0 && sc.RMin > 0 && sc.RMax > sc.RMin
-	if n < 2 || !complete || !(m == "redshift" || m == "intensity" || m == "radius") {
-		return f.MapImage(m, sc)
-	}
-	img := image.NewRGBA(image.Rect(0, 0, f.W, f.H))
-	var wg sync.WaitGroup
-	for s := range n {
-		j0, j1 := s*f.H/n, (s+1)*f.H/n
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			part := rows(f, j0, j1).MapImage(m, sc)
-			copy(img.Pix[j0*img.Stride:j1*img.Stride], part.Pix)
-		}()
-	}
-	wg.Wait()
-	return img
-}
-
-// rows returns a frame of rows j0 to j1 of f, sharing its records.
-func rows(f *render.Frame, j0, j1 int) *render.Frame {
-	a, b := j0*f.W, j1*f.W
-	part := *f
-	part.H = j1 - j0
-	part.Fate, part.First = f.Fate[a:b], f.First[a:b]
-	cut := func(q [][]float32) [][]float32 {
-		out := make([][]float32, len(q))
-		for o := range q {
-			out[o] = q[o][a:b]
-		}
-		return out
-	}
-	part.R, part.G, part.Line, part.Bol = cut(f.R), cut(f.G), cut(f.Line), cut(f.Bol)
-	return &part
-}
-
-// The two fixed colours of the shadow map (as render draws them).
-var (
-	shadowEscaped = color.RGBA{0xd8, 0xd8, 0xd4, 0xff} // photons from infinity
-	shadowEdge    = color.RGBA{0xf0, 0x8c, 0x00, 0xff} // ray-traced edge of the shadow
-)
-
 // MapPalette returns the palette of a map's 8-bit images: for redshift,
 // intensity and radius, colormap.Palette of the map's colour scale
 // (index 0 no disk, 1 horizon, 2–255 the scale); for order, no disk,
@@ -249,88 +197,32 @@ func MapPalette(name string) color.Palette {
 		}
 		return p
 	}
-	return color.Palette{colormap.NoHit, colormap.Shadow, shadowEscaped, shadowEdge}
+	return color.Palette{colormap.NoHit, colormap.Shadow, render.EscapedColor, render.EdgeColor}
 }
 
 // IndexedImage returns the map as an 8-bit palette image (MapPalette)
-// with the frame's scales sc, which must be complete: each pixel's
-// scalar (g of the first order seen, the summed line intensity, or the
-// source radius) is placed on the colour scale exactly as render's
-// MapImage places it and indexed with colormap.PaletteIndex, so that no
-// colour is ever quantised from RGB. It is the source of the sweep's
-// GIFs.
+// with the frame's scales sc: render's MapPixels classifies each pixel and
+// places its value on the colour scale, which is indexed with
+// colormap.PaletteIndex, so that no colour is ever quantised from RGB. It
+// is the source of the sweep's GIFs.
 func IndexedImage(f *render.Frame, name string, sc render.Scales) *image.Paletted {
 	img := image.NewPaletted(image.Rect(0, 0, f.W, f.H), MapPalette(name))
-	var v []float32
-	switch name {
-	case "redshift":
-		v = f.FirstSeen(f.G)
-	case "intensity":
-		v = f.Total(f.Line)
-	case "radius":
-		v = f.FirstSeen(f.R)
-	}
-	linear := f.Res.Output.IntensityScale == "linear"
-	ilo := sc.IMax * math.Pow(10, -sc.IDecades)
-	for k := range f.Fate {
-		captured := f.Fate[k] == raytrace.Captured
+	class, t := f.MapPixels(name, sc)
+	for k, c := range class {
 		idx := uint8(colormap.NoHitIndex)
-		switch name {
-		case "redshift", "intensity", "radius":
-			x := float64(v[k])
-			switch {
-			case math.IsNaN(x) && captured:
-				idx = colormap.ShadowIndex
-			case math.IsNaN(x):
-			case name == "redshift":
-				idx = colormap.PaletteIndex(gPosition(sc, x))
-			case name == "intensity" && linear:
-				idx = colormap.PaletteIndex(colormap.Linear(x, 0, sc.IMax))
-			case name == "intensity":
-				idx = colormap.PaletteIndex(colormap.Log(x, ilo, sc.IMax))
-			default:
-				idx = colormap.PaletteIndex(colormap.Log(x, sc.RMin, sc.RMax))
-			}
-		case "order":
-			switch o := f.First[k]; {
-			case o >= 0:
-				idx = uint8(2 + int(o)%colormap.OrderCount)
-			case captured:
-				idx = colormap.ShadowIndex
-			}
-		default: // shadow
-			switch {
-			case captured && onEdge(f, k):
-				idx = 3
-			case captured:
-				idx = colormap.ShadowIndex
-			default:
-				idx = 2
-			}
+		switch c {
+		case render.Horizon:
+			idx = colormap.ShadowIndex
+		case render.OnScale:
+			idx = colormap.PaletteIndex(t[k])
+		case render.Category:
+			idx = uint8(2 + int(t[k])%colormap.OrderCount)
+		case render.Escaped:
+			idx = 2
+		case render.Edge:
+			idx = 3
 		}
 		img.Pix[k] = idx // row stride = f.W
 	}
 	return img
-}
-
-// gPosition places g on the diverging redshift scale as render does: g = 1
-// at the centre, log g scaled on each side so that GMin and GMax reach
-// the ends.
-func gPosition(sc render.Scales, g float64) float64 {
-	if g < 1 {
-		return math.Max(0, 0.5*(1-math.Log(g)/math.Log(sc.GMin)))
-	}
-	return math.Min(1, 0.5*(1+math.Log(g)/math.Log(sc.GMax)))
-}
-
-// onEdge reports whether captured pixel k has a 4-neighbour from infinity.
-func onEdge(f *render.Frame, k int) bool {
-	i, j := k%f.W, k/f.W
-	for _, d := range [][2]int{{-1, 0}, {1, 0}, {0, -1}, {0, 1}} {
-		ii, jj := i+d[0], j+d[1]
-		if ii >= 0 && ii < f.W && jj >= 0 && jj < f.H && f.Fate[jj*f.W+ii] != raytrace.Captured {
-			return true
-		}
-	}
-	return false
 }
