@@ -58,40 +58,45 @@ func TestRunIsReproducible(t *testing.T) {
 
 func TestFailedRunLeavesNothing(t *testing.T) {
 	dir := t.TempDir()
-	r := resolve(t, func(s *scene.Scene) { s.Output.Directory = dir; s.Screen.Height = 200 })
+	// An interrupt midway through the rows: no frame, no files.
+	r := resolve(t, func(s *scene.Scene) { s.Output.Directory = filepath.Join(dir, "out"); s.Screen.Height = 200 })
 	ctx, cancel := context.WithCancel(context.Background())
-	// Cancel midway through the rows, as an interrupt would.
-	_, err := Run(ctx, r, Options{Version: "test"})
-	_ = err
-	cancel()
-	ctx2, cancel2 := context.WithCancel(context.Background())
-	rows := 0
-	f, err := Render(ctx2, r, func(n int) {
-		rows = n
+	f, err := Render(ctx, r, func(n int) {
 		if n == 50 {
-			cancel2()
+			cancel()
 		}
 	})
 	if err == nil || f != nil {
-		t.Fatalf("cancelled render returned %v, %v after %d rows", f, err, rows)
+		t.Fatalf("cancelled render returned %v, %v", f, err)
 	}
-	// A write that fails midway: an output directory that is a file.
+	ctx, cancel = context.WithCancel(context.Background())
+	cancel()
+	if _, err := Run(ctx, r, Options{Version: "test"}); err == nil {
+		t.Fatal("cancelled run succeeded")
+	}
+	if _, err := os.Stat(r.Output.Directory); !os.IsNotExist(err) {
+		t.Errorf("a cancelled run created %s", r.Output.Directory)
+	}
+	// An output directory that cannot be made.
 	bad := filepath.Join(dir, "not-a-dir")
 	os.WriteFile(bad, []byte("x"), 0o644)
 	r2 := resolve(t, func(s *scene.Scene) { s.Output.Directory = bad })
 	if _, err := Run(context.Background(), r2, Options{}); err == nil {
 		t.Fatal("writing into a file succeeded")
 	}
-	// A staged run that fails before committing leaves only what was there.
+	// A write that fails after another file was staged: Abort leaves nothing.
 	out, err := NewOutputs(filepath.Join(dir, "staged"))
 	if err != nil {
 		t.Fatal(err)
 	}
-	out.Write("a.txt", func(w io.Writer) error { _, err := w.Write([]byte("half")); return err })
-	out.Write("b.txt", func(w io.Writer) error { return os.ErrInvalid })
+	if err := out.Write("a.txt", func(w io.Writer) error { _, err := w.Write([]byte("whole")); return err }); err != nil {
+		t.Fatal(err)
+	}
+	if err := out.Write("b.txt", func(w io.Writer) error { return os.ErrInvalid }); err == nil {
+		t.Fatal("failing writer reported no error")
+	}
 	out.Abort()
-	left, _ := os.ReadDir(filepath.Join(dir, "staged"))
-	if len(left) != 0 {
+	if left, _ := os.ReadDir(filepath.Join(dir, "staged")); len(left) != 0 {
 		t.Errorf("aborted outputs left %v", left)
 	}
 }
