@@ -29,9 +29,7 @@ func newFlags(name string, stdout io.Writer) *flags {
 func (f *flags) parse(args []string) error {
 	err := f.fs.Parse(args)
 	if errors.Is(err, flag.ErrHelp) {
-		fmt.Fprintf(f.out, "usage: kerrscope %s [flags]\n\nflags:\n", f.fs.Name())
-		f.fs.SetOutput(f.out)
-		f.fs.PrintDefaults()
+		f.help()
 		return errHelp
 	}
 	if err != nil {
@@ -76,4 +74,28 @@ func (n number) Set(s string) error {
 func (f *flags) float(p *float64, name string, def float64, usage string) {
 	*p = def
 	f.fs.Var(number{p}, name, usage)
+}
+
+// help lists the flags with two dashes, their meaning and their defaults
+// (for scene flags, the built-in scene's values).
+func (f *flags) help() {
+	fmt.Fprintf(f.out, "usage: kerrscope %s [flags]\n\nflags:\n", f.fs.Name())
+	defaults := sceneDefaults()
+	f.fs.VisitAll(func(fl *flag.Flag) {
+		def := fl.DefValue
+		if sf, ok := fl.Value.(sceneFlag); ok {
+			def = defaults[sf.field.Key]
+			if sf.field.Bool {
+				def = "" // a switch: off unless given
+			}
+		}
+		name := "--" + fl.Name
+		if _, isBool := fl.Value.(interface{ IsBoolFlag() bool }); !isBool || def != "false" {
+			if def != "" && def != "false" {
+				fmt.Fprintf(f.out, "  %-18s %s (default %s)\n", name, fl.Usage, def)
+				return
+			}
+		}
+		fmt.Fprintf(f.out, "  %-18s %s\n", name, fl.Usage)
+	})
 }

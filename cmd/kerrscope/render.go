@@ -1,9 +1,12 @@
 package main
 
 import (
+	"strings"
+
 	"context"
 	"flag"
 	"fmt"
+	"github.com/pelletier/go-toml/v2"
 	"io"
 	"os"
 	"os/signal"
@@ -165,3 +168,31 @@ func renderAndReport(r scene.Resolved, band, quiet bool, stdout, stderr io.Write
 }
 
 var _ flag.Value = sceneFlag{}
+
+// sceneDefaults returns the built-in scene's values by scene key, as text.
+func sceneDefaults() map[string]string {
+	out := map[string]string{}
+	text, err := scene.Default().TOML()
+	if err != nil {
+		return out
+	}
+	var m map[string]map[string]any
+	if toml.Unmarshal(text, &m) != nil {
+		return out
+	}
+	for sec, kv := range m {
+		for k, v := range kv {
+			switch x := v.(type) {
+			case []any:
+				parts := make([]string, len(x))
+				for i, e := range x {
+					parts[i] = fmt.Sprint(e)
+				}
+				out[sec+"."+k] = strings.Join(parts, ",")
+			default:
+				out[sec+"."+k] = fmt.Sprint(v)
+			}
+		}
+	}
+	return out
+}
