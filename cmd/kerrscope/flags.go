@@ -89,6 +89,9 @@ func (f *flags) help() {
 				def = "" // a switch: off unless given
 			}
 		}
+		if strings.Contains(fl.Usage, "(required)") {
+			def = ""
+		}
 		name := "--" + fl.Name
 		if _, isBool := fl.Value.(interface{ IsBoolFlag() bool }); !isBool || def != "false" {
 			if def != "" && def != "false" {

@@ -9,7 +9,7 @@ import (
 
 func runProbe(args []string, stdout, stderr io.Writer) error {
 	f := newFlags("probe", stdout)
-	path, _, vals := sceneFlags(f, "orders")
+	path, _, vals := sceneFlags(f, "spin", "inclination", "inner", "outer", "plunging")
 	var alpha, beta float64
 	f.float(&alpha, "alpha", 0, "screen coordinate α (right), in M (required)")
 	f.float(&beta, "beta", 0, "screen coordinate β (up, along the projected spin axis), in M (required)")

@@ -42,15 +42,21 @@ func (s sceneFlag) Set(v string) error {
 }
 
 // sceneFlags registers --scene, --quiet and one flag per scene value.
-// Flags named in skip are left out (a command may define its own).
-func sceneFlags(f *flags, skip ...string) (path *string, quiet *bool, vals *[]pending) {
+// With a non-empty only, just the flags it names are registered.
+func sceneFlags(f *flags, only ...string) (path *string, quiet *bool, vals *[]pending) {
 	vals = &[]pending{}
 	path = f.fs.String("scene", "", "TOML scene file (flags below override its values)")
-	quiet = f.fs.Bool("quiet", false, "no progress bar")
+	quiet = new(bool)
+	if len(only) == 0 {
+		quiet = f.fs.Bool("quiet", false, "no progress bar")
+	}
 fields:
 	for _, fl := range scene.Fields() {
-		for _, s := range skip {
+		for i, s := range only {
 			if fl.Flag == s {
+				break
+			}
+			if i == len(only)-1 {
 				continue fields
 			}
 		}
