@@ -1,6 +1,7 @@
 package scene
 
 import (
+	"math"
 	"os"
 	"strings"
 	"testing"
@@ -181,5 +182,27 @@ func TestReadmeSceneExample(t *testing.T) {
 	b, _ := Default().TOML()
 	if string(a) != string(b) {
 		t.Errorf("README example differs from the defaults:\n%s\n---\n%s", a, b)
+	}
+}
+
+func TestAngularScale(t *testing.T) {
+	// One M at distance D subtends GM/(c² D) (physics notes §8), with the
+	// IAU 2015 nominal GM_sun = 1.3271244e20 m³ s⁻² and c = 299792458 m/s.
+	s := Default()
+	m, d := 2.5e7, 3.2 // invented: 2.5e7 solar masses at 3.2 Mpc
+	s.Hole.MassSolar, s.Hole.DistanceMpc = &m, &d
+	r, err := s.Resolve()
+	if err != nil {
+		t.Fatal(err)
+	}
+	const gm, c, pc = 1.3271244e20, 299792458.0, 3.0856775814913673e16
+	want := m * gm / (c * c) / (d * 1e6 * pc) * 180 / 3.141592653589793 * 3600e6
+	if math.Abs(r.MicroArcsecPerM/want-1) > 1e-7 {
+		t.Errorf("µas per M = %v, want %v", r.MicroArcsecPerM, want)
+	}
+	kpc := d * 1000
+	s.Hole.DistanceMpc, s.Hole.DistanceKpc = nil, &kpc
+	if r2, _ := s.Resolve(); math.Abs(r2.MicroArcsecPerM/r.MicroArcsecPerM-1) > 1e-12 {
+		t.Errorf("kpc and Mpc disagree: %v vs %v", r2.MicroArcsecPerM, r.MicroArcsecPerM)
 	}
 }
