@@ -149,7 +149,7 @@ func TestGamutAndLightnessKept(t *testing.T) {
 				t.Errorf("%s t=%.3f: L* %.2f, designed %.2f", m.Name, tt, got, 100*l)
 			}
 		}
-		for _, tt := range []float64{-1, 2, math.Inf(1), math.Inf(-1), -0.0, 1e-300, math.MaxFloat64} {
+		for _, tt := range []float64{-1, 2, math.Inf(1), math.Inf(-1), math.Copysign(0, -1), 1e-300, math.MaxFloat64} {
 			if c := m.At(tt); c.A != 255 {
 				t.Errorf("%s At(%v) = %v, want opaque", m.Name, tt, c)
 			}

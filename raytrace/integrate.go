@@ -6,9 +6,9 @@ import (
 )
 
 // Dormand–Prince 5(4) tableau (Dormand & Prince 1980, J. Comput. Appl.
-// Math. 6, 19; Hairer, Nørsett & Wanner, Solving ODEs I, table 5.2).
+// Math. 6, 19; Hairer, Nørsett & Wanner, Solving ODEs I, table 5.2). The
+// equations do not depend on τ, so the nodes c_i are not needed.
 var (
-	dpC = [7]float64{0, 1.0 / 5, 3.0 / 10, 4.0 / 5, 8.0 / 9, 1, 1}
 	dpA = [7][6]float64{
 		{},
 		{1.0 / 5},
