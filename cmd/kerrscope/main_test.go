@@ -162,3 +162,22 @@ func TestProbeReportsG(t *testing.T) {
 		t.Errorf("crossing beyond the outer edge should have g null: %s", out)
 	}
 }
+
+func TestDemoCLI(t *testing.T) {
+	dir := t.TempDir()
+	code, out, errs := runCLI("demo", "--out", dir, "--width", "96", "--height", "64", "--quiet")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	for _, name := range []string{"redshift.png", "redshift-bare.png", "spectrum.csv", "spectrum.png", "maps.fits", "manifest.toml", "shadow.png"} {
+		if !strings.Contains(out, name) {
+			t.Errorf("demo did not list %s:\n%s", name, out)
+		}
+		if _, err := os.Stat(dir + "/" + name); err != nil {
+			t.Error(err)
+		}
+	}
+	if code, _, _ := runCLI("demo", "--scene", "x.toml"); code != 2 {
+		t.Errorf("demo --scene: exit %d", code)
+	}
+}
