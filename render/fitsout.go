@@ -91,8 +91,16 @@ func (f *Frame) FITSHeader(version string) []fits.Card {
 		{Key: "PIXSIZE", Value: r.PixelSize, Comment: "pixel side [M]"},
 		{Key: "FOV", Value: r.Screen.FieldOfView, Comment: "horizontal field of view [M]"},
 	}
+	cards = append(cards,
+		fits.Card{Key: "REFDEPTH", Value: r.Refine.Depth, Comment: "adaptive refinement levels (0: pixel centres)"},
+		fits.Card{Key: "EMINKEV", Value: r.MinKeV, Comment: "spectrum lower energy [keV]"},
+		fits.Card{Key: "EMAXKEV", Value: r.MaxKeV, Comment: "spectrum upper energy [keV]"},
+		fits.Card{Key: "NBINS", Value: r.Spectrum.Bins, Comment: "spectrum bins"},
+		fits.Card{Key: "FWHMEV", Value: r.Spectrum.FWHMeV, Comment: "instrument FWHM [eV], 0 = none"})
 	if r.MicroArcsecPerM > 0 {
-		cards = append(cards, fits.Card{Key: "UASPERM", Value: r.MicroArcsecPerM, Comment: "angle of 1 M at the distance [uas]"})
+		cards = append(cards,
+			fits.Card{Key: "MASSMSUN", Value: *r.Hole.MassSolar, Comment: "black-hole mass [solar masses]"},
+			fits.Card{Key: "UASPERM", Value: r.MicroArcsecPerM, Comment: "angle of 1 M at the distance [uas]"})
 	}
 	return cards
 }
