@@ -181,7 +181,8 @@ func (f *Frame) writeBand(out *Outputs, rep BandReport, mask [][]bool, version s
 			p := f.Panel("shadow", Scales{})
 			p.Image = img
 			p.Title = fmt.Sprintf("where source radii %.6g–%.6g M land", rep.RMin, rep.RMax)
-			p.Legend = []figure.LegendEntry{p.Legend[1]}
+			_, key := f.criticalOverlay()
+			p.Legend = []figure.LegendEntry{key}
 			bar := &figure.ColorBar{Label: "image order"}
 			for ord := 0; ord < f.Orders; ord++ {
 				bar.Swatches = append(bar.Swatches, figure.Swatch{Color: colormap.Order(ord), Label: fmt.Sprintf("band, n = %d", ord)})
@@ -200,13 +201,8 @@ func (f *Frame) writeBand(out *Outputs, rep BandReport, mask [][]bool, version s
 				p := f.Panel("redshift", sc)
 				p.Image = f.bandRedshiftImage(mask, sc)
 				p.Title = fmt.Sprintf("redshift factor g of the light from r = %.6g–%.6g M", rep.RMin, rep.RMax)
-				var pts [][2]float64
-				for _, q := range f.Model.Obs.CriticalCurve(1000) {
-					pts = append(pts, [2]float64{q.Alpha, q.Beta})
-				}
-				blue := color.RGBA{0x12, 0x4e, 0xd8, 0xff}
-				p.Lines = []figure.Polyline{{Points: pts, Color: blue, Width: 2, Dashed: true, Closed: true}}
-				p.Legend = []figure.LegendEntry{{Color: blue, Label: "critical curve (Bardeen 1973)", Dashed: true}}
+				line, key := f.criticalOverlay()
+				p.Lines, p.Legend = []figure.Polyline{line}, []figure.LegendEntry{key}
 				fig, err := figure.DrawPanel(p, 0)
 				if err != nil {
 					return err

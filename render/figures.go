@@ -281,16 +281,9 @@ func (f *Frame) Panel(name string, sc Scales) figure.Panel {
 		bar.Swatches = append(bar.Swatches, figure.Swatch{Color: colormap.NoHit, Label: "no disk"}, figure.Swatch{Color: colormap.Shadow, Label: "horizon"})
 		p.Bar = bar
 	case "shadow":
-		var pts [][2]float64
-		for _, q := range f.Model.Obs.CriticalCurve(1000) {
-			pts = append(pts, [2]float64{q.Alpha, q.Beta})
-		}
-		blue := color.RGBA{0x12, 0x4e, 0xd8, 0xff}
-		p.Lines = []figure.Polyline{{Points: pts, Color: blue, Width: 2, Dashed: true, Closed: true}}
-		p.Legend = []figure.LegendEntry{
-			{Color: EdgeColor, Label: "ray-traced edge"},
-			{Color: blue, Label: "critical curve (Bardeen 1973)", Dashed: true},
-		}
+		line, key := f.criticalOverlay()
+		p.Lines = []figure.Polyline{line}
+		p.Legend = []figure.LegendEntry{{Color: EdgeColor, Label: "ray-traced edge"}, key}
 		p.Bar = &figure.ColorBar{Label: "photon fate", Swatches: []figure.Swatch{
 			{Color: colormap.Shadow, Label: "from the horizon"},
 			{Color: EscapedColor, Label: "from infinity"}}}
@@ -306,6 +299,18 @@ func (s Scales) gPosition(g float64) float64 {
 		return math.Max(0, 0.5*(1-math.Log(g)/math.Log(s.GMin)))
 	}
 	return math.Min(1, 0.5*(1+math.Log(g)/math.Log(s.GMax)))
+}
+
+// criticalOverlay returns the analytic critical curve (Bardeen 1973) as
+// a dashed overlay and its legend entry.
+func (f *Frame) criticalOverlay() (figure.Polyline, figure.LegendEntry) {
+	var pts [][2]float64
+	for _, q := range f.Model.Obs.CriticalCurve(1000) {
+		pts = append(pts, [2]float64{q.Alpha, q.Beta})
+	}
+	blue := color.RGBA{0x12, 0x4e, 0xd8, 0xff}
+	return figure.Polyline{Points: pts, Color: blue, Width: 2, Dashed: true, Closed: true},
+		figure.LegendEntry{Color: blue, Label: "critical curve (Bardeen 1973)", Dashed: true}
 }
 
 // niceRatios returns tick values of g between GMin and GMax, at least
