@@ -4,6 +4,7 @@ import (
 	"io"
 
 	"kerrscope/render"
+	"kerrscope/render/pixels"
 	"kerrscope/scene"
 )
 
@@ -41,7 +42,7 @@ func runProbe(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return usagef("%v", err)
 	}
-	m, err := render.NewModel(r)
+	m, err := pixels.NewModel(r)
 	if err != nil {
 		return usagef("%v", err)
 	}

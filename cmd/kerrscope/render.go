@@ -6,14 +6,15 @@ import (
 	"context"
 	"flag"
 	"fmt"
-	"github.com/pelletier/go-toml/v2"
 	"io"
 	"os"
 	"os/signal"
 
+	"github.com/pelletier/go-toml/v2"
+
 	"golang.org/x/term"
 
-	"kerrscope/render"
+	"kerrscope/render/outputs"
 	"kerrscope/scene"
 )
 
@@ -158,12 +159,17 @@ func runDemo(args []string, stdout, stderr io.Writer) error {
 func renderAndReport(r scene.Resolved, band, quiet bool, stdout, stderr io.Writer) error {
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
 	defer stop()
-	sum, err := render.Run(ctx, r, render.Options{Version: version, Progress: progressWriter(quiet, stderr), Band: band})
+	bar := newProgress(progressWriter(quiet, stderr), "tracing rows")
+	rows := r.Screen.Height
+	sum, err := outputs.Run(ctx, r, outputs.Options{Version: version, Progress: func(n int) { bar.set(n, rows) }, Band: band})
+	bar.done()
 	if err != nil {
 		return err
 	}
 	if sum.Band != nil {
-		sum.Band.WriteText(stdout)
+		if err := outputs.WriteBandText(stdout, *sum.Band); err != nil {
+			return err
+		}
 		fmt.Fprintln(stdout)
 	}
 	fmt.Fprintf(stdout, "traced %d photons; wrote %d files:\n", sum.Photons, len(sum.Files))

@@ -10,7 +10,7 @@ import (
 	"strings"
 	"syscall"
 
-	"kerrscope/render"
+	"kerrscope/render/maps"
 	"kerrscope/render/sweep"
 	"kerrscope/scene"
 )
@@ -48,7 +48,7 @@ func runSweep(args []string, stdout, stderr io.Writer) error {
 	var sh sweep.Shard
 	f.fs.Var(shardFlag{&sh}, "shard", "render only share K of N (frames with index mod N = K−1), e.g. --shard $SLURM_ARRAY_TASK_ID/8 (default 1/1)")
 	restart := f.fs.Bool("restart", false, "discard the sweep in the output directory and start over")
-	var sc render.Scales
+	var sc maps.Scales
 	f.float(&sc.GMin, "g-min", 0, "redshift colour scale lower end, 0 < g < 1 (default: from a pre-pass)")
 	f.float(&sc.GMax, "g-max", 0, "redshift colour scale upper end, g > 1 (default: from a pre-pass)")
 	f.float(&sc.IMax, "intensity-max", 0, "intensity colour scale maximum, > 0 (default: from a pre-pass)")
@@ -84,7 +84,12 @@ func runSweep(args []string, stdout, stderr io.Writer) error {
 	}
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 	defer stop()
-	rep, err := sweep.Run(ctx, plan, sweep.Options{Shard: sh, Restart: *restart, Version: version, Progress: progressWriter(*quiet, stderr)})
+	if sh == (sweep.Shard{}) {
+		sh = sweep.Shard{K: 1, N: 1}
+	}
+	bar := newProgress(progressWriter(*quiet, stderr), fmt.Sprintf("sweep %s: frames", sh))
+	rep, err := sweep.Run(ctx, plan, sweep.Options{Shard: sh, Restart: *restart, Version: version, Progress: bar.set})
+	bar.done()
 	switch {
 	case errors.Is(err, sweep.ErrDefinitionChanged):
 		return usagef("--out %s: %v", plan.Dir(), err)
@@ -107,7 +112,7 @@ func runSweep(args []string, stdout, stderr io.Writer) error {
 }
 
 // checkScaleFlags checks the scale flags that were given.
-func checkScaleFlags(f *flags, sc render.Scales) error {
+func checkScaleFlags(f *flags, sc maps.Scales) error {
 	checks := []struct {
 		name string
 		ok   bool

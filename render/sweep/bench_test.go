@@ -4,7 +4,7 @@ import (
 	"context"
 	"testing"
 
-	"kerrscope/render"
+	"kerrscope/render/maps"
 	"kerrscope/scene"
 )
 
@@ -29,7 +29,7 @@ func BenchmarkSpinSweep(b *testing.B) {
 		s.Output.Directory = b.TempDir()
 		s.Output.Maps = []string{"redshift"}
 		s.Output.Formats = []string{"bare", "csv"}
-		p, err := NewPlan(s, []Axis{a}, render.Scales{})
+		p, err := NewPlan(s, []Axis{a}, maps.Scales{})
 		if err != nil {
 			b.Fatal(err)
 		}

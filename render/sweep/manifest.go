@@ -15,7 +15,7 @@ import (
 	"strconv"
 	"strings"
 
-	"kerrscope/render"
+	"kerrscope/render/maps"
 )
 
 // Shard is process K of N (1 ≤ K ≤ N): it renders the frames whose index
@@ -89,7 +89,7 @@ type definition struct {
 	Fixed scaleRecord `json:"fixed_scales"`
 }
 
-// scaleRecord is render.Scales in the manifest (0 = not fixed).
+// scaleRecord is maps.Scales in the manifest (0 = not fixed).
 type scaleRecord struct {
 	GMin     float64 `json:"g_min"`
 	GMax     float64 `json:"g_max"`
@@ -100,12 +100,12 @@ type scaleRecord struct {
 	FluxMax  float64 `json:"flux_max_per_kev"`
 }
 
-func toRecord(s render.Scales) scaleRecord {
+func toRecord(s maps.Scales) scaleRecord {
 	return scaleRecord{s.GMin, s.GMax, s.IMax, s.IDecades, s.RMin, s.RMax, s.FluxMax}
 }
 
-func (s scaleRecord) scales() render.Scales {
-	return render.Scales{GMin: s.GMin, GMax: s.GMax, IMax: s.IMax, IDecades: s.IDecades, RMin: s.RMin, RMax: s.RMax, FluxMax: s.FluxMax}
+func (s scaleRecord) scales() maps.Scales {
+	return maps.Scales{GMin: s.GMin, GMax: s.GMax, IMax: s.IMax, IDecades: s.IDecades, RMin: s.RMin, RMax: s.RMax, FluxMax: s.FluxMax}
 }
 
 // frameRecord is one finished frame.

@@ -18,8 +18,9 @@ import (
 	"strings"
 
 	"kerrscope/colormap"
-	"kerrscope/render"
-	"kerrscope/render/figure"
+	"kerrscope/render/internal/figure"
+	"kerrscope/render/maps"
+	"kerrscope/render/outputs"
 	"kerrscope/scene"
 )
 
@@ -83,7 +84,7 @@ func Merge(dir string, opt MergeOptions) ([]string, error) {
 		}
 	}
 
-	out, err := render.NewOutputs(dir)
+	out, err := outputs.NewOutputs(dir)
 	if err != nil {
 		return nil, err
 	}
@@ -170,7 +171,11 @@ func (p *Plan) checkComplete(ms []*manifest) error {
 // animation assembles the palette images of map m into a looping GIF
 // with delay centiseconds per frame.
 func (p *Plan) animation(m string, delay int) (*gif.GIF, error) {
-	pal := MapPalette(m)
+	mp, err := maps.Lookup(m)
+	if err != nil {
+		return nil, err
+	}
+	pal := mp.Palette()
 	r := p.Points[0].Scene
 	anim := &gif.GIF{Config: image.Config{ColorModel: pal, Width: r.Screen.Width, Height: r.Screen.Height}}
 	for _, pt := range p.Points {
@@ -222,7 +227,7 @@ const seqLo, seqHi = 0.0, 0.8
 // spectraPlots returns one plot of all frames' total line profiles,
 // coloured by the first axis; for a grid, one plot per value of the
 // second axis.
-func (p *Plan) spectraPlots(sc render.Scales) ([]namedPlot, error) {
+func (p *Plan) spectraPlots(sc maps.Scales) ([]namedPlot, error) {
 	a := p.Axes[0]
 	groups := [][]Point{p.Points}
 	if len(p.Axes) == 2 {
@@ -293,7 +298,7 @@ func axisKey(p *Plan, i int) string {
 	return ""
 }
 
-// readSpectrum reads a spectrum CSV written by render.Spectrum.WriteCSV:
+// readSpectrum reads a spectrum CSV written by outputs.WriteCSV:
 // bin centres, the lowest and highest bin edge, and the total flux
 // density per keV.
 func readSpectrum(path string) (e []float64, lo, hi float64, flux []float64, err error) {

@@ -3,13 +3,14 @@ package sweep
 import (
 	"bytes"
 	"image"
+	"image/color"
 	"image/gif"
 	"os"
 	"path/filepath"
 	"strings"
 	"testing"
 
-	"kerrscope/render"
+	"kerrscope/render/maps"
 	"kerrscope/scene"
 )
 
@@ -23,7 +24,7 @@ func TestMerge(t *testing.T) {
 		s.Screen.Width, s.Screen.Height = 32, 24
 		s.Output.Maps = []string{"order", "redshift"}
 		s.Output.Formats = []string{"png", "csv"}
-	}, render.Scales{})
+	}, maps.Scales{})
 	mustRun(t, p, Options{})
 	files := dirFiles(t, dir, "frame-")
 	var size image.Point
@@ -68,7 +69,7 @@ func TestMerge(t *testing.T) {
 		if !bytes.Equal(im.Pix, src.Pix) {
 			t.Errorf("GIF frame %d differs from its palette image", k)
 		}
-		for i, c := range MapPalette("order") {
+		for i, c := range orderPalette(t) {
 			if !sameColor(im.Palette[i], c) {
 				t.Errorf("GIF frame %d palette entry %d is %v, want %v", k, i, im.Palette[i], c)
 			}
@@ -95,7 +96,7 @@ func TestMerge(t *testing.T) {
 	}
 	other := testPlan(t, dir, []string{"spin=0.5:0.999:5:log1m"}, func(s *scene.Scene) {
 		s.Screen.Width, s.Screen.Height = 32, 24
-	}, render.Scales{})
+	}, maps.Scales{})
 	m := readManifestFile(t, filepath.Join(dir, "sweep-shard-1-of-1.json"))
 	m.Shard = Shard{K: 2, N: 2}
 	if m.Definition, err = other.definition(); err != nil {
@@ -130,4 +131,13 @@ func readManifestFile(t *testing.T, path string) *manifest {
 	t.Helper()
 	m := readManifest(t, path)
 	return &m
+}
+
+func orderPalette(t *testing.T) color.Palette {
+	t.Helper()
+	m, err := maps.Lookup("order")
+	if err != nil {
+		t.Fatal(err)
+	}
+	return m.Palette()
 }

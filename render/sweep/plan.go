@@ -9,7 +9,9 @@ import (
 	"strconv"
 	"strings"
 
-	"kerrscope/render"
+	"kerrscope/render/maps"
+	"kerrscope/render/outputs"
+	"kerrscope/render/pixels"
 	"kerrscope/scene"
 )
 
@@ -20,7 +22,7 @@ import (
 type Plan struct {
 	Base   scene.Scene
 	Axes   []Axis
-	Fixed  render.Scales // zero fields are chosen by a low-resolution pre-pass
+	Fixed  maps.Scales // zero fields are chosen by a low-resolution pre-pass
 	Points []Point
 }
 
@@ -49,7 +51,7 @@ func (e *PointError) Unwrap() error { return e.Err }
 // of every frame (base with the swept values set) before anything is
 // rendered; an invalid frame gives a *PointError. The output directory is
 // base.Output.Directory.
-func NewPlan(base scene.Scene, axes []Axis, fixed render.Scales) (*Plan, error) {
+func NewPlan(base scene.Scene, axes []Axis, fixed maps.Scales) (*Plan, error) {
 	if len(axes) < 1 || len(axes) > MaxAxes {
 		return nil, fmt.Errorf("a sweep varies 1 or %d scene values, not %d", MaxAxes, len(axes))
 	}
@@ -124,38 +126,23 @@ func (p *Plan) digits() int { return max(4, len(strconv.Itoa(len(p.Points)-1))) 
 // framePrefix returns "frame-0007" for frame 7.
 func (p *Plan) framePrefix(k int) string { return fmt.Sprintf("frame-%0*d", p.digits(), k) }
 
-// fileNames returns the files of frame k, sorted: for every map of the
-// scene, the figure (format png), the pixel-exact image (bare) and the
-// 8-bit palette image the GIFs are made from (always); the spectrum as
-// CSV (csv) and plot (png and csv); the FITS maps (fits).
+// artifacts returns the files of frame k, in writing order: for every
+// map of the scene, the figure (format png), the pixel-exact image (bare)
+// and the 8-bit palette image the GIFs are made from (always); the
+// spectrum as CSV (csv) and plot (png and csv); the FITS maps (fits).
+func (p *Plan) artifacts(k int) []outputs.Artifact {
+	return outputs.Artifacts(p.Base.Output, outputs.Set{Prefix: p.framePrefix(k) + "-", Indexed: true})
+}
+
+// fileNames returns the names of the files of frame k, sorted.
 func (p *Plan) fileNames(k int) []string {
-	o := p.Base.Output
-	pre := p.framePrefix(k)
-	var out []string
-	for _, m := range o.Maps {
-		if o.Has("png") {
-			out = append(out, pre+"-"+m+".png")
-		}
-		if o.Has("bare") {
-			out = append(out, pre+"-"+m+"-bare.png")
-		}
-		out = append(out, pre+"-"+m+"-indexed.png")
-	}
-	if o.Has("csv") {
-		out = append(out, pre+"-spectrum.csv")
-		if o.Has("png") {
-			out = append(out, pre+"-spectrum.png")
-		}
-	}
-	if o.Has("fits") {
-		out = append(out, pre+"-maps.fits")
-	}
+	out := outputs.Names(p.artifacts(k))
 	slices.Sort(out)
 	return out
 }
 
 // validateScales checks the user-fixed scales (zero = not fixed).
-func validateScales(s render.Scales) error {
+func validateScales(s maps.Scales) error {
 	bad := func(v float64) bool { return math.IsNaN(v) || math.IsInf(v, 0) || v < 0 }
 	switch {
 	case bad(s.GMin) || bad(s.GMax) || bad(s.IMax) || bad(s.IDecades) || bad(s.RMin) || bad(s.RMax) || bad(s.FluxMax):
@@ -185,7 +172,7 @@ const (
 // across over the same window, widened by a margin and rounded outward
 // to two significant digits, so that every process of a sweep computes
 // the same values.
-func (p *Plan) chooseScales(ctx context.Context) (render.Scales, error) {
+func (p *Plan) chooseScales(ctx context.Context) (maps.Scales, error) {
 	sc := p.Fixed
 	if sc.IDecades == 0 {
 		sc.IDecades = 4
@@ -219,7 +206,7 @@ func (p *Plan) chooseScales(ctx context.Context) (render.Scales, error) {
 				return sc, err
 			}
 		}
-		f, err := render.RenderScene(ctx, r, nil)
+		f, err := pixels.RenderScene(ctx, r, nil)
 		if err != nil {
 			return sc, err
 		}

@@ -4,7 +4,6 @@ import (
 	"context"
 	"errors"
 	"fmt"
-	"io"
 	"os"
 	"path/filepath"
 	"regexp"
@@ -12,7 +11,7 @@ import (
 	"strings"
 	"time"
 
-	"kerrscope/render"
+	"kerrscope/render/maps"
 )
 
 // ErrDefinitionChanged is returned (wrapped) by Run when the output
@@ -21,20 +20,22 @@ var ErrDefinitionChanged = errors.New("the output directory holds a different sw
 
 // Options control a sweep run.
 type Options struct {
-	Shard    Shard     // this process's share; zero = the whole sweep (1/1)
-	Restart  bool      // remove what the directory holds of a sweep and start over
-	Version  string    // program version recorded in the outputs
-	Progress io.Writer // progress bar over frames; nil = none
+	Shard   Shard  // this process's share; zero = the whole sweep (1/1)
+	Restart bool   // remove what the directory holds of a sweep and start over
+	Version string // program version recorded in the outputs
+	// Progress, if not nil, is called after each rendered frame with the
+	// number done and the number this run renders.
+	Progress func(done, total int)
 }
 
 // Report says what a run did.
 type Report struct {
 	Shard    Shard
-	Frames   int           // frames of this shard
-	Skipped  int           // already finished (recorded, files intact)
-	Rendered []int         // frames rendered by this run, in order
-	Scales   render.Scales // the colour scales every frame uses
-	Manifest string        // path of this shard's manifest
+	Frames   int         // frames of this shard
+	Skipped  int         // already finished (recorded, files intact)
+	Rendered []int       // frames rendered by this run, in order
+	Scales   maps.Scales // the colour scales every frame uses
+	Manifest string      // path of this shard's manifest
 }
 
 // Run renders the plan's frames that belong to the shard and are not
@@ -77,7 +78,7 @@ func Run(ctx context.Context, p *Plan, opt Options) (Report, error) {
 			return rep, fmt.Errorf("%w: %s differs from %s (use --restart to start over, or another --out)", ErrDefinitionChanged, what, m.name)
 		}
 	}
-	var sc render.Scales
+	var sc maps.Scales
 	if len(olds) > 0 {
 		if sc, err = agreedScales(olds); err != nil {
 			return rep, err
@@ -123,12 +124,6 @@ func Run(ctx context.Context, p *Plan, opt Options) (Report, error) {
 		return rep, err
 	}
 
-	w := opt.Progress
-	if len(todo) == 0 {
-		w = nil
-	}
-	bar := render.NewProgress(w, len(todo), fmt.Sprintf("sweep %s: frames", sh))
-	defer bar.Done()
 	// The manifest is rewritten after every frame unless that would take
 	// more than a twentieth of the time (very long sweeps); the content
 	// does not depend on when it is written.
@@ -162,16 +157,18 @@ func Run(ctx context.Context, p *Plan, opt Options) (Report, error) {
 				return rep, err
 			}
 		}
-		bar.Set(i + 1)
+		if opt.Progress != nil {
+			opt.Progress(i+1, len(todo))
+		}
 	}
 	return rep, nil
 }
 
 // agreedScales returns the scales the manifests record, which must agree.
-func agreedScales(ms []*manifest) (render.Scales, error) {
+func agreedScales(ms []*manifest) (maps.Scales, error) {
 	for _, m := range ms[1:] {
 		if m.Scales != ms[0].Scales {
-			return render.Scales{}, fmt.Errorf("%s and %s record different colour scales; fix them with the scale flags and start over", ms[0].name, m.name)
+			return maps.Scales{}, fmt.Errorf("%s and %s record different colour scales; fix them with the scale flags and start over", ms[0].name, m.name)
 		}
 	}
 	return ms[0].Scales.scales(), nil

@@ -7,7 +7,7 @@ import (
 	"errors"
 	"image"
 	"image/png"
-	"maps"
+	stdmaps "maps"
 	"math"
 	"os"
 	"path/filepath"
@@ -16,13 +16,14 @@ import (
 	"testing"
 
 	"kerrscope/colormap"
-	"kerrscope/render"
+	"kerrscope/render/maps"
+	"kerrscope/render/pixels"
 	"kerrscope/scene"
 )
 
 // testPlan builds a small sweep in dir: 40×32 pixels, redshift and
 // intensity maps, bare PNGs and spectra, unless edit changes the scene.
-func testPlan(t *testing.T, dir string, specs []string, edit func(*scene.Scene), fixed render.Scales) *Plan {
+func testPlan(t *testing.T, dir string, specs []string, edit func(*scene.Scene), fixed maps.Scales) *Plan {
 	t.Helper()
 	s := scene.Default()
 	s.Screen.Width, s.Screen.Height, s.Screen.FieldOfView = 40, 32, 36
@@ -111,7 +112,7 @@ func TestPlanValidatesEveryFrame(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	_, err = NewPlan(s, []Axis{a}, render.Scales{})
+	_, err = NewPlan(s, []Axis{a}, maps.Scales{})
 	var pe *PointError
 	if !errors.As(err, &pe) || pe.Index != 5 || !strings.Contains(err.Error(), "black_hole.spin = 1") {
 		t.Fatalf("got %v", err)
@@ -120,15 +121,15 @@ func TestPlanValidatesEveryFrame(t *testing.T) {
 	c, _ := ParseAxis("index=2:4:3")
 	for _, bad := range []struct {
 		axes  []Axis
-		fixed render.Scales
+		fixed maps.Scales
 	}{
-		{nil, render.Scales{}},
-		{[]Axis{a, b, c}, render.Scales{}},
-		{[]Axis{b, b}, render.Scales{}},
-		{[]Axis{b}, render.Scales{GMin: 1.2}},
-		{[]Axis{b}, render.Scales{GMax: 0.8}},
-		{[]Axis{b}, render.Scales{RMin: 5, RMax: 4}},
-		{[]Axis{b}, render.Scales{IMax: -1}},
+		{nil, maps.Scales{}},
+		{[]Axis{a, b, c}, maps.Scales{}},
+		{[]Axis{b, b}, maps.Scales{}},
+		{[]Axis{b}, maps.Scales{GMin: 1.2}},
+		{[]Axis{b}, maps.Scales{GMax: 0.8}},
+		{[]Axis{b}, maps.Scales{RMin: 5, RMax: 4}},
+		{[]Axis{b}, maps.Scales{IMax: -1}},
 	} {
 		if _, err := NewPlan(s, bad.axes, bad.fixed); err == nil {
 			t.Errorf("%v %+v accepted", bad.axes, bad.fixed)
@@ -136,7 +137,7 @@ func TestPlanValidatesEveryFrame(t *testing.T) {
 	}
 	big, _ := ParseAxis("spin=0:0.9:200")
 	big2, _ := ParseAxis("inclination=0:90:51")
-	if _, err := NewPlan(s, []Axis{big, big2}, render.Scales{}); err == nil || !strings.Contains(err.Error(), "more than") {
+	if _, err := NewPlan(s, []Axis{big, big2}, maps.Scales{}); err == nil || !strings.Contains(err.Error(), "more than") {
 		t.Errorf("10200 frames: %v", err)
 	}
 	if _, err := os.Stat(dir); !errors.Is(err, os.ErrNotExist) {
@@ -149,7 +150,7 @@ func TestPlanValidatesEveryFrame(t *testing.T) {
 // scales, in every frame.
 func TestSharedScales(t *testing.T) {
 	dir := t.TempDir()
-	p := testPlan(t, dir, []string{"spin=0.3:0.998:3:log1m"}, nil, render.Scales{IDecades: 3})
+	p := testPlan(t, dir, []string{"spin=0.3:0.998:3:log1m"}, nil, maps.Scales{IDecades: 3})
 	rep := mustRun(t, p, Options{})
 	m := readManifest(t, rep.Manifest)
 	sc := m.Scales.scales()
@@ -163,13 +164,13 @@ func TestSharedScales(t *testing.T) {
 		t.Errorf("radius scale %v–%v", sc.RMin, sc.RMax)
 	}
 	files := dirFiles(t, dir, "frame-")
-	autos := map[render.Scales]bool{}
+	autos := map[maps.Scales]bool{}
 	for _, k := range []int{0, 2} {
-		f, err := render.RenderScene(context.Background(), p.Points[k].Scene, nil)
+		f, err := pixels.RenderScene(context.Background(), p.Points[k].Scene, nil)
 		if err != nil {
 			t.Fatal(err)
 		}
-		autos[f.AutoScales()] = true
+		autos[maps.AutoScales(f)] = true
 		g := f.FirstSeen(f.G)
 		pre := p.framePrefix(k)
 		bare := decodePNG(t, files[pre+"-redshift-bare.png"])
@@ -204,77 +205,21 @@ func sameColor(a, b interface{ RGBA() (r, g, b, a uint32) }) bool {
 	return r1 == r2 && g1 == g2 && b1 == b2 && a1 == a2
 }
 
-// Bookkeeping: the palette images show what the pixel-exact images show:
-// the same reserved colours exactly, the same categorical colours
-// exactly, and continuous colours up to the palette's 254 levels.
-func TestIndexedMatchesBare(t *testing.T) {
-	s := scene.Default()
-	s.Screen.Width, s.Screen.Height, s.Screen.FieldOfView = 48, 40, 40
-	s.Observer.InclinationDeg = 75
-	r, err := s.Resolve()
-	if err != nil {
-		t.Fatal(err)
-	}
-	f, err := render.RenderScene(context.Background(), r, nil)
-	if err != nil {
-		t.Fatal(err)
-	}
-	sc := f.AutoScales()
-	sc.FluxMax = 1
-	for _, m := range scene.MapNames {
-		bare := f.MapImage(m, sc)
-		idx := IndexedImage(f, m, sc)
-		continuous := m == "redshift" || m == "intensity" || m == "radius"
-		seen := map[uint8]bool{}
-		for k := 0; k < f.W*f.H; k++ {
-			x, y := k%f.W, k/f.W
-			i := idx.ColorIndexAt(x, y)
-			seen[i] = true
-			want, got := bare.RGBAAt(x, y), idx.Palette[i]
-			reserved := i == colormap.NoHitIndex || i == colormap.ShadowIndex
-			if !continuous || reserved {
-				if !sameColor(want, got) {
-					t.Fatalf("%s pixel %d: palette colour %v (index %d), bare %v", m, k, got, i, want)
-				}
-				continue
-			}
-			if want == colormap.NoHit || want == colormap.Shadow {
-				t.Fatalf("%s pixel %d: bare is reserved %v, palette index %d", m, k, want, i)
-			}
-			r1, g1, b1, _ := got.RGBA()
-			d := max(absDiff(r1>>8, uint32(want.R)), absDiff(g1>>8, uint32(want.G)), absDiff(b1>>8, uint32(want.B)))
-			if d > 10 {
-				t.Fatalf("%s pixel %d: palette colour %v, bare %v", m, k, got, want)
-			}
-		}
-		if len(seen) < 3 {
-			t.Errorf("%s: only %d palette entries used", m, len(seen))
-		}
-	}
-}
-
-func absDiff(a, b uint32) uint32 {
-	if a > b {
-		return a - b
-	}
-	return b - a
-}
-
 // Bookkeeping: a re-run redoes only the frames whose files are gone or
 // changed, and refuses a different sweep unless asked to start over.
 func TestResume(t *testing.T) {
 	dir := t.TempDir()
 	specs := []string{"inclination=30:75:4"}
-	p := testPlan(t, dir, specs, nil, render.Scales{})
+	p := testPlan(t, dir, specs, nil, maps.Scales{})
 	rep := mustRun(t, p, Options{Version: "test"})
 	if !slices.Equal(rep.Rendered, []int{0, 1, 2, 3}) || rep.Skipped != 0 || rep.Frames != 4 {
 		t.Fatalf("first run: %+v", rep)
 	}
 	before := dirFiles(t, dir, "")
 	if len(before) != 4*5+1 {
-		t.Fatalf("%d files: %v", len(before), slices.Sorted(maps.Keys(before)))
+		t.Fatalf("%d files: %v", len(before), slices.Sorted(stdmaps.Keys(before)))
 	}
-	rep = mustRun(t, testPlan(t, dir, specs, nil, render.Scales{}), Options{Version: "test"})
+	rep = mustRun(t, testPlan(t, dir, specs, nil, maps.Scales{}), Options{Version: "test"})
 	if len(rep.Rendered) != 0 || rep.Skipped != 4 {
 		t.Fatalf("unchanged re-run: %+v", rep)
 	}
@@ -284,7 +229,7 @@ func TestResume(t *testing.T) {
 	data := before["frame-0003-spectrum.csv"]
 	bad := bytes.Replace(data, []byte("e"), []byte("E"), 1)
 	os.WriteFile(spec, bad, 0o644)
-	rep = mustRun(t, testPlan(t, dir, specs, nil, render.Scales{}), Options{Version: "test"})
+	rep = mustRun(t, testPlan(t, dir, specs, nil, maps.Scales{}), Options{Version: "test"})
 	if !slices.Equal(rep.Rendered, []int{1, 3}) || rep.Skipped != 2 {
 		t.Fatalf("after damage: %+v", rep)
 	}
@@ -300,9 +245,9 @@ func TestResume(t *testing.T) {
 
 	// A different sweep in the same directory is refused…
 	for _, changed := range []*Plan{
-		testPlan(t, dir, []string{"inclination=30:75:5"}, nil, render.Scales{}),
-		testPlan(t, dir, specs, func(s *scene.Scene) { s.Emission.Index = 2.5 }, render.Scales{}),
-		testPlan(t, dir, specs, nil, render.Scales{GMax: 2}),
+		testPlan(t, dir, []string{"inclination=30:75:5"}, nil, maps.Scales{}),
+		testPlan(t, dir, specs, func(s *scene.Scene) { s.Emission.Index = 2.5 }, maps.Scales{}),
+		testPlan(t, dir, specs, nil, maps.Scales{GMax: 2}),
 	} {
 		if _, err := Run(context.Background(), changed, Options{}); !errors.Is(err, ErrDefinitionChanged) {
 			t.Errorf("changed sweep: %v", err)
@@ -312,16 +257,16 @@ func TestResume(t *testing.T) {
 		t.Error("a refused sweep changed the directory")
 	}
 	// … unless it starts over, which leaves nothing of the old sweep.
-	fewer := testPlan(t, dir, []string{"inclination=30:75:2"}, nil, render.Scales{})
+	fewer := testPlan(t, dir, []string{"inclination=30:75:2"}, nil, maps.Scales{})
 	rep = mustRun(t, fewer, Options{Restart: true})
 	if !slices.Equal(rep.Rendered, []int{0, 1}) {
 		t.Fatalf("restart: %+v", rep)
 	}
 	if left := dirFiles(t, dir, "frame-0002"); len(left) != 0 {
-		t.Errorf("restart left %v", slices.Sorted(maps.Keys(left)))
+		t.Errorf("restart left %v", slices.Sorted(stdmaps.Keys(left)))
 	}
 	// Changing a flag that the sweep overrides is not a change.
-	same := testPlan(t, dir, []string{"inclination=30:75:2"}, func(s *scene.Scene) { s.Observer.InclinationDeg = 12 }, render.Scales{})
+	same := testPlan(t, dir, []string{"inclination=30:75:2"}, func(s *scene.Scene) { s.Observer.InclinationDeg = 12 }, maps.Scales{})
 	if rep := mustRun(t, same, Options{}); len(rep.Rendered) != 0 {
 		t.Errorf("overridden base value re-rendered %v", rep.Rendered)
 	}
@@ -345,7 +290,7 @@ func TestInterrupted(t *testing.T) {
 		}
 	}
 	defer func() { hookStaged = nil }()
-	rep, err := Run(ctx, testPlan(t, dir, specs, nil, render.Scales{}), Options{})
+	rep, err := Run(ctx, testPlan(t, dir, specs, nil, maps.Scales{}), Options{})
 	hookStaged = nil
 	if !errors.Is(err, context.Canceled) || !slices.Equal(rep.Rendered, []int{0}) {
 		t.Fatalf("cancelled run: %+v, %v", rep, err)
@@ -360,11 +305,11 @@ func TestInterrupted(t *testing.T) {
 	if len(m.Frames) != 1 || m.Frames[0].Index != 0 {
 		t.Fatalf("manifest frames %+v", m.Frames)
 	}
-	rep = mustRun(t, testPlan(t, dir, specs, nil, render.Scales{}), Options{})
+	rep = mustRun(t, testPlan(t, dir, specs, nil, maps.Scales{}), Options{})
 	if !slices.Equal(rep.Rendered, []int{1, 2}) {
 		t.Fatalf("resumed: %+v", rep)
 	}
-	mustRun(t, testPlan(t, ref, specs, nil, render.Scales{}), Options{})
+	mustRun(t, testPlan(t, ref, specs, nil, maps.Scales{}), Options{})
 	got, want := dirFiles(t, dir, "frame-"), dirFiles(t, ref, "frame-")
 	if len(got) != len(want) || len(got) != 15 {
 		t.Fatalf("%d files, uninterrupted %d", len(got), len(want))
@@ -382,9 +327,9 @@ func TestInterrupted(t *testing.T) {
 func TestShardsMatchOneProcess(t *testing.T) {
 	one, many := t.TempDir(), t.TempDir()
 	specs := []string{"spin=0.1:0.9:3", "inclination=40:70:2"}
-	mustRun(t, testPlan(t, one, specs, nil, render.Scales{}), Options{})
+	mustRun(t, testPlan(t, one, specs, nil, maps.Scales{}), Options{})
 	for k := 1; k <= 4; k++ {
-		rep := mustRun(t, testPlan(t, many, specs, nil, render.Scales{}), Options{Shard: Shard{K: k, N: 4}})
+		rep := mustRun(t, testPlan(t, many, specs, nil, maps.Scales{}), Options{Shard: Shard{K: k, N: 4}})
 		var want []int
 		for i := k - 1; i < 6; i += 4 {
 			want = append(want, i)
@@ -408,7 +353,7 @@ func TestShardsMatchOneProcess(t *testing.T) {
 		}
 	}
 	if ms := dirFiles(t, many, "sweep-shard-"); len(ms) != 4 {
-		t.Errorf("manifests %v", slices.Sorted(maps.Keys(ms)))
+		t.Errorf("manifests %v", slices.Sorted(stdmaps.Keys(ms)))
 	}
 	for _, d := range []string{one, many} {
 		if _, err := Merge(d, MergeOptions{GIFs: []string{"redshift", "intensity"}}); err != nil {
@@ -423,7 +368,7 @@ func TestShardsMatchOneProcess(t *testing.T) {
 	}
 	// A sweep re-run in the sharded directory as one process finds every
 	// frame finished.
-	if rep := mustRun(t, testPlan(t, many, specs, nil, render.Scales{}), Options{}); len(rep.Rendered) != 0 || rep.Skipped != 6 {
+	if rep := mustRun(t, testPlan(t, many, specs, nil, maps.Scales{}), Options{}); len(rep.Rendered) != 0 || rep.Skipped != 6 {
 		t.Errorf("one process after shards: %+v", rep)
 	}
 }
@@ -431,7 +376,7 @@ func TestShardsMatchOneProcess(t *testing.T) {
 // gPosition is the redshift colour-scale position written out again for
 // the tests: g = 1 at the centre, log g scaled on each side so that GMin
 // and GMax reach the ends.
-func gPosition(sc render.Scales, g float64) float64 {
+func gPosition(sc maps.Scales, g float64) float64 {
 	if g < 1 {
 		return math.Max(0, 0.5*(1-math.Log(g)/math.Log(sc.GMin)))
 	}

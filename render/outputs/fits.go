@@ -1,11 +1,12 @@
-package render
+package outputs
 
 import (
 	"io"
 	"math"
 
 	"kerrscope/raytrace"
-	"kerrscope/render/fits"
+	"kerrscope/render/internal/fits"
+	"kerrscope/render/pixels"
 )
 
 // flipRows turns a top-row-first map into FITS order (first row at the bottom).
@@ -19,17 +20,17 @@ func flipRows(v []float32, w, h int) []float32 {
 
 // fitsAxes gives the linear WCS of the screen: world = α, β (in M) of
 // pixel centres. The axis names avoid WCS's reserved spectral names.
-func (f *Frame) fitsAxes() [2]fits.Axis {
+func fitsAxes(f *pixels.Frame) [2]fits.Axis {
 	r := f.Res
 	return [2]fits.Axis{
-		{Type: "ALPHA_M", RefPixel: 1, RefValue: PixelAlpha(r, 0), Delta: r.PixelSize},
-		{Type: "BETA_M", RefPixel: 1, RefValue: PixelBeta(r, f.H-1), Delta: r.PixelSize},
+		{Type: "ALPHA_M", RefPixel: 1, RefValue: pixels.PixelAlpha(r, 0), Delta: r.PixelSize},
+		{Type: "BETA_M", RefPixel: 1, RefValue: pixels.PixelBeta(r, f.H-1), Delta: r.PixelSize},
 	}
 }
 
-// FITSImages returns the maps as FITS image extensions.
-func (f *Frame) FITSImages() []fits.Image {
-	axes := f.fitsAxes()
+// fitsImages returns the maps as FITS image extensions.
+func fitsImages(f *pixels.Frame) []fits.Image {
+	axes := fitsAxes(f)
 	mk := func(name, unit, comment string, v []float32) fits.Image {
 		return fits.Image{Name: name, Unit: unit, Width: f.W, Height: f.H, Data: flipRows(v, f.W, f.H), Axes: axes,
 			Cards: []fits.Card{{Key: "COMMENT", Value: comment}, {Key: "COMMENT", Value: "axis 1 is alpha, axis 2 is beta, both in M (GM/c^2); NaN = no disk seen"}}}
@@ -66,9 +67,9 @@ func (f *Frame) FITSImages() []fits.Image {
 	return ims
 }
 
-// FITSHeader returns the primary header cards: what was rendered, with
+// fitsHeader returns the primary header cards: what was rendered, with
 // which program version.
-func (f *Frame) FITSHeader(version string) []fits.Card {
+func fitsHeader(f *pixels.Frame, version string) []fits.Card {
 	r := f.Res
 	cards := []fits.Card{
 		{Key: "ORIGIN", Value: "kerrscope " + version},
@@ -105,7 +106,7 @@ func (f *Frame) FITSHeader(version string) []fits.Card {
 	return cards
 }
 
-// WriteFITS writes all maps to one FITS file.
-func (f *Frame) WriteFITS(w io.Writer, version string) error {
-	return fits.Encode(w, f.FITSHeader(version), f.FITSImages())
+// writeFITS writes all maps to one FITS file.
+func writeFITS(w io.Writer, f *pixels.Frame, version string) error {
+	return fits.Encode(w, fitsHeader(f, version), fitsImages(f))
 }

@@ -1,4 +1,4 @@
-package render
+package pixels
 
 import (
 	"context"
@@ -117,7 +117,8 @@ func abs(x int) int {
 }
 
 func TestSpectrumFluxBookkeeping(t *testing.T) {
-	// Σ_bins F ΔE equals Σ_pixels I ΔΩ (physics notes §8): binning conserves flux.
+	// Σ_bins F ΔE equals Σ_pixels I ΔΩ (the flux is the image integral of I,
+	// Cunningham 1975, ApJ 202, 788): binning conserves flux.
 	r := resolve(t, func(s *scene.Scene) {
 		s.Disk.Opaque = false
 		s.Screen.Width, s.Screen.Height = 128, 96

@@ -1,11 +1,6 @@
-package render
+package pixels
 
-import (
-	"bufio"
-	"fmt"
-	"io"
-	"math"
-)
+import "math"
 
 // Spectrum is the line profile collapsed from an image: the flux of every
 // seen crossing, g³ ε L ΔΩ, binned at the observed energy g E0
@@ -145,7 +140,8 @@ func trapezoidCDF(x, a, b float64) float64 {
 }
 
 // Spectrum collapses the frame: every seen crossing adds Line × h² at
-// energy g E0 (physics notes §8), spread over the g range the pixel
+// energy g E0 (the observed photon flux density is the sum of I_E ΔΩ over
+// the image, Cunningham 1975, ApJ 202, 788), spread over the g range the pixel
 // covers (AddSpread) using the differences of g to the neighbouring
 // pixels of the same image order.
 //
@@ -254,36 +250,4 @@ func (s Spectrum) Broaden(fwhmEV float64) Spectrum {
 		}
 	}
 	return out
-}
-
-// WriteCSV writes the spectrum: a commented header with units and
-// normalisation, then one row per bin: bin centre and edges in keV, total
-// flux density and one column per image order, all per keV.
-func (s *Spectrum) WriteCSV(w io.Writer, title string) error {
-	bw := bufio.NewWriter(w)
-	fmt.Fprintf(bw, "# %s\n", title)
-	fmt.Fprintf(bw, "# line rest energy %g keV; %d bins of %g keV from %g to %g keV", s.LineKeV, s.Bins(), s.Width(), s.MinKeV, s.MaxKeV)
-	if s.FWHMeV > 0 {
-		fmt.Fprintf(bw, "; Gaussian instrument response FWHM %g eV", s.FWHMeV)
-	}
-	fmt.Fprintln(bw)
-	fmt.Fprintln(bw, "# flux columns: photon-number flux density per keV, sum over pixels of g^3 eps(r) limb(cos delta) dOmega / dE,")
-	fmt.Fprintln(bw, "#   dOmega = pixel area in M^2 for an observer at D = 1 M (scale by (M/D)^2); eps in the scene's emissivity units")
-	fmt.Fprintf(bw, "# flux outside the energy range: below %.10g, above %.10g (same units times keV)\n", s.Below, s.Above)
-	fmt.Fprint(bw, "energy_kev,energy_lo_kev,energy_hi_kev,flux_total")
-	for o := range s.Order {
-		fmt.Fprintf(bw, ",flux_order_%d", o)
-	}
-	fmt.Fprintln(bw)
-	tot := s.Total()
-	wd := s.Width()
-	for k := range tot {
-		lo := s.MinKeV + float64(k)*wd
-		fmt.Fprintf(bw, "%.8g,%.8g,%.8g,%.10g", lo+wd/2, lo, lo+wd, tot[k]/wd)
-		for o := range s.Order {
-			fmt.Fprintf(bw, ",%.10g", s.Order[o][k]/wd)
-		}
-		fmt.Fprintln(bw)
-	}
-	return bw.Flush()
 }

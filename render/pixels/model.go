@@ -1,9 +1,12 @@
-// Package render turns a resolved scene into pixels, per-pixel records, a
-// collapsed line spectrum and output files (PNG figures, FITS data, CSV
-// spectra, a manifest). It uses raytrace for the photons, scene for the
-// disk's gas and emission, render/figure for drawing and colormap for
-// colours.
-package render
+// Package pixels is the compute stage of the renderer: it turns a resolved
+// scene into per-pixel records (fate, source radius, redshift factor and
+// intensity of each image order), with one photon per pixel centre or
+// adaptive refinement, collapses them into a line spectrum, and locates
+// bands of source radii on the screen. It uses raytrace for the photons and
+// scene for the disk's gas and emission; it knows nothing of files,
+// colours, figures or the terminal (those are render/maps and
+// render/outputs).
+package pixels
 
 import (
 	"math"

@@ -1,13 +1,12 @@
-package render
+package pixels
 
 import (
 	"context"
 	"math"
-	"runtime"
 	"sync"
-	"sync/atomic"
 
 	"kerrscope/raytrace"
+	"kerrscope/render/internal/workers"
 	"kerrscope/scene"
 )
 
@@ -37,6 +36,16 @@ func PixelAlpha(r scene.Resolved, i int) float64 {
 // PixelBeta returns β of the centre of row j (row 0 at the top).
 func PixelBeta(r scene.Resolved, j int) float64 {
 	return r.Screen.CenterBeta + (float64(r.Screen.Height)/2-float64(j)-0.5)*r.PixelSize
+}
+
+// RenderScene renders the scene's frame: one photon per pixel centre, or with
+// adaptive refinement when the scene asks for it.
+func RenderScene(ctx context.Context, r scene.Resolved, progress func(rows int)) (*Frame, error) {
+	if r.Refine.Depth > 0 {
+		f, _, _, err := RenderRefined(ctx, r, Refinement{Depth: r.Refine.Depth, TolR: r.Refine.TolR, TolG: r.Refine.TolG}, true, progress)
+		return f, err
+	}
+	return Render(ctx, r, progress)
 }
 
 // Render traces one photon through the centre of every pixel, on all
@@ -88,29 +97,19 @@ func newFrame(r scene.Resolved, m Model) *Frame {
 	return f
 }
 
-// parallel runs job(i) for i in [0, count) on all cores, handing out
-// indices through an atomic counter; each goroutine has its own scratch
-// path (for orders crossings) and sample. It stops handing out work once
-// ctx is cancelled.
+// scratch is one goroutine's trace buffer and photon record.
+type scratch struct {
+	p raytrace.Path
+	s Sample
+}
+
+// parallel runs job(i) for i in [0, count) on all cores; each goroutine
+// has its own scratch path (for orders crossings) and sample. It stops
+// handing out work once ctx is cancelled.
 func parallel(ctx context.Context, count, orders int, job func(i int, p *raytrace.Path, s *Sample)) {
-	var next atomic.Int64
-	var wg sync.WaitGroup
-	for range runtime.GOMAXPROCS(0) {
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			p := raytrace.Path{Crossings: make([]raytrace.Crossing, 0, orders)}
-			var s Sample
-			for {
-				i := int(next.Add(1) - 1)
-				if i >= count || ctx.Err() != nil {
-					return
-				}
-				job(i, &p, &s)
-			}
-		}()
-	}
-	wg.Wait()
+	workers.Each(ctx, count, func() *scratch {
+		return &scratch{p: raytrace.Path{Crossings: make([]raytrace.Crossing, 0, orders)}}
+	}, func(i int, w *scratch) { job(i, &w.p, &w.s) })
 }
 
 func (f *Frame) store(k int, s *Sample) {
@@ -160,4 +159,11 @@ func (f *Frame) Total(q [][]float32) []float32 {
 		out[k] = float32(s)
 	}
 	return out
+}
+
+// Window returns the screen window's pixel-edge ranges in M.
+func (f *Frame) Window() (a0, a1, b0, b1 float64) {
+	r := f.Res
+	hw, hh := float64(f.W)*r.PixelSize/2, float64(f.H)*r.PixelSize/2
+	return r.Screen.CenterAlpha - hw, r.Screen.CenterAlpha + hw, r.Screen.CenterBeta - hh, r.Screen.CenterBeta + hh
 }

@@ -1,4 +1,4 @@
-package render
+package pixels
 
 import (
 	"context"
@@ -38,7 +38,7 @@ func TestRefinementBeatsUniform(t *testing.T) {
 
 func TestRefinedFrameBookkeeping(t *testing.T) {
 	// The refined spectrum holds exactly the flux of the area-weighted
-	// pixel means (physics notes §8), and the captured area of a = 0
+	// pixel means (flux = Σ I ΔΩ, Cunningham 1975), and the captured area of a = 0
 	// approaches π·27 (Synge 1966) closer than one photon per pixel does.
 	r := resolve(t, func(s *scene.Scene) {
 		s.Hole.Spin = 0

@@ -1,4 +1,4 @@
-package render
+package outputs
 
 import (
 	"bytes"
@@ -11,8 +11,21 @@ import (
 	"path/filepath"
 	"testing"
 
+	"kerrscope/render/pixels"
 	"kerrscope/scene"
 )
+
+func resolve(t *testing.T, edit func(s *scene.Scene)) scene.Resolved {
+	t.Helper()
+	s := scene.Default()
+	s.Screen.Width, s.Screen.Height = 64, 64
+	edit(&s)
+	r, err := s.Resolve()
+	if err != nil {
+		t.Fatal(err)
+	}
+	return r
+}
 
 func runScene(t *testing.T, dir string, edit func(s *scene.Scene)) []string {
 	t.Helper()
@@ -61,7 +74,7 @@ func TestFailedRunLeavesNothing(t *testing.T) {
 	// An interrupt midway through the rows: no frame, no files.
 	r := resolve(t, func(s *scene.Scene) { s.Output.Directory = filepath.Join(dir, "out"); s.Screen.Height = 200 })
 	ctx, cancel := context.WithCancel(context.Background())
-	f, err := Render(ctx, r, func(n int) {
+	f, err := pixels.Render(ctx, r, func(n int) {
 		if n == 50 {
 			cancel()
 		}
@@ -144,7 +157,10 @@ func TestFITSReadByAstropy(t *testing.T) {
 		s.Screen.Width, s.Screen.Height = 37, 29
 		s.Screen.CenterAlpha, s.Screen.CenterBeta = -1.5, 2.25
 	})
-	f := render(t, r)
+	f, err := pixels.Render(context.Background(), r, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
 	if _, err := Run(context.Background(), r, Options{Version: "test"}); err != nil {
 		t.Fatal(err)
 	}
@@ -181,9 +197,9 @@ func TestFITSReadByAstropy(t *testing.T) {
 		}
 		// FITS pixel (1,1) is our bottom-left pixel centre; (W,H) the top-right.
 		checks := [][3]float64{
-			{PixelAlpha(r, 0), PixelBeta(r, f.H-1)},
-			{PixelAlpha(r, f.W-1), PixelBeta(r, 0)},
-			{PixelAlpha(r, 2), PixelBeta(r, f.H-2)},
+			{pixels.PixelAlpha(r, 0), pixels.PixelBeta(r, f.H-1)},
+			{pixels.PixelAlpha(r, f.W-1), pixels.PixelBeta(r, 0)},
+			{pixels.PixelAlpha(r, 2), pixels.PixelBeta(r, f.H-2)},
 		}
 		for i, c := range checks {
 			if math.Abs(e.Corners[i][0]-c[0]) > 1e-12 || math.Abs(e.Corners[i][1]-c[1]) > 1e-12 {
@@ -221,7 +237,7 @@ func TestZoomWindow(t *testing.T) {
 		s.Output.Maps = []string{"redshift", "shadow"}
 	})
 	for i := 1; i < 32; i++ {
-		d := PixelAlpha(r, i) - PixelAlpha(r, i-1)
+		d := pixels.PixelAlpha(r, i) - pixels.PixelAlpha(r, i-1)
 		if math.Abs(d-1e-6/32) > 1e-9*1e-6 {
 			t.Fatalf("column spacing %v", d)
 		}

@@ -1,0 +1,118 @@
+package maps
+
+import (
+	"math"
+	"sort"
+
+	"kerrscope/render/pixels"
+)
+
+// Scales fixes the colour scales of the maps; zero fields are chosen from
+// the frame. Sweeps fix them up front so that animation frames share one
+// scale.
+type Scales struct {
+	GMin     float64 // redshift colours: g from GMin (< 1) to GMax (> 1), log scale on each side of g = 1
+	GMax     float64
+	IMax     float64 // intensity colour maximum
+	IDecades float64 // decades shown on a log intensity scale (default 4)
+	RMin     float64 // radius colour range (default: disk edges)
+	RMax     float64
+	FluxMax  float64 // spectrum plot upper limit (per keV)
+}
+
+// AutoScales returns the scales the frame would choose for itself.
+func AutoScales(f *pixels.Frame) Scales {
+	r := f.Res
+	sc := Scales{IDecades: 4, RMin: r.Inner, RMax: r.Disk.OuterRadius}
+	gmin, gmax := math.Inf(1), math.Inf(-1)
+	for _, g := range f.FirstSeen(f.G) {
+		if v := float64(g); !math.IsNaN(v) {
+			gmin, gmax = math.Min(gmin, v), math.Max(gmax, v)
+		}
+	}
+	sc.GMin, sc.GMax = 1/1.5, 1.5
+	if gmax > 0 {
+		sc.GMin, sc.GMax = math.Min(0.95, gmin), math.Max(1.05, gmax)
+	}
+	for _, v := range f.Total(f.Line) {
+		if x := float64(v); x > sc.IMax {
+			sc.IMax = x
+		}
+	}
+	if sc.IMax == 0 {
+		sc.IMax = 1
+	}
+	return sc
+}
+
+// Fill completes s with the frame's own choices where s is zero.
+func (s Scales) Fill(f *pixels.Frame) Scales {
+	auto := AutoScales(f)
+	if !(s.GMax > 1) || !(s.GMin > 0 && s.GMin < 1) {
+		s.GMin, s.GMax = auto.GMin, auto.GMax
+	}
+	if s.IMax <= 0 {
+		s.IMax = auto.IMax
+	}
+	if s.IDecades <= 0 {
+		s.IDecades = auto.IDecades
+	}
+	if !(s.RMin > 0) || !(s.RMax > s.RMin) {
+		s.RMin, s.RMax = auto.RMin, auto.RMax
+	}
+	return s
+}
+
+// GPosition places g on the diverging colour scale: g = 1 at the centre,
+// log g scaled separately on each side so that GMin and GMax reach the
+// ends (NaN stays NaN).
+func (s Scales) GPosition(g float64) float64 {
+	if g < 1 {
+		return math.Max(0, 0.5*(1-math.Log(g)/math.Log(s.GMin)))
+	}
+	return math.Min(1, 0.5*(1+math.Log(g)/math.Log(s.GMax)))
+}
+
+// niceRatios returns tick values of g between GMin and GMax, at least
+// 0.07 apart on the colour bar, always including g = 1.
+func niceRatios(sc Scales) []float64 {
+	cands := []float64{1, 0.5, 2, 0.2, 5, 0.1, 10, 0.05, 0.02, 0.01, 0.005, 0.3, 3, 0.7, 1.5, 0.4, 0.6, 0.8, 1.2, 1.1, 1.3, 4, 0.9, 1.4, 1.05, 0.95}
+	var out []float64
+	for _, g := range cands {
+		if g < sc.GMin*0.999 || g > sc.GMax*1.001 {
+			continue
+		}
+		t := sc.GPosition(g)
+		ok := true
+		for _, h := range out {
+			ok = ok && math.Abs(sc.GPosition(h)-t) >= 0.07
+		}
+		if ok {
+			out = append(out, g)
+		}
+	}
+	sort.Float64s(out)
+	return out
+}
+
+// decadeTicks returns the powers of ten within [lo, hi].
+func decadeTicks(lo, hi float64) []float64 {
+	var out []float64
+	for d := math.Ceil(math.Log10(lo)); d <= math.Floor(math.Log10(hi)); d++ {
+		out = append(out, math.Pow(10, d))
+	}
+	return out
+}
+
+// logTicks returns 1-2-5 values within [lo, hi].
+func logTicks(lo, hi float64) []float64 {
+	var out []float64
+	for d := math.Floor(math.Log10(lo)); d <= math.Ceil(math.Log10(hi)); d++ {
+		for _, m := range []float64{1, 2, 5} {
+			if v := m * math.Pow(10, d); v >= lo && v <= hi {
+				out = append(out, v)
+			}
+		}
+	}
+	return append([]float64{lo}, append(out, hi)...)
+}

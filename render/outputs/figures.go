@@ -1,0 +1,42 @@
+package outputs
+
+import (
+	"fmt"
+	"image/color"
+
+	"kerrscope/colormap"
+	"kerrscope/render/internal/figure"
+	"kerrscope/render/pixels"
+)
+
+// SpectrumPlot returns the figure of the spectrum: total and per order,
+// per keV, with the rest energy marked.
+func SpectrumPlot(s *pixels.Spectrum, title, subtitle string, fluxMax float64) figure.Plot {
+	w := s.Width()
+	x := make([]float64, s.Bins())
+	for k := range x {
+		x[k] = s.MinKeV + (float64(k)+0.5)*w
+	}
+	perKeV := func(v []float64) []float64 {
+		out := make([]float64, len(v))
+		for k := range v {
+			out[k] = v[k] / w
+		}
+		return out
+	}
+	p := figure.Plot{
+		Title: title, Subtitle: subtitle,
+		XLabel: "observed energy E [keV]",
+		YLabel: "photon flux density F_E [keV⁻¹, relative]",
+		XMin:   s.MinKeV, XMax: s.MaxKeV, YMax: fluxMax,
+		Legend: true,
+		VLines: []figure.VLine{{X: s.LineKeV, Label: fmt.Sprintf("%g keV rest", s.LineKeV), Color: color.RGBA{0x60, 0x60, 0x60, 0xff}, Dashed: true}},
+	}
+	p.Series = append(p.Series, figure.Series{X: x, Y: perKeV(s.Total()), Color: color.RGBA{0x10, 0x10, 0x10, 0xff}, Width: 2.5, Label: "all orders"})
+	if len(s.Order) > 1 {
+		for o, ord := range s.Order {
+			p.Series = append(p.Series, figure.Series{X: x, Y: perKeV(ord), Color: colormap.Order(o), Width: 1.5, Label: fmt.Sprintf("order n = %d", o), Dashed: o > 0})
+		}
+	}
+	return p
+}

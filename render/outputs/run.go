@@ -1,0 +1,76 @@
+// Package outputs writes what a run makes: the decorated figures and
+// pixel-exact PNGs of the maps (render/maps), the FITS file of every map,
+// the spectrum as CSV and figure, the band report, masks and figures, and
+// manifest.toml. Artifacts is the one list of a run's files; Write makes
+// them; Outputs stages them so that a failed run leaves nothing behind;
+// Run ties a render (render/pixels) to its files.
+package outputs
+
+import (
+	"context"
+	"fmt"
+	"io"
+	"strings"
+
+	"kerrscope/render/maps"
+	"kerrscope/render/pixels"
+	"kerrscope/scene"
+)
+
+// Options control a render run.
+type Options struct {
+	Version string // program version recorded in the outputs
+	// Progress, if not nil, is called with the number of rows traced.
+	Progress func(rows int)
+	Scales   maps.Scales // fixed colour scales; zero = chosen per frame
+	Band     bool        // also locate the scene's band of source radii
+}
+
+// Summary is what a run did.
+type Summary struct {
+	Files   []string           // paths written, sorted
+	Photons int64              // photons traced
+	Band    *pixels.BandReport // when Options.Band
+}
+
+// Run renders the scene and writes every requested output into its
+// directory: figures, pixel-exact PNGs, a FITS file of all maps, the
+// spectrum (CSV and plot), the band report and masks (Options.Band) and
+// manifest.toml (the effective scene). On any error nothing new is left
+// behind.
+func Run(ctx context.Context, r scene.Resolved, opt Options) (Summary, error) {
+	f, err := pixels.RenderScene(ctx, r, opt.Progress)
+	if err != nil {
+		return Summary{}, err
+	}
+	out, err := NewOutputs(r.Output.Directory)
+	if err != nil {
+		return Summary{}, err
+	}
+	sum := Summary{Photons: f.Photons}
+	job := Job{Frame: f, Scales: opt.Scales, Version: opt.Version}
+	if opt.Band {
+		rep, mask := f.LocateBand(r.BandMin, r.BandMax)
+		sum.Band = &rep
+		job.Band = &Band{Report: rep, Mask: mask}
+	}
+	arts := Artifacts(r.Output, Set{Band: opt.Band, Manifest: true})
+	if err := Write(ctx, arts, job, out.Write); err != nil {
+		out.Abort()
+		return Summary{}, err
+	}
+	sum.Files, err = out.Commit()
+	return sum, err
+}
+
+// WriteManifest writes the effective scene as TOML, headed by the program
+// version, so that `kerrscope render --scene manifest.toml` reproduces
+// the outputs exactly.
+func WriteManifest(w io.Writer, s scene.Scene, version string) error {
+	text, err := s.TOML()
+	if err != nil {
+		return err
+	}
+	_, err = fmt.Fprintf(w, "# kerrscope %s — effective scene of this run; render it again with\n#   kerrscope render --scene manifest.toml\n\n%s", version, strings.TrimLeft(string(text), "\n"))
+	return err
+}
