@@ -36,9 +36,9 @@ func commands() []command {
 		{"sweep", "render a scene over a range of spins, inclinations, ... (resumable, shardable)", runSweep},
 		{"sweep-merge", "merge a finished sweep: animated GIFs, all spectra in one plot", runSweepMerge},
 		{"probe", "trace the photon of one screen point and list its disk crossings", runProbe},
-		{"version", "print the program version", func([]string, io.Writer, io.Writer) error {
-			fmt.Println("kerrscope", version)
-			return nil
+		{"version", "print the program version", func(_ []string, stdout, _ io.Writer) error {
+			_, err := fmt.Fprintln(stdout, "kerrscope", version)
+			return err
 		}},
 	}
 }

@@ -3,6 +3,8 @@ package main
 import (
 	"bytes"
 	"encoding/json"
+	"errors"
+	"io"
 	"math"
 	"os"
 	"strings"
@@ -179,5 +181,21 @@ func TestDemoCLI(t *testing.T) {
 	}
 	if code, _, _ := runCLI("demo", "--scene", "x.toml"); code != 2 {
 		t.Errorf("demo --scene: exit %d", code)
+	}
+}
+
+// failingWriter fails every write, like a closed pipe.
+type failingWriter struct{}
+
+func (failingWriter) Write([]byte) (int, error) { return 0, errors.New("closed pipe") }
+
+func TestVersionWritesToStdout(t *testing.T) {
+	var out bytes.Buffer
+	if code := run([]string{"version"}, &out, io.Discard); code != 0 || out.String() != "kerrscope "+version+"\n" {
+		t.Fatalf("version: exit %d, %q", code, out.String())
+	}
+	var errb bytes.Buffer
+	if code := run([]string{"version"}, failingWriter{}, &errb); code == 0 || !strings.Contains(errb.String(), "closed pipe") {
+		t.Fatalf("version into a failing writer: exit %d, %q", code, errb.String())
 	}
 }
