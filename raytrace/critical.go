@@ -44,7 +44,7 @@ func criticalConstants(a, t float64) (r, lambda, eta float64) {
 // criticalBeta2 returns α and β² of the critical photon labelled t on this
 // observer's screen (β² < 0: that photon orbit is not seen at θo).
 func (o Observer) criticalBeta2(t float64) (alpha, beta2 float64) {
-	a := o.Spin
+	a := o.spin
 	_, lambda, eta := criticalConstants(a, t)
 	c, s := o.cos, o.sin
 	alpha = -lambda / s
@@ -60,10 +60,11 @@ func (o Observer) criticalBeta2(t float64) (alpha, beta2 float64) {
 // the curve is a circle of radius sqrt(η + a²) of the orbit with λ = 0.
 // Domain: n ≥ 8.
 func (o Observer) CriticalCurve(n int) []ScreenPoint {
+	o = o.resolved()
 	if n < 8 {
 		n = 8
 	}
-	a := o.Spin
+	a := o.spin
 	if o.sin == 0 {
 		// On the axis: only the orbit with λ = 0 reaches the observer.
 		lo, hi := 0.0, 1.0
@@ -164,7 +165,9 @@ func (o Observer) CriticalDistance(alpha, beta float64) (float64, ScreenPoint) {
 }
 
 // CriticalLocator answers many CriticalDistance queries for one observer,
-// sampling the curve once. Safe for concurrent use.
+// sampling the curve once. Safe for concurrent use. Build it with
+// Observer.NewCriticalLocator; the zero value measures to the curve of
+// Observer{}.
 type CriticalLocator struct {
 	o  Observer
 	ts []float64
@@ -172,6 +175,7 @@ type CriticalLocator struct {
 
 // NewCriticalLocator samples the observer's critical curve for Distance.
 func (o Observer) NewCriticalLocator() CriticalLocator {
+	o = o.resolved()
 	c := CriticalLocator{o: o}
 	if o.sin != 0 {
 		c.ts = o.criticalParams(400)
@@ -181,7 +185,7 @@ func (o Observer) NewCriticalLocator() CriticalLocator {
 
 // Distance is CriticalDistance with the sampling done once.
 func (c CriticalLocator) Distance(alpha, beta float64) (float64, ScreenPoint) {
-	o := c.o
+	o := c.o.resolved()
 	if o.sin == 0 {
 		pts := o.CriticalCurve(8)
 		rad := math.Hypot(pts[0].Alpha, pts[0].Beta)

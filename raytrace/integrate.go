@@ -89,8 +89,9 @@ var ErrNoConvergence = errors.New("raytrace: integrator exceeded its step limit"
 // turning point is passed). It is far slower than Trace.
 // Domain: any finite α, β; 1e-14 ≤ tol ≤ 1e-3.
 func (o Observer) Integrate(alpha, beta float64, orders int, tol float64, p *Path) error {
-	a := o.Spin
-	lambda, eta := o.Constants(alpha, beta)
+	o = o.resolved()
+	a := o.spin
+	lambda, eta := o.constants(alpha, beta)
 	p.Lambda, p.Eta = lambda, eta
 	p.Crossings = p.Crossings[:0]
 	p.Turn = math.Inf(1)

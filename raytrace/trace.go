@@ -51,16 +51,39 @@ type Path struct {
 
 // Observer is a distant observer at a given inclination from the spin axis
 // of a Kerr black hole of spin a. It is a plain value, safe for concurrent
-// use.
+// use and cheap to copy.
+//
+// NewObserver is the only way to configure one: it validates the spin and
+// the inclination and derives cos θo, sin θo and the horizon r₊ once, so an
+// observer cannot hold values that disagree with each other. The zero value
+// Observer{} is usable and behaves exactly as NewObserver(0, 0): a
+// Schwarzschild hole (a = 0) seen face-on (θo = 0°). Compare observers by
+// their accessors, not with ==, since Observer{} and NewObserver(0, 0) hold
+// different fields.
 type Observer struct {
-	Spin        float64 // a, signed, -1 < a < 1
-	Inclination float64 // θo in degrees, 0 ≤ θo ≤ 180
-	cos, sin    float64 // cos θo, sin θo (exact at 0°, 90°, 180°)
-	horizon     float64 // r₊
+	spin    float64 // a, signed, -1 < a < 1
+	incl    float64 // θo in degrees, 0 ≤ θo ≤ 180
+	cos     float64 // cos θo (exact at 0°, 90°, 180°)
+	sin     float64 // sin θo
+	horizon float64 // r₊ ≥ 1 once configured; 0 marks the zero value
 }
 
-// NewObserver validates the spin and inclination (in degrees) and returns
-// the observer.
+// faceOnSchwarzschild is NewObserver(0, 0), which the zero value stands for.
+var faceOnSchwarzschild = Observer{spin: 0, incl: 0, cos: 1, sin: 0, horizon: 2}
+
+// resolved returns o, or faceOnSchwarzschild for the zero value. r₊ ≥ 1
+// for every spin NewObserver accepts, so r₊ = 0 can only be Observer{}.
+// Every exported method calls it once on entry; the unexported ones may
+// then read the fields directly.
+func (o Observer) resolved() Observer {
+	if o.horizon == 0 {
+		return faceOnSchwarzschild
+	}
+	return o
+}
+
+// NewObserver validates the spin (-1 < a < 1) and the inclination θo in
+// degrees (0 ≤ θo ≤ 180) and returns the observer.
 func NewObserver(spin, inclinationDeg float64) (Observer, error) {
 	if err := ValidSpin(spin); err != nil {
 		return Observer{}, err
@@ -69,7 +92,7 @@ func NewObserver(spin, inclinationDeg float64) (Observer, error) {
 		return Observer{}, fmt.Errorf("inclination %v° outside [0°, 180°]", inclinationDeg)
 	}
 	c, s := cosSinDeg(inclinationDeg)
-	return Observer{Spin: spin, Inclination: inclinationDeg, cos: c, sin: s, horizon: Horizon(spin)}, nil
+	return Observer{spin: spin, incl: inclinationDeg, cos: c, sin: s, horizon: Horizon(spin)}, nil
 }
 
 // cosSinDeg returns cos and sin of an angle in degrees in [0, 180], exact
@@ -95,19 +118,30 @@ func cosSinDeg(deg float64) (c, s float64) {
 	return c, s
 }
 
+// Spin returns the signed spin a of the observer's black hole.
+func (o Observer) Spin() float64 { return o.resolved().spin }
+
+// InclinationDeg returns the inclination θo from the spin axis in degrees,
+// as given to NewObserver.
+func (o Observer) InclinationDeg() float64 { return o.resolved().incl }
+
 // Horizon returns r₊ of the observer's black hole.
-func (o Observer) Horizon() float64 { return o.horizon }
+func (o Observer) Horizon() float64 { return o.resolved().horizon }
 
 // CosInclination returns cos θo, exactly 0 at 90°.
-func (o Observer) CosInclination() float64 { return o.cos }
+func (o Observer) CosInclination() float64 { return o.resolved().cos }
 
 // SinInclination returns sin θo, exactly 0 at 0° and 180°.
-func (o Observer) SinInclination() float64 { return o.sin }
+func (o Observer) SinInclination() float64 { return o.resolved().sin }
 
 // Constants returns λ and η of the photon that reaches the screen at
 // (α, β): λ = -α sin θo, η = β² + (α² - a²) cos²θo (Bardeen 1973).
 func (o Observer) Constants(alpha, beta float64) (lambda, eta float64) {
-	a := o.Spin
+	return o.resolved().constants(alpha, beta)
+}
+
+func (o Observer) constants(alpha, beta float64) (lambda, eta float64) {
+	a := o.spin
 	lambda = -alpha * o.sin
 	eta = beta*beta + (alpha-a)*(alpha+a)*o.cos*o.cos
 	return lambda, eta
@@ -124,12 +158,13 @@ func (o Observer) Constants(alpha, beta float64) (lambda, eta float64) {
 // Lupsasca (2020, eqs. A6–A13 / B45–B58 in our notation). Domain: any
 // finite α, β; η ≤ 0 photons never cross the plane.
 func (o Observer) Trace(alpha, beta float64, orders int, p *Path) {
-	lambda, eta := o.Constants(alpha, beta)
+	o = o.resolved()
+	lambda, eta := o.constants(alpha, beta)
 	o.trace(lambda, eta, beta, orders, p)
 }
 
 func (o Observer) trace(lambda, eta, beta float64, orders int, p *Path) {
-	a := o.Spin
+	a := o.spin
 	p.Lambda, p.Eta = lambda, eta
 	p.Crossings = p.Crossings[:0]
 	p.Turn = math.Inf(1)

@@ -40,7 +40,7 @@ func Probe(o raytrace.Observer, alpha, beta float64, orders int, redshift func(c
 	var p raytrace.Path
 	o.Trace(alpha, beta, orders, &p)
 	rep := ProbeReport{
-		Spin: o.Spin, InclinationDeg: o.Inclination, Alpha: alpha, Beta: beta,
+		Spin: o.Spin(), InclinationDeg: o.InclinationDeg(), Alpha: alpha, Beta: beta,
 		Lambda: p.Lambda, Eta: p.Eta, Fate: p.Fate.String(), RootCase: p.Roots.String(),
 		TotalMino: p.Mino, Crossings: []ProbeCrossing{},
 	}
