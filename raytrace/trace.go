@@ -7,6 +7,39 @@ import (
 	"gonum.org/v1/gonum/integrate/quad"
 )
 
+// Numerical policy of the closed-form trace. These are choices of this
+// package, not constants of the physics; the tests in extremes_test.go and
+// the cross-checks against Integrate and the reference rays hold them.
+const (
+	// nearExtremalSpin and nearExtremalLambda gate refineNearPair: the
+	// radial roots are re-polished with R(r) in its physical form only if
+	// |a| > nearExtremalSpin and |λ - 2a| < nearExtremalLambda. Two roots
+	// crowd together at r ≈ 1 only as |a| → 1 for photons with λ → 2a: at
+	// a = 1 the spherical photon orbits have λ(r) = 1 + r(2 - r) (Bardeen
+	// 1973, with Δ = (r - 1)²), which tends to 2 at the horizon r = 1.
+	// Both bounds are generous; refineNearPair keeps a root only where
+	// Newton's method settles well inside the gap to its neighbour, so the
+	// gate bounds where its extra iterations are spent.
+	nearExtremalSpin   = 0.9
+	nearExtremalLambda = 0.5
+
+	// minCaseIIComplement is the floor on the complementary parameter
+	// 1 - k of case II. It reaches 0 only on the critical curve itself,
+	// where K(k) ≈ ½ ln(16/(1 - k)) (DLMF §19.12) diverges; the floor
+	// keeps K ≈ 347 finite (a very long but finite Mino time), in the same
+	// spirit as the split of an exact double root in radialRoots. Any
+	// positive normal number far below the values real rays produce would
+	// do; 1e-300 stays clear of the subnormal range (below 2.2e-308).
+	minCaseIIComplement = 1e-300
+
+	// minoQuadNodes is the size of the fixed Gauss–Legendre rule of
+	// minoQuad. A fixed rule keeps the result the same on every call and
+	// allocation-free; 64 nodes is a generous choice for its integrand,
+	// which is smooth and bounded on the whole range for the photons that
+	// use it (no root of R in the range).
+	minoQuadNodes = 64
+)
+
 // Fate is where a photon traced backward from the observer ends.
 type Fate uint8
 
@@ -174,7 +207,7 @@ func (o Observer) trace(lambda, eta, beta float64, orders int, p *Path) {
 	B := 2 * (eta + lma*lma)
 	C := -a * a * eta
 	q := radialRoots(A, B, C)
-	if math.Abs(a) > 0.9 && math.Abs(lambda-2*a) < 0.5 {
+	if math.Abs(a) > nearExtremalSpin && math.Abs(lambda-2*a) < nearExtremalLambda {
 		// Near-extremal holes: roots crowd at r ≈ 1 (see refineNearPair).
 		q.refineNearPair(a, lambda, eta)
 	}
@@ -333,8 +366,8 @@ func newRadialII(q quartic, rh float64) radial {
 		small = im2 * (bp - ap + r21) / ((ap + d2) * (bp + d1))
 	}
 	mc := (r21 - ap + bp) * small / (4 * ap * bp)
-	if tiny := 1e-300; !(mc > tiny) {
-		mc = tiny // the critical curve itself: see radialRoots
+	if !(mc > minCaseIIComplement) {
+		mc = minCaseIIComplement // the critical curve itself: see radialRoots
 	}
 	x0 := ellipFcos((ap-bp)/(ap+bp), mc)
 	scale := math.Sqrt(ap * bp)
@@ -391,17 +424,18 @@ func (rd radial) at(tau float64) float64 {
 	return rd.num1/rd.den1 + 2*rd.ap*rd.bp*rd.r21/(rd.den1*rd.den1*diff)
 }
 
-// legendre is a fixed 64-point Gauss–Legendre rule, set up once.
+// legendre is the fixed Gauss–Legendre rule of minoQuad on [0, 1], set up
+// once.
 var legendre = func() struct{ x, w []float64 } {
-	x := make([]float64, 64)
-	w := make([]float64, 64)
+	x := make([]float64, minoQuadNodes)
+	w := make([]float64, minoQuadNodes)
 	quad.Legendre{}.FixedLocations(x, w, 0, 1)
 	return struct{ x, w []float64 }{x, w}
 }()
 
 // minoQuad returns ∫₀^{uMax} du / sqrt(1 + A u² + B u³ + C u⁴), the Mino
-// time from infinity to r = 1/uMax, by 64-point Gauss–Legendre quadrature
-// (gonum). It serves only photons with no real root outside the horizon
+// time from infinity to r = 1/uMax, by fixed Gauss–Legendre quadrature
+// with minoQuadNodes nodes (gonum). It serves only photons with no real root outside the horizon
 // and η ≤ 0, which never cross the equatorial plane, so the crossings
 // stay closed-form. The integrand is smooth there (no root in the range).
 func minoQuad(A, B, C, uMax float64) float64 {
