@@ -7,8 +7,9 @@ import (
 
 // checkInvariants asserts what must hold for any ray: finite results,
 // crossings at or outside the horizon, strictly increasing Mino times
-// inside the total, and no crossing for η ≤ 0 (physics of §4: such photons
-// never reach the equatorial plane; Carter 1968).
+// inside the total, and no crossing for η ≤ 0 (at cos θ = 0 the angular
+// potential (dx/dτ)² = η + A x² - a² x⁴ equals η, so such photons never
+// reach the equatorial plane; Carter 1968).
 func checkInvariants(t *testing.T, o Observer, alpha, beta float64, p *Path) {
 	t.Helper()
 	bad := func(v float64) bool { return math.IsNaN(v) || math.IsInf(v, 0) }

@@ -90,8 +90,7 @@ type quartic struct {
 // radialRoots solves r⁴ + A r² + B r + C = 0 by Ferrari's method through
 // the resolvent cubic 16y³ + 8Ay² + (A² - 4C)y - B²/4 = 0 with y = z²,
 // z = (r3 + r4)/2, taking its largest real root (the pairing {r1,r2},{r3,r4}
-// of Gralla & Lupsasca 2020, eqs. 95–96, which the physics notes write with
-// ω±). Then r1,2 = -z ∓ sqrt(D12), r3,4 = z ∓ sqrt(D34) with
+// of Gralla & Lupsasca 2020, eqs. 95–96). Then r1,2 = -z ∓ sqrt(D12), r3,4 = z ∓ sqrt(D34) with
 // D12 = -A/2 - z² + B/(4z), D34 = -A/2 - z² - B/(4z). Real roots are
 // polished with a guarded Newton step. Domain: finite A, B ≥ 0, C.
 func radialRoots(A, B, C float64) quartic {

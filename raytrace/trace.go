@@ -66,7 +66,7 @@ func (f Fate) String() string {
 // the photon reaches the observer).
 type Crossing struct {
 	R    float64 // Boyer–Lindquist radius of the crossing, in M
-	Mino float64 // Mino time from the observer, backward, in M
+	Mino float64 // Mino time from the observer, backward, in 1/M
 	// Outbound: the photon left this point moving to larger r (p_r > 0).
 	Outbound bool
 }
@@ -188,8 +188,9 @@ func (o Observer) constants(alpha, beta float64) (lambda, eta float64) {
 // Angular motion: τ_n = (2n+1)G_θ + s(G_θ - G_o), s = sign(β) sign(cos θo)
 // (Gralla & Lupsasca 2020, PRD 101, 044032, eqs. 80–82). Radial motion:
 // r(τ) from the Jacobi sn (case I) and cn (case II) forms of Gralla &
-// Lupsasca (2020, eqs. A6–A13 / B45–B58 in our notation). Domain: any
-// finite α, β; η ≤ 0 photons never cross the plane.
+// Lupsasca (2020, eqs. A6–A13 and B45–B58), with the symbols of the
+// package documentation. Domain: any finite α, β; η ≤ 0 photons never
+// cross the plane.
 func (o Observer) Trace(alpha, beta float64, orders int, p *Path) {
 	o = o.resolved()
 	lambda, eta := o.constants(alpha, beta)
