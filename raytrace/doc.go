@@ -26,8 +26,15 @@
 //	fmt.Println(p.Fate) // where the photon came from: horizon or infinity
 //
 // The crossing radii, with CircularOrbit, give the redshift of orbiting gas;
-// CriticalCurve gives the edge of the black hole's shadow. The examples show
-// each in a few lines.
+// CriticalCurve gives the edge of the black hole's shadow. The runnable
+// examples in example_test.go show each in a few lines; they run with
+// go test and are rendered by go doc -http:
+//
+//   - ExampleNewObserver: configuring an observer; the zero value.
+//   - ExampleObserver_Trace: one photon's crossings and fate.
+//   - ExampleObserver_Integrate: the same photon by numerical integration.
+//   - ExampleCircularOrbit_redshift: g of a Keplerian disk on a 3×3 grid.
+//   - ExampleObserver_CriticalCurve: the shadow's edge and its extent.
 //
 // # Method
 //
