@@ -36,6 +36,9 @@
 //   - ExampleCircularOrbit_redshift: g of a Keplerian disk on a 3×3 grid.
 //   - ExampleObserver_CriticalCurve: the shadow's edge and its extent.
 //
+// Analyses built on it that need no pixels, a report of one photon and the
+// widths of the lensing bands, are in package kerrscope/raytrace/survey.
+//
 // # Method
 //
 // A photon arriving at (α, β) has the constants of motion
