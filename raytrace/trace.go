@@ -9,7 +9,7 @@ import (
 
 // Numerical policy of the closed-form trace. These are choices of this
 // package, not constants of the physics; the tests in extremes_test.go and
-// the cross-checks against Integrate and the reference rays hold them.
+// the cross-checks against Integrate and the reference rays guard them.
 const (
 	// nearExtremalSpin and nearExtremalLambda gate refineNearPair: the
 	// radial roots are re-polished with R(r) in its physical form only if
