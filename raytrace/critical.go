@@ -5,6 +5,33 @@ import (
 	"sort"
 )
 
+// Sampling and search policy of the critical curve (choices of this
+// package).
+const (
+	// minCurvePoints is the least n CriticalCurve accepts.
+	minCurvePoints = 8
+	// curveScan is the number of equal steps in the orbit parameter t
+	// used to find the part of the curve seen at an inclination before
+	// its ends are bisected.
+	curveScan = 4096
+	// searchMaxIter and searchTol bound the bisections in t ∈ [0, 1] and
+	// the golden-section search of CriticalLocator: 1e-17 lies below the
+	// float64 spacing near t = 1 (1.1e-16), so the searches run until the
+	// bracket stops shrinking, within searchMaxIter halvings.
+	searchMaxIter = 200
+	searchTol     = 1e-17
+	// progradePoints extra parameters t - tlo = 10^(progradeFirstExp + j/
+	// progradePerDecade), j = 0 … progradePoints-1, resolve the thin
+	// near-horizon vertical piece of the curve of near-extremal holes
+	// (α ≈ -2/sin θo), which spans a tiny range of t at the prograde end.
+	progradePoints    = 48
+	progradeFirstExp  = -12
+	progradePerDecade = 4
+	// locatorSamples is the sampling of the curve that CriticalLocator
+	// brackets its nearest point on before refining it.
+	locatorSamples = 400
+)
+
 // ScreenPoint is a point (α, β) on the observer's screen, in M.
 type ScreenPoint struct{ Alpha, Beta float64 }
 
@@ -44,7 +71,7 @@ func criticalConstants(a, t float64) (r, lambda, eta float64) {
 // criticalBeta2 returns α and β² of the critical photon labelled t on this
 // observer's screen (β² < 0: that photon orbit is not seen at θo).
 func (o Observer) criticalBeta2(t float64) (alpha, beta2 float64) {
-	a := o.Spin
+	a := o.spin
 	_, lambda, eta := criticalConstants(a, t)
 	c, s := o.cos, o.sin
 	alpha = -lambda / s
@@ -58,17 +85,18 @@ func (o Observer) criticalBeta2(t float64) (alpha, beta2 float64) {
 // Points cluster where the curve bends fastest and, for spins near 1, along
 // the near-horizon vertical piece at α ≈ -2/sin θo. For θo = 0° or 180°
 // the curve is a circle of radius sqrt(η + a²) of the orbit with λ = 0.
-// Domain: n ≥ 8.
+// Domain: n ≥ 8 (smaller n is raised to 8).
 func (o Observer) CriticalCurve(n int) []ScreenPoint {
-	if n < 8 {
-		n = 8
+	o = o.resolved()
+	if n < minCurvePoints {
+		n = minCurvePoints
 	}
-	a := o.Spin
+	a := o.spin
 	if o.sin == 0 {
 		// On the axis: only the orbit with λ = 0 reaches the observer.
 		lo, hi := 0.0, 1.0
 		_, l0, _ := criticalConstants(a, lo)
-		for i := 0; i < 200 && hi-lo > 1e-17; i++ {
+		for i := 0; i < searchMaxIter && hi-lo > searchTol; i++ {
 			mid := (lo + hi) / 2
 			_, lm, _ := criticalConstants(a, mid)
 			if (lm > 0) == (l0 > 0) {
@@ -107,10 +135,9 @@ func (o Observer) CriticalCurve(n int) []ScreenPoint {
 // ends and, geometrically, toward the prograde end; nil if none is seen.
 func (o Observer) criticalParams(n int) []float64 {
 	// Find the t-interval where β² ≥ 0 by scanning, then bisecting its ends.
-	const scan = 4096
 	first, last := -1, -1
-	for i := 0; i <= scan; i++ {
-		if _, b2 := o.criticalBeta2(float64(i) / scan); b2 >= 0 {
+	for i := 0; i <= curveScan; i++ {
+		if _, b2 := o.criticalBeta2(float64(i) / curveScan); b2 >= 0 {
 			if first < 0 {
 				first = i
 			}
@@ -121,7 +148,7 @@ func (o Observer) criticalParams(n int) []float64 {
 		return nil
 	}
 	edge := func(in, out float64) float64 {
-		for i := 0; i < 200 && math.Abs(in-out) > 1e-17; i++ {
+		for i := 0; i < searchMaxIter && math.Abs(in-out) > searchTol; i++ {
 			mid := (in + out) / 2
 			if _, b2 := o.criticalBeta2(mid); b2 >= 0 {
 				in = mid
@@ -133,21 +160,21 @@ func (o Observer) criticalParams(n int) []float64 {
 	}
 	tlo, thi := 0.0, 1.0
 	if first > 0 {
-		tlo = edge(float64(first)/scan, float64(first-1)/scan)
+		tlo = edge(float64(first)/curveScan, float64(first-1)/curveScan)
 	}
-	if last < scan {
-		thi = edge(float64(last)/scan, float64(last+1)/scan)
+	if last < curveScan {
+		thi = edge(float64(last)/curveScan, float64(last+1)/curveScan)
 	}
 	span := thi - tlo
-	ts := make([]float64, 0, n+64)
+	ts := make([]float64, 0, n+progradePoints)
 	for i := 0; i < n; i++ {
 		u := float64(i) / float64(n-1)
 		ts = append(ts, tlo+span*(1-math.Cos(math.Pi*u))/2)
 	}
 	// Geometric points near the prograde end resolve the thin vertical
 	// piece of near-extremal holes.
-	for j := 0; j < 48; j++ {
-		ts = append(ts, tlo+span*math.Pow(10, -12+float64(j)/4))
+	for j := 0; j < progradePoints; j++ {
+		ts = append(ts, tlo+span*math.Pow(10, progradeFirstExp+float64(j)/progradePerDecade))
 	}
 	sort.Float64s(ts)
 	return ts
@@ -164,7 +191,9 @@ func (o Observer) CriticalDistance(alpha, beta float64) (float64, ScreenPoint) {
 }
 
 // CriticalLocator answers many CriticalDistance queries for one observer,
-// sampling the curve once. Safe for concurrent use.
+// sampling the curve once. Safe for concurrent use. Build it with
+// Observer.NewCriticalLocator; the zero value measures to the curve of
+// Observer{}.
 type CriticalLocator struct {
 	o  Observer
 	ts []float64
@@ -172,16 +201,17 @@ type CriticalLocator struct {
 
 // NewCriticalLocator samples the observer's critical curve for Distance.
 func (o Observer) NewCriticalLocator() CriticalLocator {
+	o = o.resolved()
 	c := CriticalLocator{o: o}
 	if o.sin != 0 {
-		c.ts = o.criticalParams(400)
+		c.ts = o.criticalParams(locatorSamples)
 	}
 	return c
 }
 
 // Distance is CriticalDistance with the sampling done once.
 func (c CriticalLocator) Distance(alpha, beta float64) (float64, ScreenPoint) {
-	o := c.o
+	o := c.o.resolved()
 	if o.sin == 0 {
 		pts := o.CriticalCurve(8)
 		rad := math.Hypot(pts[0].Alpha, pts[0].Beta)
@@ -218,7 +248,7 @@ func (c CriticalLocator) Distance(alpha, beta float64) (float64, ScreenPoint) {
 	const gr = 0.6180339887498949
 	x1, x2 := hi-gr*(hi-lo), lo+gr*(hi-lo)
 	f1, f2 := dist(x1), dist(x2)
-	for i := 0; i < 200 && hi-lo > 1e-17*math.Max(1, math.Abs(hi)); i++ {
+	for i := 0; i < searchMaxIter && hi-lo > searchTol*math.Max(1, math.Abs(hi)); i++ {
 		if f1 < f2 {
 			hi, x2, f2 = x2, x1, f1
 			x1 = hi - gr*(hi-lo)

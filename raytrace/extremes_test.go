@@ -7,24 +7,25 @@ import (
 
 // checkInvariants asserts what must hold for any ray: finite results,
 // crossings at or outside the horizon, strictly increasing Mino times
-// inside the total, and no crossing for η ≤ 0 (physics of §4: such photons
-// never reach the equatorial plane; Carter 1968).
+// inside the total, and no crossing for η ≤ 0 (at cos θ = 0 the angular
+// potential (dx/dτ)² = η + A x² - a² x⁴ equals η, so such photons never
+// reach the equatorial plane; Carter 1968).
 func checkInvariants(t *testing.T, o Observer, alpha, beta float64, p *Path) {
 	t.Helper()
 	bad := func(v float64) bool { return math.IsNaN(v) || math.IsInf(v, 0) }
 	if bad(p.Lambda) || bad(p.Eta) || bad(p.Mino) || p.Mino <= 0 {
-		t.Fatalf("a=%v i=%v α=%v β=%v: λ=%v η=%v total=%v", o.Spin, o.Inclination, alpha, beta, p.Lambda, p.Eta, p.Mino)
+		t.Fatalf("a=%v i=%v α=%v β=%v: λ=%v η=%v total=%v", o.Spin(), o.InclinationDeg(), alpha, beta, p.Lambda, p.Eta, p.Mino)
 	}
 	if p.Fate != Captured && p.Fate != Escaped {
-		t.Fatalf("a=%v i=%v α=%v β=%v: fate %v", o.Spin, o.Inclination, alpha, beta, p.Fate)
+		t.Fatalf("a=%v i=%v α=%v β=%v: fate %v", o.Spin(), o.InclinationDeg(), alpha, beta, p.Fate)
 	}
 	if p.Eta <= 0 && len(p.Crossings) > 0 {
-		t.Fatalf("a=%v i=%v α=%v β=%v: η=%v but %d crossings", o.Spin, o.Inclination, alpha, beta, p.Eta, len(p.Crossings))
+		t.Fatalf("a=%v i=%v α=%v β=%v: η=%v but %d crossings", o.Spin(), o.InclinationDeg(), alpha, beta, p.Eta, len(p.Crossings))
 	}
 	prev := 0.0
 	for i, c := range p.Crossings {
 		if bad(c.R) || bad(c.Mino) || c.R < o.Horizon() || !(c.Mino > prev) || c.Mino >= p.Mino {
-			t.Fatalf("a=%v i=%v α=%v β=%v: crossing %d = %+v (r+ = %v, total %v)", o.Spin, o.Inclination, alpha, beta, i, c, o.Horizon(), p.Mino)
+			t.Fatalf("a=%v i=%v α=%v β=%v: crossing %d = %+v (r+ = %v, total %v)", o.Spin(), o.InclinationDeg(), alpha, beta, i, c, o.Horizon(), p.Mino)
 		}
 		prev = c.Mino
 	}

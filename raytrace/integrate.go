@@ -22,6 +22,68 @@ var (
 	dpB4 = [7]float64{5179.0 / 57600, 0, 7571.0 / 16695, 393.0 / 640, -92097.0 / 339200, 187.0 / 2100, 1.0 / 40}
 )
 
+// Step-size control of Integrate: the standard controller for an embedded
+// pair, h_new = h · min(maxGrow, max(minShrink, stepSafety · err^stepExponent))
+// with err the error norm relative to the tolerance (Hairer, Nørsett &
+// Wanner, Solving ODEs I, sec. II.4). The exponent -1/(q+1) follows from
+// the order q = 4 of the lower member of the pair; the other values are the
+// usual textbook choices (common practice).
+const (
+	stepExponent = -1.0 / 5
+	stepSafety   = 0.9
+	minShrink    = 0.1 // largest cut of a rejected step
+	maxGrow      = 5.0 // largest growth after an accepted step
+
+	// initialStep is the first trial step in Mino time; the controller
+	// adapts it at once, so only its order of magnitude matters.
+	initialStep = 1e-3
+	// maxStep caps the step in Mino time, so that the event search
+	// brackets stay short near the horizon and the plane; away from the
+	// critical curve a whole ray takes a Mino time of order 1 (M = 1).
+	maxStep = 0.5
+	// minRestep is the smallest step taken after an event, so that the
+	// integration always moves past it.
+	minRestep = 1e-12
+	// maxSteps bounds the work per ray; hitting it returns ErrNoConvergence.
+	maxSteps = 2000000
+
+	// locateMaxIter bounds the regula-falsi iterations of locate, and
+	// locateRelTol is the bracket width, relative to the step, at which it
+	// stops (below the rounding unit 2.2e-16, so in practice it runs until
+	// the bracket stops shrinking or f vanishes).
+	locateMaxIter = 100
+	locateRelTol  = 1e-16
+	// locateZero is the |f| below which locate takes the point as the root:
+	// the event functions (u, u - 1/r₊, x, du/dτ) are of order 1, so this
+	// only catches exact or underflowing zeros.
+	locateZero = 1e-300
+)
+
+// event is what cuts an integration step short.
+type event uint8
+
+const (
+	noEvent         event = iota
+	planeCrossing         // x = cos θ changes sign: an equatorial crossing
+	horizonReached        // u reaches 1/r₊: the photon came out of the horizon
+	infinityReached       // u returns to 0: the photon came from infinity
+)
+
+// String names the event, for messages.
+func (e event) String() string {
+	switch e {
+	case noEvent:
+		return "none"
+	case planeCrossing:
+		return "equatorial plane"
+	case horizonReached:
+		return "horizon"
+	case infinityReached:
+		return "infinity"
+	}
+	return "unknown"
+}
+
 // odeState is (u, du/dτ, x, dx/dτ) with u = 1/r and x = cos θ.
 type odeState [4]float64
 
@@ -89,8 +151,9 @@ var ErrNoConvergence = errors.New("raytrace: integrator exceeded its step limit"
 // turning point is passed). It is far slower than Trace.
 // Domain: any finite α, β; 1e-14 ≤ tol ≤ 1e-3.
 func (o Observer) Integrate(alpha, beta float64, orders int, tol float64, p *Path) error {
-	a := o.Spin
-	lambda, eta := o.Constants(alpha, beta)
+	o = o.resolved()
+	a := o.spin
+	lambda, eta := o.constants(alpha, beta)
 	p.Lambda, p.Eta = lambda, eta
 	p.Crossings = p.Crossings[:0]
 	p.Turn = math.Inf(1)
@@ -105,8 +168,7 @@ func (o Observer) Integrate(alpha, beta float64, orders int, tol float64, p *Pat
 	y := odeState{0, 1, x0, dx0}
 	uh := 1 / o.horizon
 	tau := 0.0
-	h := 1e-3
-	const maxSteps = 2000000
+	h := initialStep
 	prevDu := 1.0
 	for n := 0; n < maxSteps; n++ {
 		y5, ev := g.step(y, h)
@@ -116,47 +178,47 @@ func (o Observer) Integrate(alpha, beta float64, orders int, tol float64, p *Pat
 			errn = math.Max(errn, math.Abs(ev[i])/sc)
 		}
 		if errn > 1 || math.IsNaN(errn) {
-			h *= math.Max(0.1, 0.9*math.Pow(errn, -0.2))
+			h *= math.Max(minShrink, stepSafety*math.Pow(errn, stepExponent))
 			if math.IsNaN(errn) {
 				h = h / 10
 			}
 			continue
 		}
 		// Events inside [tau, tau+h]: earliest of plane, horizon, infinity.
-		best, kind := h, 0
+		best, kind := h, noEvent
 		if y[2] != 0 && y5[2]*y[2] <= 0 {
 			if hs := g.locate(y, h, func(s odeState) float64 { return s[2] }); hs < best {
-				best, kind = hs, 1
+				best, kind = hs, planeCrossing
 			}
 		}
 		if y5[0] >= uh {
 			if hs := g.locate(y, h, func(s odeState) float64 { return s[0] - uh }); hs <= best {
-				best, kind = hs, 2
+				best, kind = hs, horizonReached
 			}
 		}
 		if y5[0] <= 0 && tau > 0 {
 			if hs := g.locate(y, h, func(s odeState) float64 { return s[0] }); hs <= best {
-				best, kind = hs, 3
+				best, kind = hs, infinityReached
 			}
 		}
-		if kind != 0 {
+		if kind != noEvent {
 			ys, _ := g.step(y, best)
 			switch kind {
-			case 1:
+			case planeCrossing:
 				if len(p.Crossings) < orders {
 					p.Crossings = append(p.Crossings, Crossing{R: 1 / ys[0], Mino: tau + best, Outbound: ys[1] > 0})
 				}
 				ys[2] = 0 // on the plane: the next step must not find it again
-			case 2:
+			case horizonReached:
 				p.Fate, p.Mino = Captured, tau+best
 				return nil
-			case 3:
+			case infinityReached:
 				p.Fate, p.Mino = Escaped, tau+best
 				return nil
 			}
 			y, tau = ys, tau+best
 			// Nudge past the event so it is not found again.
-			h = math.Max(h-best, 1e-12)
+			h = math.Max(h-best, minRestep)
 			continue
 		}
 		if prevDu > 0 && y5[1] <= 0 && math.IsInf(p.Turn, 1) {
@@ -164,13 +226,12 @@ func (o Observer) Integrate(alpha, beta float64, orders int, tol float64, p *Pat
 		}
 		prevDu = y5[1]
 		y, tau = y5, tau+h
-		fac := 5.0
+		fac := maxGrow
 		if errn > 0 {
-			fac = math.Min(5, 0.9*math.Pow(errn, -0.2))
+			fac = math.Min(maxGrow, stepSafety*math.Pow(errn, stepExponent))
 		}
 		h *= fac
-		// Steps in τ must stay small near the horizon and the plane.
-		h = math.Min(h, 0.5)
+		h = math.Min(h, maxStep)
 	}
 	return ErrNoConvergence
 }
@@ -186,14 +247,14 @@ func (g geodesicODE) locate(y odeState, h float64, f func(odeState) float64) flo
 		return 0
 	}
 	side := 0
-	for i := 0; i < 100; i++ {
+	for i := 0; i < locateMaxIter; i++ {
 		m := (lo*fhi - hi*flo) / (fhi - flo)
 		if !(m > lo && m < hi) {
 			m = (lo + hi) / 2
 		}
 		ym, _ := g.step(y, m)
 		fm := f(ym)
-		if fm == 0 || hi-lo < 1e-16*h {
+		if fm == 0 || hi-lo < locateRelTol*h {
 			return m
 		}
 		if (fm > 0) == (fhi > 0) {
@@ -209,7 +270,7 @@ func (g geodesicODE) locate(y odeState, h float64, f func(odeState) float64) flo
 			}
 			side = 1
 		}
-		if math.Abs(fm) < 1e-300 {
+		if math.Abs(fm) < locateZero {
 			return m
 		}
 	}

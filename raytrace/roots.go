@@ -28,6 +28,54 @@ func (c RootCase) String() string {
 	return "unknown"
 }
 
+// Numerical policy of the root finders (choices of this package; ε =
+// 2.2e-16 is the float64 rounding unit).
+const (
+	// polishedSeparation: a root difference r2 - r1 or r4 - r3 is taken
+	// from the polished roots when it exceeds this fraction of the largest
+	// root modulus. Subtracting two polished roots leaves a relative error
+	// of about ε · scale / difference, at most about 2e-10 above this
+	// bound; below it (near-double roots) the closed forms 2 sqrt(D) keep
+	// more digits.
+	polishedSeparation = 1e-6
+
+	// doubleRootSplit is how far, relative to max(1, r4), an exact double
+	// root r3 = r4 is split: about two rounding units (2ε ≈ 4.4e-16), the
+	// least that makes r4 - r3 positive.
+	doubleRootSplit = 4e-16
+
+	// nearDoubleResolvent: the resolvent cubic is treated as having a
+	// near-double largest root (and solved in trigonometric form) when its
+	// discriminant is below this fraction of q²/4: well above the
+	// rounding noise of the discriminant (about ε relative to q²/4), so
+	// rounding cannot turn a near-double root into a spurious complex pair.
+	nearDoubleResolvent = 1e-10
+
+	// resolventNewtonSteps, polishNewtonSteps and pairNewtonSteps bound the
+	// guarded Newton iterations of resolventMax, polish and refineNearPair.
+	// From the closed-form start at a simple root Newton's method
+	// converges quadratically and needs only a few steps; at a near-double
+	// root it is slow, and the bound stops it.
+	resolventNewtonSteps = 8
+	polishNewtonSteps    = 6
+	pairNewtonSteps      = 12
+
+	// polishResidual: polish reports a root as converged when |R(r)| is
+	// below this fraction of the sum of the magnitudes of its terms,
+	// r⁴ + |A| r² + |B r| + |C|: a few hundred ε, the rounding noise of
+	// evaluating a quartic whose terms cancel.
+	polishResidual = 1e-13
+
+	// pairNewtonTol is the relative Newton step at which refineNearPair
+	// stops (under ε, so in practice at the first step that rounds to
+	// nothing). A refined root replaces the Ferrari value only if the gap
+	// to its neighbour exceeds pairGapMargin times both the last Newton
+	// steps and pairNewtonTol·|r|: Newton's method settled well inside
+	// the gap.
+	pairNewtonTol = 1e-16
+	pairGapMargin = 1e3
+)
+
 // quartic holds the roots of R(r) in the form that the closed-form
 // solutions need, with the differences that matter computed without
 // cancellation.
@@ -42,8 +90,7 @@ type quartic struct {
 // radialRoots solves r⁴ + A r² + B r + C = 0 by Ferrari's method through
 // the resolvent cubic 16y³ + 8Ay² + (A² - 4C)y - B²/4 = 0 with y = z²,
 // z = (r3 + r4)/2, taking its largest real root (the pairing {r1,r2},{r3,r4}
-// of Gralla & Lupsasca 2020, eqs. 95–96, which the physics notes write with
-// ω±). Then r1,2 = -z ∓ sqrt(D12), r3,4 = z ∓ sqrt(D34) with
+// of Gralla & Lupsasca 2020, eqs. 95–96). Then r1,2 = -z ∓ sqrt(D12), r3,4 = z ∓ sqrt(D34) with
 // D12 = -A/2 - z² + B/(4z), D34 = -A/2 - z² - B/(4z). Real roots are
 // polished with a guarded Newton step. Domain: finite A, B ≥ 0, C.
 func radialRoots(A, B, C float64) quartic {
@@ -124,10 +171,10 @@ func radialRoots(A, B, C float64) quartic {
 		// Prefer differences of the polished roots where they are well
 		// separated; keep the closed forms for near-double roots.
 		scale := math.Max(math.Abs(q.r1), math.Abs(q.r4))
-		if d := q.r2 - q.r1; d > 1e-6*scale {
+		if d := q.r2 - q.r1; d > polishedSeparation*scale {
 			q.r21 = d
 		}
-		if d := q.r4 - q.r3; d > 1e-6*scale {
+		if d := q.r4 - q.r3; d > polishedSeparation*scale {
 			q.r43 = d
 		}
 		if q.r2 > q.r3 { // roots of both pairs interleave: sort
@@ -136,9 +183,9 @@ func radialRoots(A, B, C float64) quartic {
 			q.r43 = q.r4 - q.r3
 		}
 		// An exact double root r3 = r4 is the critical curve itself, where
-		// the photon would wind forever; split it by one rounding unit so
-		// the ray counts as just outside (finite winding, escape).
-		if tiny := 4e-16 * math.Max(1, math.Abs(q.r4)); q.r43 < tiny {
+		// the photon would wind forever; split it by about two rounding
+		// units so the ray counts as just outside (finite winding, escape).
+		if tiny := doubleRootSplit * math.Max(1, math.Abs(q.r4)); q.r43 < tiny {
 			q.r43 = tiny
 			q.r3 = q.r4 - tiny
 		}
@@ -173,7 +220,7 @@ func resolventMax(A, B, C float64) float64 {
 	// horizon of a near-extremal hole), rounding can turn them into a
 	// complex pair and Cardano's form would return the small root: use the
 	// trigonometric form there, with its argument clamped.
-	nearDouble := p < 0 && disc <= 1e-10*(qq*qq/4)
+	nearDouble := p < 0 && disc <= nearDoubleResolvent*(qq*qq/4)
 	if disc > 0 && !nearDouble {
 		s := math.Sqrt(disc)
 		u := math.Cbrt(-qq/2 - math.Copysign(s, qq))
@@ -195,7 +242,7 @@ func resolventMax(A, B, C float64) float64 {
 	// Newton polish, keeping a step only if it lowers |f|: at a near-double
 	// root f' ≈ 0 and an unguarded step would jump to the small root.
 	f := ((y+p2)*y+p1)*y + p0
-	for i := 0; i < 8 && f != 0; i++ {
+	for i := 0; i < resolventNewtonSteps && f != 0; i++ {
 		df := (3*y+2*p2)*y + p1
 		n := y - f/df
 		fn := ((n+p2)*n+p1)*n + p0
@@ -210,12 +257,12 @@ func resolventMax(A, B, C float64) float64 {
 	return y
 }
 
-// polish applies up to six Newton steps to a real root of
+// polish applies up to polishNewtonSteps Newton steps to a real root of
 // r⁴ + A r² + B r + C, keeping a step only if it lowers |R|, and reports
-// whether the residual reached rounding level.
+// whether the residual reached rounding level (polishResidual).
 func polish(r, A, B, C float64) (float64, bool) {
 	f := 0.0
-	for i := 0; i < 6; i++ {
+	for i := 0; i < polishNewtonSteps; i++ {
 		r2 := r * r
 		f = (r2+A)*r2 + B*r + C
 		if f == 0 {
@@ -235,7 +282,7 @@ func polish(r, A, B, C float64) (float64, bool) {
 	r2 := r * r
 	f = (r2+A)*r2 + B*r + C
 	terms := r2*r2 + math.Abs(A)*r2 + math.Abs(B*r) + math.Abs(C)
-	return r, math.Abs(f) <= 1e-13*terms
+	return r, math.Abs(f) <= polishResidual*terms
 }
 
 // refineNearPair re-polishes the roots r2, r3, r4 of case I with R(r)
@@ -255,7 +302,7 @@ func (q *quartic) refineNearPair(a, lambda, eta float64) {
 	ca := (1 - a) * (1 + a)
 	newton := func(r float64) (float64, float64) {
 		step := math.Inf(1)
-		for i := 0; i < 12; i++ {
+		for i := 0; i < pairNewtonSteps; i++ {
 			p := r*r + amb
 			d := (r-1)*(r-1) - ca
 			f := p*p - d*k
@@ -265,7 +312,7 @@ func (q *quartic) refineNearPair(a, lambda, eta float64) {
 			}
 			step = f / df
 			r -= step
-			if math.Abs(step) <= 1e-16*math.Abs(r) {
+			if math.Abs(step) <= pairNewtonTol*math.Abs(r) {
 				break
 			}
 		}
@@ -277,10 +324,10 @@ func (q *quartic) refineNearPair(a, lambda, eta float64) {
 	if !(r2 < r3 && r3 < r4) {
 		return
 	}
-	if gap := r4 - r3; gap > 1e3*(e3+e4) && gap > 1e3*1e-16*math.Abs(r4) {
+	if gap := r4 - r3; gap > pairGapMargin*(e3+e4) && gap > pairGapMargin*pairNewtonTol*math.Abs(r4) {
 		q.r3, q.r4, q.r43 = r3, r4, gap
 	}
-	if gap := r3 - r2; gap > 1e3*(e2+e3) && gap > 1e3*1e-16*math.Abs(r3) {
+	if gap := r3 - r2; gap > pairGapMargin*(e2+e3) && gap > pairGapMargin*pairNewtonTol*math.Abs(r3) {
 		q.r2 = r2
 		q.r21 = q.r2 - q.r1
 	}

@@ -7,6 +7,39 @@ import (
 	"gonum.org/v1/gonum/integrate/quad"
 )
 
+// Numerical policy of the closed-form trace. These are choices of this
+// package, not constants of the physics; the tests in extremes_test.go and
+// the cross-checks against Integrate and the reference rays guard them.
+const (
+	// nearExtremalSpin and nearExtremalLambda gate refineNearPair: the
+	// radial roots are re-polished with R(r) in its physical form only if
+	// |a| > nearExtremalSpin and |λ - 2a| < nearExtremalLambda. Two roots
+	// crowd together at r ≈ 1 only as |a| → 1 for photons with λ → 2a: at
+	// a = 1 the spherical photon orbits have λ(r) = 1 + r(2 - r) (Bardeen
+	// 1973, with Δ = (r - 1)²), which tends to 2 at the horizon r = 1.
+	// Both bounds are generous; refineNearPair keeps a root only where
+	// Newton's method settles well inside the gap to its neighbour, so the
+	// gate bounds where its extra iterations are spent.
+	nearExtremalSpin   = 0.9
+	nearExtremalLambda = 0.5
+
+	// minCaseIIComplement is the floor on the complementary parameter
+	// 1 - k of case II. It reaches 0 only on the critical curve itself,
+	// where K(k) ≈ ½ ln(16/(1 - k)) (DLMF §19.12) diverges; the floor
+	// keeps K ≈ 347 finite (a very long but finite Mino time), in the same
+	// spirit as the split of an exact double root in radialRoots. Any
+	// positive normal number far below the values real rays produce would
+	// do; 1e-300 stays clear of the subnormal range (below 2.2e-308).
+	minCaseIIComplement = 1e-300
+
+	// minoQuadNodes is the size of the fixed Gauss–Legendre rule of
+	// minoQuad. A fixed rule keeps the result the same on every call and
+	// allocation-free; 64 nodes is a generous choice for its integrand,
+	// which is smooth and bounded on the whole range for the photons that
+	// use it (no root of R in the range).
+	minoQuadNodes = 64
+)
+
 // Fate is where a photon traced backward from the observer ends.
 type Fate uint8
 
@@ -33,7 +66,7 @@ func (f Fate) String() string {
 // the photon reaches the observer).
 type Crossing struct {
 	R    float64 // Boyer–Lindquist radius of the crossing, in M
-	Mino float64 // Mino time from the observer, backward, in M
+	Mino float64 // Mino time from the observer, backward, in 1/M
 	// Outbound: the photon left this point moving to larger r (p_r > 0).
 	Outbound bool
 }
@@ -51,16 +84,39 @@ type Path struct {
 
 // Observer is a distant observer at a given inclination from the spin axis
 // of a Kerr black hole of spin a. It is a plain value, safe for concurrent
-// use.
+// use and cheap to copy.
+//
+// NewObserver is the only way to configure one: it validates the spin and
+// the inclination and derives cos θo, sin θo and the horizon r₊ once, so an
+// observer cannot hold values that disagree with each other. The zero value
+// Observer{} is usable and behaves exactly as NewObserver(0, 0): a
+// Schwarzschild hole (a = 0) seen face-on (θo = 0°). Compare observers by
+// their accessors, not with ==, since Observer{} and NewObserver(0, 0) hold
+// different fields.
 type Observer struct {
-	Spin        float64 // a, signed, -1 < a < 1
-	Inclination float64 // θo in degrees, 0 ≤ θo ≤ 180
-	cos, sin    float64 // cos θo, sin θo (exact at 0°, 90°, 180°)
-	horizon     float64 // r₊
+	spin    float64 // a, signed, -1 < a < 1
+	incl    float64 // θo in degrees, 0 ≤ θo ≤ 180
+	cos     float64 // cos θo (exact at 0°, 90°, 180°)
+	sin     float64 // sin θo
+	horizon float64 // r₊ ≥ 1 once configured; 0 marks the zero value
 }
 
-// NewObserver validates the spin and inclination (in degrees) and returns
-// the observer.
+// faceOnSchwarzschild is NewObserver(0, 0), which the zero value stands for.
+var faceOnSchwarzschild = Observer{spin: 0, incl: 0, cos: 1, sin: 0, horizon: 2}
+
+// resolved returns o, or faceOnSchwarzschild for the zero value. r₊ ≥ 1
+// for every spin NewObserver accepts, so r₊ = 0 can only be Observer{}.
+// Every exported method calls it once on entry; the unexported ones may
+// then read the fields directly.
+func (o Observer) resolved() Observer {
+	if o.horizon == 0 {
+		return faceOnSchwarzschild
+	}
+	return o
+}
+
+// NewObserver validates the spin (-1 < a < 1) and the inclination θo in
+// degrees (0 ≤ θo ≤ 180) and returns the observer.
 func NewObserver(spin, inclinationDeg float64) (Observer, error) {
 	if err := ValidSpin(spin); err != nil {
 		return Observer{}, err
@@ -69,7 +125,7 @@ func NewObserver(spin, inclinationDeg float64) (Observer, error) {
 		return Observer{}, fmt.Errorf("inclination %v° outside [0°, 180°]", inclinationDeg)
 	}
 	c, s := cosSinDeg(inclinationDeg)
-	return Observer{Spin: spin, Inclination: inclinationDeg, cos: c, sin: s, horizon: Horizon(spin)}, nil
+	return Observer{spin: spin, incl: inclinationDeg, cos: c, sin: s, horizon: Horizon(spin)}, nil
 }
 
 // cosSinDeg returns cos and sin of an angle in degrees in [0, 180], exact
@@ -95,19 +151,30 @@ func cosSinDeg(deg float64) (c, s float64) {
 	return c, s
 }
 
+// Spin returns the signed spin a of the observer's black hole.
+func (o Observer) Spin() float64 { return o.resolved().spin }
+
+// InclinationDeg returns the inclination θo from the spin axis in degrees,
+// as given to NewObserver.
+func (o Observer) InclinationDeg() float64 { return o.resolved().incl }
+
 // Horizon returns r₊ of the observer's black hole.
-func (o Observer) Horizon() float64 { return o.horizon }
+func (o Observer) Horizon() float64 { return o.resolved().horizon }
 
 // CosInclination returns cos θo, exactly 0 at 90°.
-func (o Observer) CosInclination() float64 { return o.cos }
+func (o Observer) CosInclination() float64 { return o.resolved().cos }
 
 // SinInclination returns sin θo, exactly 0 at 0° and 180°.
-func (o Observer) SinInclination() float64 { return o.sin }
+func (o Observer) SinInclination() float64 { return o.resolved().sin }
 
 // Constants returns λ and η of the photon that reaches the screen at
 // (α, β): λ = -α sin θo, η = β² + (α² - a²) cos²θo (Bardeen 1973).
 func (o Observer) Constants(alpha, beta float64) (lambda, eta float64) {
-	a := o.Spin
+	return o.resolved().constants(alpha, beta)
+}
+
+func (o Observer) constants(alpha, beta float64) (lambda, eta float64) {
+	a := o.spin
 	lambda = -alpha * o.sin
 	eta = beta*beta + (alpha-a)*(alpha+a)*o.cos*o.cos
 	return lambda, eta
@@ -121,15 +188,17 @@ func (o Observer) Constants(alpha, beta float64) (lambda, eta float64) {
 // Angular motion: τ_n = (2n+1)G_θ + s(G_θ - G_o), s = sign(β) sign(cos θo)
 // (Gralla & Lupsasca 2020, PRD 101, 044032, eqs. 80–82). Radial motion:
 // r(τ) from the Jacobi sn (case I) and cn (case II) forms of Gralla &
-// Lupsasca (2020, eqs. A6–A13 / B45–B58 in our notation). Domain: any
-// finite α, β; η ≤ 0 photons never cross the plane.
+// Lupsasca (2020, eqs. A6–A13 and B45–B58), with the symbols of the
+// package documentation. Domain: any finite α, β; η ≤ 0 photons never
+// cross the plane.
 func (o Observer) Trace(alpha, beta float64, orders int, p *Path) {
-	lambda, eta := o.Constants(alpha, beta)
+	o = o.resolved()
+	lambda, eta := o.constants(alpha, beta)
 	o.trace(lambda, eta, beta, orders, p)
 }
 
 func (o Observer) trace(lambda, eta, beta float64, orders int, p *Path) {
-	a := o.Spin
+	a := o.spin
 	p.Lambda, p.Eta = lambda, eta
 	p.Crossings = p.Crossings[:0]
 	p.Turn = math.Inf(1)
@@ -139,7 +208,7 @@ func (o Observer) trace(lambda, eta, beta float64, orders int, p *Path) {
 	B := 2 * (eta + lma*lma)
 	C := -a * a * eta
 	q := radialRoots(A, B, C)
-	if math.Abs(a) > 0.9 && math.Abs(lambda-2*a) < 0.5 {
+	if math.Abs(a) > nearExtremalSpin && math.Abs(lambda-2*a) < nearExtremalLambda {
 		// Near-extremal holes: roots crowd at r ≈ 1 (see refineNearPair).
 		q.refineNearPair(a, lambda, eta)
 	}
@@ -298,8 +367,8 @@ func newRadialII(q quartic, rh float64) radial {
 		small = im2 * (bp - ap + r21) / ((ap + d2) * (bp + d1))
 	}
 	mc := (r21 - ap + bp) * small / (4 * ap * bp)
-	if tiny := 1e-300; !(mc > tiny) {
-		mc = tiny // the critical curve itself: see radialRoots
+	if !(mc > minCaseIIComplement) {
+		mc = minCaseIIComplement // the critical curve itself: see radialRoots
 	}
 	x0 := ellipFcos((ap-bp)/(ap+bp), mc)
 	scale := math.Sqrt(ap * bp)
@@ -356,17 +425,18 @@ func (rd radial) at(tau float64) float64 {
 	return rd.num1/rd.den1 + 2*rd.ap*rd.bp*rd.r21/(rd.den1*rd.den1*diff)
 }
 
-// legendre is a fixed 64-point Gauss–Legendre rule, set up once.
+// legendre is the fixed Gauss–Legendre rule of minoQuad on [0, 1], set up
+// once.
 var legendre = func() struct{ x, w []float64 } {
-	x := make([]float64, 64)
-	w := make([]float64, 64)
+	x := make([]float64, minoQuadNodes)
+	w := make([]float64, minoQuadNodes)
 	quad.Legendre{}.FixedLocations(x, w, 0, 1)
 	return struct{ x, w []float64 }{x, w}
 }()
 
 // minoQuad returns ∫₀^{uMax} du / sqrt(1 + A u² + B u³ + C u⁴), the Mino
-// time from infinity to r = 1/uMax, by 64-point Gauss–Legendre quadrature
-// (gonum). It serves only photons with no real root outside the horizon
+// time from infinity to r = 1/uMax, by fixed Gauss–Legendre quadrature
+// with minoQuadNodes nodes (gonum). It serves only photons with no real root outside the horizon
 // and η ≤ 0, which never cross the equatorial plane, so the crossings
 // stay closed-form. The integrand is smooth there (no root in the range).
 func minoQuad(A, B, C, uMax float64) float64 {

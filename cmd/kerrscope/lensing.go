@@ -1,16 +1,13 @@
 package main
 
 import (
-	"encoding/json"
-	"fmt"
 	"io"
 	"math"
 	"strconv"
 	"strings"
-	"text/tabwriter"
 
 	"kerrscope/raytrace"
-	"kerrscope/render"
+	"kerrscope/raytrace/survey"
 )
 
 func runLensing(args []string, stdout, stderr io.Writer) error {
@@ -45,35 +42,9 @@ func runLensing(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return usagef("%v", err)
 	}
-	// Centre: the middle of the critical curve's bounding box, inside the shadow.
-	amin, amax, bmin, bmax := math.Inf(1), math.Inf(-1), math.Inf(1), math.Inf(-1)
-	for _, p := range o.CriticalCurve(400) {
-		amin, amax = math.Min(amin, p.Alpha), math.Max(amax, p.Alpha)
-		bmin, bmax = math.Min(bmin, p.Beta), math.Max(bmax, p.Beta)
-	}
-	ca, cb := (amin+amax)/2, (bmin+bmax)/2
-	var all []render.LensingBand
-	for _, d := range angles {
-		all = append(all, render.LensingBands(o, ca, cb, d, *orders)...)
-	}
+	rep := survey.Lensing(o, angles, *orders)
 	if *asJSON {
-		b, err := json.Marshal(map[string]any{"spin": spin, "inclination_deg": inc, "center_alpha": ca, "center_beta": cb, "bands": all})
-		if err != nil {
-			return err
-		}
-		_, err = fmt.Fprintf(stdout, "%s\n", b)
-		return err
+		return rep.WriteJSON(stdout)
 	}
-	fmt.Fprintf(stdout, "lensing bands (photons crossing the equatorial plane ≥ n+1 times), a = %g, i = %g°\n", spin, inc)
-	fmt.Fprintf(stdout, "distances from the shadow centre (α, β) = (%.6g, %.6g) M; e^-π = %.6f for reference (a = 0)\n\n", ca, cb, math.Exp(-math.Pi))
-	tw := tabwriter.NewWriter(stdout, 0, 0, 3, ' ', 0)
-	fmt.Fprintln(tw, "  direction [°]\tn\tinner [M]\touter [M]\twidth [M]\twidth / previous")
-	for _, b := range all {
-		ratio := "—"
-		if b.Demagnified > 0 {
-			ratio = fmt.Sprintf("%.6f", b.Demagnified)
-		}
-		fmt.Fprintf(tw, "  %g\t%d\t%.10g\t%.10g\t%.6g\t%s\n", b.Direction, b.Order, b.Inner, b.Outer, b.Width, ratio)
-	}
-	return tw.Flush()
+	return rep.WriteText(stdout)
 }

@@ -3,6 +3,7 @@ package main
 import (
 	"io"
 
+	"kerrscope/raytrace/survey"
 	"kerrscope/render"
 	"kerrscope/render/pixels"
 	"kerrscope/scene"
@@ -46,7 +47,7 @@ func runProbe(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return usagef("%v", err)
 	}
-	rep := render.Probe(m.Obs, alpha, beta, *orders, m.RedshiftAt)
+	rep := survey.Probe(m.Obs, alpha, beta, *orders, m.RedshiftAt)
 	if *asJSON {
 		return rep.WriteJSON(stdout)
 	}

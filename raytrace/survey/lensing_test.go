@@ -1,4 +1,4 @@
-package render
+package survey
 
 import (
 	"math"
@@ -28,4 +28,29 @@ func TestLensingBandsSchwarzschild(t *testing.T) {
 			}
 		}
 	}
+}
+
+func TestLensingReport(t *testing.T) {
+	// For a = 0 the critical curve is the circle of radius √27 about the
+	// origin (Synge 1966), so the shadow's centre is (0, 0) and every band
+	// straddles √27.
+	o, err := raytrace.NewObserver(0, 45)
+	if err != nil {
+		t.Fatal(err)
+	}
+	dirs := []float64{0, 135}
+	rep := Lensing(o, dirs, 3)
+	if math.Abs(rep.CenterAlpha) > 1e-12 || math.Abs(rep.CenterBeta) > 1e-12 {
+		t.Errorf("a = 0 shadow centre (%v, %v), want (0, 0)", rep.CenterAlpha, rep.CenterBeta)
+	}
+	if rep.Spin != 0 || rep.InclinationDeg != 45 || len(rep.Bands) != len(dirs)*3 {
+		t.Fatalf("report a = %v, i = %v, %d bands; want 0, 45, %d", rep.Spin, rep.InclinationDeg, len(rep.Bands), len(dirs)*3)
+	}
+	for i, b := range rep.Bands {
+		if b.Direction != dirs[i/3] || b.Order != i%3+1 || !(b.Inner < math.Sqrt(27) && b.Outer > math.Sqrt(27)) {
+			t.Errorf("band %d = %+v", i, b)
+		}
+	}
+	checkWriteErrors(t, "lensing text", rep.WriteText)
+	checkWriteErrors(t, "lensing JSON", rep.WriteJSON)
 }

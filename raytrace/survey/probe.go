@@ -1,4 +1,4 @@
-package render
+package survey
 
 import (
 	"encoding/json"
@@ -40,7 +40,7 @@ func Probe(o raytrace.Observer, alpha, beta float64, orders int, redshift func(c
 	var p raytrace.Path
 	o.Trace(alpha, beta, orders, &p)
 	rep := ProbeReport{
-		Spin: o.Spin, InclinationDeg: o.Inclination, Alpha: alpha, Beta: beta,
+		Spin: o.Spin(), InclinationDeg: o.InclinationDeg(), Alpha: alpha, Beta: beta,
 		Lambda: p.Lambda, Eta: p.Eta, Fate: p.Fate.String(), RootCase: p.Roots.String(),
 		TotalMino: p.Mino, Crossings: []ProbeCrossing{},
 	}
@@ -66,18 +66,24 @@ func (r ProbeReport) WriteJSON(w io.Writer) error {
 	return err
 }
 
-// WriteText writes the report as a short table for people.
+// WriteText writes the report as a short table for people. It stops at
+// the first failed write and returns its error.
 func (r ProbeReport) WriteText(w io.Writer) error {
-	fmt.Fprintf(w, "photon at α = %g M, β = %g M   (spin a = %g, inclination %g°)\n", r.Alpha, r.Beta, r.Spin, r.InclinationDeg)
-	fmt.Fprintf(w, "  λ = %.10g M   η = %.10g M²   radial roots: case %s\n", r.Lambda, r.Eta, r.RootCase)
-	fmt.Fprintf(w, "  traced back, it comes from: %s   (total Mino time %.10g /M)\n", r.Fate, r.TotalMino)
+	p := &printer{w: w}
+	p.printf("photon at α = %g M, β = %g M   (spin a = %g, inclination %g°)\n", r.Alpha, r.Beta, r.Spin, r.InclinationDeg)
+	p.printf("  λ = %.10g M   η = %.10g M²   radial roots: case %s\n", r.Lambda, r.Eta, r.RootCase)
+	p.printf("  traced back, it comes from: %s   (total Mino time %.10g /M)\n", r.Fate, r.TotalMino)
 	if len(r.Crossings) == 0 {
-		_, err := fmt.Fprintln(w, "  it never crosses the equatorial plane")
-		return err
+		p.println("  it never crosses the equatorial plane")
+		return p.err
 	}
-	fmt.Fprintln(w)
+	p.println()
+	if p.err != nil {
+		return p.err
+	}
 	tw := tabwriter.NewWriter(w, 0, 0, 3, ' ', 0)
-	fmt.Fprintln(tw, "  order\tr [M]\tMino time [1/M]\tleft the plane\tg (disk)")
+	t := &printer{w: tw}
+	t.println("  order\tr [M]\tMino time [1/M]\tleft the plane\tg (disk)")
 	for _, c := range r.Crossings {
 		dir := "inward"
 		if c.Outbound {
@@ -87,7 +93,28 @@ func (r ProbeReport) WriteText(w io.Writer) error {
 		if c.G != nil {
 			g = fmt.Sprintf("%.8f", *c.G)
 		}
-		fmt.Fprintf(tw, "  %d\t%.10g\t%.10g\t%s\t%s\n", c.Order, c.R, c.MinoTime, dir, g)
+		t.printf("  %d\t%.10g\t%.10g\t%s\t%s\n", c.Order, c.R, c.MinoTime, dir, g)
+	}
+	if t.err != nil {
+		return t.err
 	}
 	return tw.Flush()
+}
+
+// printer writes formatted text until the first error, which it keeps.
+type printer struct {
+	w   io.Writer
+	err error
+}
+
+func (p *printer) printf(format string, args ...any) {
+	if p.err == nil {
+		_, p.err = fmt.Fprintf(p.w, format, args...)
+	}
+}
+
+func (p *printer) println(args ...any) {
+	if p.err == nil {
+		_, p.err = fmt.Fprintln(p.w, args...)
+	}
 }

@@ -1,7 +1,11 @@
-package render
+package survey
 
 import (
+	"encoding/json"
+	"fmt"
+	"io"
 	"math"
+	"text/tabwriter"
 
 	"kerrscope/raytrace"
 )
@@ -90,4 +94,69 @@ func LensingBands(o raytrace.Observer, ca, cb, dirDeg float64, maxOrder int) []L
 		out = append(out, b)
 	}
 	return out
+}
+
+// LensingReport lists the lensing bands of one observer along several
+// screen directions from the centre of its shadow. Its JSON keys are fixed
+// so that scripts can rely on them; the fields follow their alphabetical
+// order.
+type LensingReport struct {
+	Bands          []LensingBand `json:"bands"`
+	CenterAlpha    float64       `json:"center_alpha"` // centre of the shadow, M
+	CenterBeta     float64       `json:"center_beta"`
+	InclinationDeg float64       `json:"inclination_deg"`
+	Spin           float64       `json:"spin"`
+}
+
+// Lensing measures the bands 1 … maxOrder (see LensingBands) along each
+// of the directions (degrees, counter-clockwise from the +α axis) from the
+// centre of the shadow, taken as the middle of the bounding box of the
+// critical curve, which lies inside the shadow.
+func Lensing(o raytrace.Observer, directionsDeg []float64, maxOrder int) LensingReport {
+	amin, amax, bmin, bmax := math.Inf(1), math.Inf(-1), math.Inf(1), math.Inf(-1)
+	for _, p := range o.CriticalCurve(400) {
+		amin, amax = math.Min(amin, p.Alpha), math.Max(amax, p.Alpha)
+		bmin, bmax = math.Min(bmin, p.Beta), math.Max(bmax, p.Beta)
+	}
+	rep := LensingReport{CenterAlpha: (amin + amax) / 2, CenterBeta: (bmin + bmax) / 2,
+		InclinationDeg: o.InclinationDeg(), Spin: o.Spin()}
+	for _, d := range directionsDeg {
+		rep.Bands = append(rep.Bands, LensingBands(o, rep.CenterAlpha, rep.CenterBeta, d, maxOrder)...)
+	}
+	return rep
+}
+
+// WriteJSON writes the report as one JSON object and a newline.
+func (r LensingReport) WriteJSON(w io.Writer) error {
+	b, err := json.Marshal(r)
+	if err != nil {
+		return err
+	}
+	_, err = fmt.Fprintf(w, "%s\n", b)
+	return err
+}
+
+// WriteText writes the report as a table for people. It stops at the
+// first failed write and returns its error.
+func (r LensingReport) WriteText(w io.Writer) error {
+	p := &printer{w: w}
+	p.printf("lensing bands (photons crossing the equatorial plane ≥ n+1 times), a = %g, i = %g°\n", r.Spin, r.InclinationDeg)
+	p.printf("distances from the shadow centre (α, β) = (%.6g, %.6g) M; e^-π = %.6f for reference (a = 0)\n\n", r.CenterAlpha, r.CenterBeta, math.Exp(-math.Pi))
+	if p.err != nil {
+		return p.err
+	}
+	tw := tabwriter.NewWriter(w, 0, 0, 3, ' ', 0)
+	t := &printer{w: tw}
+	t.println("  direction [°]\tn\tinner [M]\touter [M]\twidth [M]\twidth / previous")
+	for _, b := range r.Bands {
+		ratio := "—"
+		if b.Demagnified > 0 {
+			ratio = fmt.Sprintf("%.6f", b.Demagnified)
+		}
+		t.printf("  %g\t%d\t%.10g\t%.10g\t%.6g\t%s\n", b.Direction, b.Order, b.Inner, b.Outer, b.Width, ratio)
+	}
+	if t.err != nil {
+		return t.err
+	}
+	return tw.Flush()
 }
