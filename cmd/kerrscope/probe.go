@@ -4,7 +4,6 @@ import (
 	"io"
 
 	"kerrscope/raytrace/survey"
-	"kerrscope/render"
 	"kerrscope/render/pixels"
 	"kerrscope/scene"
 )
