@@ -1,6 +1,7 @@
 package main
 
 import (
+	"context"
 	"encoding/json"
 	"fmt"
 	"io"
@@ -13,7 +14,7 @@ import (
 	"kerrscope/render"
 )
 
-func runLensing(args []string, stdout, stderr io.Writer) error {
+func runLensing(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 	f := newFlags("lensing", stdout)
 	var spin, inc float64
 	f.float(&spin, "spin", 0, "black-hole spin a, signed, -1 < a < 1")
@@ -54,6 +55,9 @@ func runLensing(args []string, stdout, stderr io.Writer) error {
 	ca, cb := (amin+amax)/2, (bmin+bmax)/2
 	var all []render.LensingBand
 	for _, d := range angles {
+		if ctx.Err() != nil {
+			return context.Cause(ctx)
+		}
 		all = append(all, render.LensingBands(o, ca, cb, d, *orders)...)
 	}
 	if *asJSON {

@@ -1,13 +1,14 @@
 package main
 
 import (
+	"context"
 	"io"
 
 	"kerrscope/render"
 	"kerrscope/scene"
 )
 
-func runProbe(args []string, stdout, stderr io.Writer) error {
+func runProbe(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 	f := newFlags("probe", stdout)
 	path, _, vals := sceneFlags(f, "spin", "inclination", "inner", "outer", "plunging")
 	var alpha, beta float64

@@ -23,15 +23,15 @@ import (
 var hookStaged func(index int, name string)
 
 // writeFrame renders point pt and commits its files (fileNames) into the
-// output directory through render.Outputs, so that an error or a
+// output directory, which lk holds, through render.Outputs, so that an error or a
 // cancelled ctx leaves none of them behind. It returns their records,
 // sorted by name.
-func (p *Plan) writeFrame(ctx context.Context, pt Point, sc render.Scales, version string) ([]fileRecord, error) {
+func (p *Plan) writeFrame(ctx context.Context, lk *render.DirLock, pt Point, sc render.Scales, version string) ([]fileRecord, error) {
 	f, err := render.RenderScene(ctx, pt.Scene, nil)
 	if err != nil {
 		return nil, err
 	}
-	out, err := render.NewOutputs(p.Dir())
+	out, err := render.NewOutputs(ctx, lk, "")
 	if err != nil {
 		return nil, err
 	}
