@@ -1,6 +1,7 @@
 package main
 
 import (
+	"context"
 	"io"
 	"math"
 	"strconv"
@@ -10,7 +11,7 @@ import (
 	"kerrscope/raytrace/survey"
 )
 
-func runLensing(args []string, stdout, stderr io.Writer) error {
+func runLensing(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 	f := newFlags("lensing", stdout)
 	var spin, inc float64
 	f.float(&spin, "spin", 0, "black-hole spin a, signed, -1 < a < 1")
@@ -42,7 +43,10 @@ func runLensing(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return usagef("%v", err)
 	}
-	rep := survey.Lensing(o, angles, *orders)
+	rep, err := survey.Lensing(ctx, o, angles, *orders)
+	if err != nil {
+		return err
+	}
 	if *asJSON {
 		return rep.WriteJSON(stdout)
 	}

@@ -4,10 +4,13 @@
 package main
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"io"
 	"os"
+	"os/signal"
+	"syscall"
 )
 
 // version is the program version, recorded in every output file.
@@ -24,7 +27,7 @@ func usagef(format string, args ...any) error {
 
 type command struct {
 	name, summary string
-	run           func(args []string, stdout, stderr io.Writer) error
+	run           func(ctx context.Context, args []string, stdout, stderr io.Writer) error
 }
 
 func commands() []command {
@@ -36,7 +39,7 @@ func commands() []command {
 		{"sweep", "render a scene over a range of spins, inclinations, ... (resumable, shardable)", runSweep},
 		{"sweep-merge", "merge a finished sweep: animated GIFs, all spectra in one plot", runSweepMerge},
 		{"probe", "trace the photon of one screen point and list its disk crossings", runProbe},
-		{"version", "print the program version", func(_ []string, stdout, _ io.Writer) error {
+		{"version", "print the program version", func(_ context.Context, _ []string, stdout, _ io.Writer) error {
 			_, err := fmt.Fprintln(stdout, "kerrscope", version)
 			return err
 		}},
@@ -65,13 +68,26 @@ func run(args []string, stdout, stderr io.Writer) int {
 		if c.name != args[0] {
 			continue
 		}
-		err := c.run(args[1:], stdout, stderr)
+		ctx, stop := signalContext()
+		err := c.run(ctx, args[1:], stdout, stderr)
+		stop()
 		var ue usageError
+		var sig signalError
 		switch {
 		case err == nil:
 			return 0
 		case errors.Is(err, errHelp):
 			return 0
+		case errors.As(err, &sig), errors.As(context.Cause(ctx), &sig):
+			switch {
+			case errors.As(err, new(signalError)):
+			case errors.Is(err, context.Canceled):
+				err = sig
+			default:
+				err = fmt.Errorf("%w; %v", sig, err)
+			}
+			fmt.Fprintf(stderr, "kerrscope %s: %v\n", c.name, err)
+			return 128 + int(sig.sig) // the shell's status of a process ended by a signal (common practice)
 		case errors.As(err, &ue):
 			fmt.Fprintf(stderr, "kerrscope %s: %v\n", c.name, err)
 			return 2
@@ -82,4 +98,49 @@ func run(args []string, stdout, stderr io.Writer) int {
 	}
 	fmt.Fprintf(stderr, "kerrscope: unknown command %q (run kerrscope help)\n", args[0])
 	return 2
+}
+
+// signalError is the cause of a context cancelled by a signal.
+type signalError struct{ sig syscall.Signal }
+
+func (e signalError) Error() string {
+	name := map[syscall.Signal]string{syscall.SIGINT: "SIGINT", syscall.SIGTERM: "SIGTERM"}[e.sig]
+	return "interrupted by " + name
+}
+
+// signalContext returns a context that SIGINT (Ctrl-C) or SIGTERM (what
+// batch schedulers send before a hard kill) cancels with a signalError,
+// and a stop function. After the first signal the default action is
+// restored, so a second one ends the process at once: output files are
+// journaled, and the next run into the directory completes or undoes an
+// interrupted commit.
+func signalContext() (context.Context, func()) {
+	ctx, cancel := context.WithCancelCause(context.Background())
+	ch := make(chan os.Signal, 1)
+	signal.Notify(ch, os.Interrupt, syscall.SIGTERM)
+	done := make(chan struct{})
+	go func() {
+		select {
+		case s := <-ch:
+			signal.Stop(ch)
+			sig, _ := s.(syscall.Signal)
+			cancel(signalError{sig})
+		case <-done:
+		}
+	}()
+	return ctx, func() {
+		signal.Stop(ch)
+		close(done)
+		cancel(nil)
+	}
+}
+
+// interrupted returns err, or when ctx was cancelled by a signal and err
+// is its cancellation, the signal's error followed by what was kept.
+func interrupted(ctx context.Context, err error, kept string) error {
+	var sig signalError
+	if errors.Is(err, context.Canceled) && errors.As(context.Cause(ctx), &sig) {
+		return fmt.Errorf("%w; %s", sig, kept)
+	}
+	return err
 }

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"context"
 	"io"
 
 	"kerrscope/raytrace/survey"
@@ -8,7 +9,7 @@ import (
 	"kerrscope/scene"
 )
 
-func runProbe(args []string, stdout, stderr io.Writer) error {
+func runProbe(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 	f := newFlags("probe", stdout)
 	path, _, vals := sceneFlags(f, "spin", "inclination", "inner", "outer", "plunging")
 	var alpha, beta float64

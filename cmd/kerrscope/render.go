@@ -1,17 +1,14 @@
 package main
 
 import (
-	"strings"
-
 	"context"
 	"flag"
 	"fmt"
 	"io"
 	"os"
-	"os/signal"
+	"strings"
 
 	"github.com/pelletier/go-toml/v2"
-
 	"golang.org/x/term"
 
 	"kerrscope/render/outputs"
@@ -107,7 +104,7 @@ func progressWriter(quiet bool, stderr io.Writer) io.Writer {
 	return nil
 }
 
-func runRender(args []string, stdout, stderr io.Writer) error {
+func runRender(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 	f := newFlags("render", stdout)
 	path, quiet, vals := sceneFlags(f)
 	if err := f.parse(args); err != nil {
@@ -117,10 +114,10 @@ func runRender(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	return renderAndReport(r, false, *quiet, stdout, stderr)
+	return renderAndReport(ctx, r, false, *quiet, stdout, stderr)
 }
 
-func runLocate(args []string, stdout, stderr io.Writer) error {
+func runLocate(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 	f := newFlags("locate", stdout)
 	path, quiet, vals := sceneFlags(f)
 	if err := f.parse(args); err != nil {
@@ -132,10 +129,10 @@ func runLocate(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	return renderAndReport(r, true, *quiet, stdout, stderr)
+	return renderAndReport(ctx, r, true, *quiet, stdout, stderr)
 }
 
-func runDemo(args []string, stdout, stderr io.Writer) error {
+func runDemo(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 	f := newFlags("demo", stdout)
 	path, quiet, vals := sceneFlags(f)
 	if err := f.parse(args); err != nil {
@@ -153,18 +150,16 @@ func runDemo(args []string, stdout, stderr io.Writer) error {
 		return err
 	}
 	fmt.Fprintf(stdout, "demo: an invented black hole, %s\n", r.Caption())
-	return renderAndReport(r, false, *quiet, stdout, stderr)
+	return renderAndReport(ctx, r, false, *quiet, stdout, stderr)
 }
 
-func renderAndReport(r scene.Resolved, band, quiet bool, stdout, stderr io.Writer) error {
-	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
-	defer stop()
+func renderAndReport(ctx context.Context, r scene.Resolved, band, quiet bool, stdout, stderr io.Writer) error {
 	bar := newProgress(progressWriter(quiet, stderr), "tracing rows")
 	rows := r.Screen.Height
 	sum, err := outputs.Run(ctx, r, outputs.Options{Version: version, Progress: func(n int) { bar.set(n, rows) }, Band: band})
 	bar.done()
 	if err != nil {
-		return err
+		return interrupted(ctx, err, "no file in "+r.Output.Directory+" was changed")
 	}
 	if sum.Band != nil {
 		if err := outputs.WriteBandText(stdout, *sum.Band); err != nil {

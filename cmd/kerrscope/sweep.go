@@ -6,9 +6,7 @@ import (
 	"fmt"
 	"io"
 	"os"
-	"os/signal"
 	"strings"
-	"syscall"
 
 	"kerrscope/render/maps"
 	"kerrscope/render/sweep"
@@ -40,14 +38,14 @@ func (s shardFlag) Set(v string) error {
 	return err
 }
 
-func runSweep(args []string, stdout, stderr io.Writer) error {
+func runSweep(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 	f := newFlags("sweep", stdout)
 	path, quiet, vals := sceneFlags(f)
 	var axes []sweep.Axis
 	f.fs.Var(axesFlag{&axes}, "vary", "swept value KEY=FROM:TO:COUNT[:SPACING], SPACING linear (default), log or log1m (1 − v log-spaced); KEY a flag or scene key, e.g. spin=0.5:0.999999:60:log1m; give it twice for a grid (required)")
 	var sh sweep.Shard
 	f.fs.Var(shardFlag{&sh}, "shard", "render only share K of N (frames with index mod N = K−1), e.g. --shard $SLURM_ARRAY_TASK_ID/8 (default 1/1)")
-	restart := f.fs.Bool("restart", false, "discard the sweep in the output directory and start over")
+	restart := f.fs.Bool("restart", false, "start over: remove the files the output directory's sweep manifests record (unchanged ones only) and the manifests; unreadable manifests are renamed NAME.corrupt-TIME")
 	var sc maps.Scales
 	f.float(&sc.GMin, "g-min", 0, "redshift colour scale lower end, 0 < g < 1 (default: from a pre-pass)")
 	f.float(&sc.GMax, "g-max", 0, "redshift colour scale upper end, g > 1 (default: from a pre-pass)")
@@ -82,19 +80,20 @@ func runSweep(args []string, stdout, stderr io.Writer) error {
 	case err != nil:
 		return usagef("%v", err)
 	}
-	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
-	defer stop()
 	if sh == (sweep.Shard{}) {
 		sh = sweep.Shard{K: 1, N: 1}
 	}
 	bar := newProgress(progressWriter(*quiet, stderr), fmt.Sprintf("sweep %s: frames", sh))
 	rep, err := sweep.Run(ctx, plan, sweep.Options{Shard: sh, Restart: *restart, Version: version, Progress: bar.set})
 	bar.done()
+	for _, p := range rep.SetAside {
+		fmt.Fprintf(stderr, "kerrscope sweep: set aside an unreadable manifest as %s\n", p)
+	}
 	switch {
 	case errors.Is(err, sweep.ErrDefinitionChanged):
 		return usagef("--out %s: %v", plan.Dir(), err)
 	case errors.Is(err, context.Canceled):
-		return fmt.Errorf("interrupted: %d frames rendered and recorded in %s; run the same command again to finish", len(rep.Rendered), rep.Manifest)
+		return interrupted(ctx, err, fmt.Sprintf("%d frames rendered and recorded in %s; run the same command again to finish", len(rep.Rendered), rep.Manifest))
 	case err != nil:
 		return err
 	}
@@ -104,6 +103,9 @@ func runSweep(args []string, stdout, stderr io.Writer) error {
 	}
 	s := rep.Scales
 	fmt.Fprintf(stdout, "sweep of %d frames (%s) in %s\n", len(plan.Points), strings.Join(swept, " × "), plan.Dir())
+	if *restart {
+		fmt.Fprintf(stdout, "restart: removed %d files that the old sweep wrote and recorded\n", rep.Removed)
+	}
 	fmt.Fprintf(stdout, "shard %s: %d frames, %d already finished, %d rendered now\n", rep.Shard, rep.Frames, rep.Skipped, len(rep.Rendered))
 	fmt.Fprintf(stdout, "scales: g %g–%g, intensity max %g (%g decades), radius %g–%g M, flux max %g per keV\n",
 		s.GMin, s.GMax, s.IMax, s.IDecades, s.RMin, s.RMax, s.FluxMax)
@@ -157,7 +159,7 @@ func (m mapsFlag) Set(v string) error {
 	return nil
 }
 
-func runSweepMerge(args []string, stdout, stderr io.Writer) error {
+func runSweepMerge(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 	f := newFlags("sweep-merge", stdout)
 	dir := f.fs.String("out", "", "the sweep's output directory (required)")
 	var maps []string
@@ -178,9 +180,9 @@ func runSweepMerge(args []string, stdout, stderr io.Writer) error {
 	if !f.given("gif") {
 		maps = nil
 	}
-	files, err := sweep.Merge(*dir, sweep.MergeOptions{GIFs: maps, DelayMS: *delay})
+	files, err := sweep.Merge(ctx, *dir, sweep.MergeOptions{GIFs: maps, DelayMS: *delay})
 	if err != nil {
-		return err
+		return interrupted(ctx, err, "nothing was written")
 	}
 	fmt.Fprintf(stdout, "wrote %d files:\n", len(files))
 	for _, p := range files {

@@ -1,6 +1,7 @@
 package survey
 
 import (
+	"context"
 	"encoding/json"
 	"fmt"
 	"io"
@@ -112,7 +113,9 @@ type LensingReport struct {
 // of the directions (degrees, counter-clockwise from the +α axis) from the
 // centre of the shadow, taken as the middle of the bounding box of the
 // critical curve, which lies inside the shadow.
-func Lensing(o raytrace.Observer, directionsDeg []float64, maxOrder int) LensingReport {
+// It stops between directions once ctx is cancelled and returns
+// context.Cause(ctx).
+func Lensing(ctx context.Context, o raytrace.Observer, directionsDeg []float64, maxOrder int) (LensingReport, error) {
 	amin, amax, bmin, bmax := math.Inf(1), math.Inf(-1), math.Inf(1), math.Inf(-1)
 	for _, p := range o.CriticalCurve(400) {
 		amin, amax = math.Min(amin, p.Alpha), math.Max(amax, p.Alpha)
@@ -121,9 +124,12 @@ func Lensing(o raytrace.Observer, directionsDeg []float64, maxOrder int) Lensing
 	rep := LensingReport{CenterAlpha: (amin + amax) / 2, CenterBeta: (bmin + bmax) / 2,
 		InclinationDeg: o.InclinationDeg(), Spin: o.Spin()}
 	for _, d := range directionsDeg {
+		if ctx.Err() != nil {
+			return LensingReport{}, context.Cause(ctx)
+		}
 		rep.Bands = append(rep.Bands, LensingBands(o, rep.CenterAlpha, rep.CenterBeta, d, maxOrder)...)
 	}
-	return rep
+	return rep, nil
 }
 
 // WriteJSON writes the report as one JSON object and a newline.

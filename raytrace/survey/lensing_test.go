@@ -1,6 +1,7 @@
 package survey
 
 import (
+	"context"
 	"math"
 	"testing"
 
@@ -39,7 +40,10 @@ func TestLensingReport(t *testing.T) {
 		t.Fatal(err)
 	}
 	dirs := []float64{0, 135}
-	rep := Lensing(o, dirs, 3)
+	rep, err := Lensing(context.Background(), o, dirs, 3)
+	if err != nil {
+		t.Fatal(err)
+	}
 	if math.Abs(rep.CenterAlpha) > 1e-12 || math.Abs(rep.CenterBeta) > 1e-12 {
 		t.Errorf("a = 0 shadow centre (%v, %v), want (0, 0)", rep.CenterAlpha, rep.CenterBeta)
 	}

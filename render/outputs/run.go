@@ -36,14 +36,24 @@ type Summary struct {
 // Run renders the scene and writes every requested output into its
 // directory: figures, pixel-exact PNGs, a FITS file of all maps, the
 // spectrum (CSV and plot), the band report and masks (Options.Band) and
-// manifest.toml (the effective scene). On any error nothing new is left
-// behind.
+// manifest.toml (the effective scene). The directory is locked for the
+// whole run (a second writer gets a *BusyError), and the files of the
+// last run into it that this one does not write again are removed with
+// the commit; on any error the last run's files are left as they were.
 func Run(ctx context.Context, r scene.Resolved, opt Options) (Summary, error) {
+	if err := ctx.Err(); err != nil {
+		return Summary{}, err
+	}
+	lk, err := Lock(r.Output.Directory)
+	if err != nil {
+		return Summary{}, err
+	}
+	defer lk.Unlock()
 	f, err := pixels.RenderScene(ctx, r, opt.Progress)
 	if err != nil {
 		return Summary{}, err
 	}
-	out, err := NewOutputs(r.Output.Directory)
+	out, err := NewOutputs(ctx, lk, "render")
 	if err != nil {
 		return Summary{}, err
 	}

@@ -98,7 +98,12 @@ func TestFailedRunLeavesNothing(t *testing.T) {
 		t.Fatal("writing into a file succeeded")
 	}
 	// A write that fails after another file was staged: Abort leaves nothing.
-	out, err := NewOutputs(filepath.Join(dir, "staged"))
+	lk, err := Lock(filepath.Join(dir, "staged"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer lk.Unlock()
+	out, err := NewOutputs(context.Background(), lk, "")
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -109,6 +114,7 @@ func TestFailedRunLeavesNothing(t *testing.T) {
 		t.Fatal("failing writer reported no error")
 	}
 	out.Abort()
+	lk.Unlock()
 	if left, _ := os.ReadDir(filepath.Join(dir, "staged")); len(left) != 0 {
 		t.Errorf("aborted outputs left %v", left)
 	}

@@ -36,7 +36,7 @@ func BenchmarkSpinSweep(b *testing.B) {
 		if _, err := Run(context.Background(), p, Options{}); err != nil {
 			b.Fatal(err)
 		}
-		if _, err := Merge(p.Dir(), MergeOptions{}); err != nil {
+		if _, err := Merge(context.Background(), p.Dir(), MergeOptions{}); err != nil {
 			b.Fatal(err)
 		}
 	}

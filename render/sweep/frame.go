@@ -17,15 +17,15 @@ import (
 var hookStaged func(index int, name string)
 
 // writeFrame renders point pt and commits its files (Plan.artifacts) into
-// the output directory through outputs.Outputs, so that an error or a
-// cancelled ctx leaves none of them behind. It returns their records,
-// sorted by name.
-func (p *Plan) writeFrame(ctx context.Context, pt Point, sc maps.Scales, version string) ([]fileRecord, error) {
+// the output directory, which lk holds, through outputs.Outputs, so that
+// an error or a cancelled ctx leaves none of them behind. It returns
+// their records, sorted by name.
+func (p *Plan) writeFrame(ctx context.Context, lk *outputs.DirLock, pt Point, sc maps.Scales, version string) ([]fileRecord, error) {
 	f, err := pixels.RenderScene(ctx, pt.Scene, nil)
 	if err != nil {
 		return nil, err
 	}
-	out, err := outputs.NewOutputs(p.Dir())
+	out, err := outputs.NewOutputs(ctx, lk, "")
 	if err != nil {
 		return nil, err
 	}

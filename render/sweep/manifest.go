@@ -159,16 +159,26 @@ func (d definition) same(o definition) (bool, string) {
 }
 
 // loadManifests reads every shard manifest in dir, sorted by name. A
-// missing directory has none.
+// missing directory has none; an unreadable manifest is an error.
 func loadManifests(dir string) ([]*manifest, error) {
+	ms, bad, err := readManifests(dir)
+	if err == nil && len(bad) > 0 {
+		err = bad[0]
+	}
+	return ms, err
+}
+
+// readManifests reads every shard manifest in dir, sorted by name, and
+// reports the unreadable ones (truncated, not JSON, another layout, or
+// another shard's name) apart.
+func readManifests(dir string) (ms []*manifest, bad []*badManifest, err error) {
 	ents, err := os.ReadDir(dir)
 	if errors.Is(err, os.ErrNotExist) {
-		return nil, nil
+		return nil, nil, nil
 	}
 	if err != nil {
-		return nil, err
+		return nil, nil, err
 	}
-	var out []*manifest
 	for _, e := range ents {
 		m := manifestPattern.FindStringSubmatch(e.Name())
 		if m == nil || e.IsDir() {
@@ -176,22 +186,55 @@ func loadManifests(dir string) ([]*manifest, error) {
 		}
 		data, err := os.ReadFile(filepath.Join(dir, e.Name()))
 		if err != nil {
-			return nil, err
+			return nil, nil, err
 		}
 		var mf manifest
 		d := json.NewDecoder(bytes.NewReader(data))
 		d.DisallowUnknownFields()
 		if err := d.Decode(&mf); err != nil || mf.Format != manifestFormat {
-			return nil, fmt.Errorf("%s is not a sweep manifest this program reads (remove it, or start over with --restart)", e.Name())
+			bad = append(bad, &badManifest{e.Name(), "is not a sweep manifest this program reads", data})
+			continue
 		}
 		if mf.Shard.ManifestName() != e.Name() {
-			return nil, fmt.Errorf("%s records shard %s", e.Name(), mf.Shard)
+			bad = append(bad, &badManifest{e.Name(), "records shard " + mf.Shard.String(), data})
+			continue
 		}
 		mf.name = e.Name()
-		out = append(out, &mf)
+		ms = append(ms, &mf)
 	}
-	return out, nil
+	return ms, bad, nil
 }
+
+// badManifest is a manifest file that cannot be read.
+type badManifest struct {
+	name, why string
+	data      []byte
+}
+
+// fileRecordText matches one whole file record as manifest.write lays it
+// out.
+var fileRecordText = regexp.MustCompile(`\{\s*"name": "([^"\\/]+)",\s*"bytes": ([0-9]{1,18}),\s*"sha256": "([0-9a-f]{64})"\s*\}`)
+
+// salvage returns the whole file records left in an unreadable manifest
+// (one cut short by a full disk, say): each names a file with the size
+// and SHA-256 this program wrote.
+func (b *badManifest) salvage() []fileRecord {
+	var out []fileRecord
+	for _, m := range fileRecordText.FindAllSubmatch(b.data, -1) {
+		n, err := strconv.ParseInt(string(m[2]), 10, 64)
+		if err == nil {
+			out = append(out, fileRecord{Name: string(m[1]), Bytes: n, SHA256: string(m[3])})
+		}
+	}
+	return out
+}
+
+func (b *badManifest) Error() string {
+	return fmt.Sprintf("%s %s (remove it, or start over with --restart)", b.name, b.why)
+}
+
+// manifestTemp is the name prefix of a shard's temporary manifest files.
+func manifestTemp(s Shard) string { return "." + s.ManifestName() + ".tmp-" }
 
 // write stores the manifest atomically as dir/name: a temporary file in
 // the same directory, synced, then renamed over the old one.
@@ -201,7 +244,7 @@ func (m *manifest) write(dir string) error {
 		return err
 	}
 	data = append(data, '\n')
-	tmp, err := os.CreateTemp(dir, ".sweep-manifest-*.tmp")
+	tmp, err := os.CreateTemp(dir, manifestTemp(m.Shard)+"*")
 	if err != nil {
 		return err
 	}
@@ -217,6 +260,9 @@ func (m *manifest) write(dir string) error {
 	}
 	if err == nil {
 		err = os.Rename(tmp.Name(), filepath.Join(dir, m.Shard.ManifestName()))
+	}
+	if err == nil {
+		err = syncDir(dir)
 	}
 	if err != nil {
 		os.Remove(tmp.Name())
@@ -297,4 +343,17 @@ func (hw *hashingWriter) Write(b []byte) (int, error) {
 
 func (hw *hashingWriter) record(name string) fileRecord {
 	return fileRecord{Name: name, Bytes: hw.n, SHA256: hex.EncodeToString(hw.s.Sum(nil))}
+}
+
+// syncDir flushes a directory's entries to disk.
+func syncDir(dir string) error {
+	f, err := os.Open(dir)
+	if err != nil {
+		return err
+	}
+	err = f.Sync()
+	if cerr := f.Close(); err == nil {
+		err = cerr
+	}
+	return err
 }

@@ -2,6 +2,7 @@ package sweep
 
 import (
 	"bytes"
+	"context"
 	"encoding/csv"
 	"errors"
 	"fmt"
@@ -42,8 +43,9 @@ type MergeOptions struct {
 // (sweep-spectra.png; for a grid, sweep-spectra-NN.png for each value NN
 // of the second axis), if the sweep wrote spectra, and sweep-frames.csv,
 // the frame numbers with their swept values. It returns the paths
-// written; on error nothing is written.
-func Merge(dir string, opt MergeOptions) ([]string, error) {
+// written; on error, or when ctx is done, nothing is written. The files of
+// the last merge that this one does not write again are removed.
+func Merge(ctx context.Context, dir string, opt MergeOptions) ([]string, error) {
 	delay := opt.DelayMS
 	if delay == 0 {
 		delay = 100
@@ -51,6 +53,11 @@ func Merge(dir string, opt MergeOptions) ([]string, error) {
 	if delay < 10 || delay > 655350 || delay%10 != 0 {
 		return nil, fmt.Errorf("frame delay %d ms: must be a multiple of 10 ms from 10 to 655350", opt.DelayMS)
 	}
+	lk, err := outputs.Lock(dir)
+	if err != nil {
+		return nil, err
+	}
+	defer lk.Unlock()
 	ms, err := loadManifests(dir)
 	if err != nil {
 		return nil, err
@@ -84,7 +91,7 @@ func Merge(dir string, opt MergeOptions) ([]string, error) {
 		}
 	}
 
-	out, err := outputs.NewOutputs(dir)
+	out, err := outputs.NewOutputs(ctx, lk, "merge")
 	if err != nil {
 		return nil, err
 	}
@@ -93,6 +100,9 @@ func Merge(dir string, opt MergeOptions) ([]string, error) {
 		return nil, err
 	}
 	for _, m := range maps {
+		if err := ctx.Err(); err != nil {
+			return fail(err)
+		}
 		anim, err := p.animation(m, delay/10)
 		if err != nil {
 			return fail(err)

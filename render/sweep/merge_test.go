@@ -2,6 +2,7 @@ package sweep
 
 import (
 	"bytes"
+	"context"
 	"image"
 	"image/color"
 	"image/gif"
@@ -40,7 +41,7 @@ func TestMerge(t *testing.T) {
 			}
 		}
 	}
-	paths, err := Merge(dir, MergeOptions{DelayMS: 250})
+	paths, err := Merge(context.Background(), dir, MergeOptions{DelayMS: 250})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -87,11 +88,11 @@ func TestMerge(t *testing.T) {
 
 	// Refusals, each leaving the merged files as they were.
 	for _, opt := range []MergeOptions{{DelayMS: 15}, {DelayMS: 5}, {GIFs: []string{"intensity"}}} {
-		if _, err := Merge(dir, opt); err == nil {
+		if _, err := Merge(context.Background(), dir, opt); err == nil {
 			t.Errorf("%+v accepted", opt)
 		}
 	}
-	if _, err := Merge(t.TempDir(), MergeOptions{}); err == nil || !strings.Contains(err.Error(), "no sweep manifest") {
+	if _, err := Merge(context.Background(), t.TempDir(), MergeOptions{}); err == nil || !strings.Contains(err.Error(), "no sweep manifest") {
 		t.Errorf("empty directory: %v", err)
 	}
 	other := testPlan(t, dir, []string{"spin=0.5:0.999:5:log1m"}, func(s *scene.Scene) {
@@ -105,7 +106,7 @@ func TestMerge(t *testing.T) {
 	if err := m.write(dir); err != nil {
 		t.Fatal(err)
 	}
-	if _, err := Merge(dir, MergeOptions{}); err == nil || !strings.Contains(err.Error(), "different sweeps") {
+	if _, err := Merge(context.Background(), dir, MergeOptions{}); err == nil || !strings.Contains(err.Error(), "different sweeps") {
 		t.Errorf("mixed manifests: %v", err)
 	}
 	if !bytes.Equal(mustRead(t, filepath.Join(dir, "sweep-order.gif")), data) {
@@ -113,7 +114,7 @@ func TestMerge(t *testing.T) {
 	}
 	// No GIF at all.
 	os.Remove(filepath.Join(dir, "sweep-shard-2-of-2.json"))
-	if paths, err := Merge(dir, MergeOptions{GIFs: []string{}}); err != nil || len(paths) != 2 {
+	if paths, err := Merge(context.Background(), dir, MergeOptions{GIFs: []string{}}); err != nil || len(paths) != 2 {
 		t.Errorf("no GIFs: %v, %v", paths, err)
 	}
 }

@@ -6,12 +6,12 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
-	"regexp"
 	"slices"
 	"strings"
 	"time"
 
 	"kerrscope/render/maps"
+	"kerrscope/render/outputs"
 )
 
 // ErrDefinitionChanged is returned (wrapped) by Run when the output
@@ -21,7 +21,7 @@ var ErrDefinitionChanged = errors.New("the output directory holds a different sw
 // Options control a sweep run.
 type Options struct {
 	Shard   Shard  // this process's share; zero = the whole sweep (1/1)
-	Restart bool   // remove what the directory holds of a sweep and start over
+	Restart bool   // remove the files the manifests record and start over
 	Version string // program version recorded in the outputs
 	// Progress, if not nil, is called after each rendered frame with the
 	// number done and the number this run renders.
@@ -36,6 +36,8 @@ type Report struct {
 	Rendered []int       // frames rendered by this run, in order
 	Scales   maps.Scales // the colour scales every frame uses
 	Manifest string      // path of this shard's manifest
+	Removed  int         // files of the old sweep removed by Options.Restart
+	SetAside []string    // unreadable manifests renamed by Options.Restart
 }
 
 // Run renders the plan's frames that belong to the shard and are not
@@ -48,7 +50,9 @@ type Report struct {
 // together, and only then is the frame recorded in the shard's manifest,
 // which is rewritten atomically; on cancellation Run records what is
 // finished and returns ctx.Err(). A directory holding another sweep is
-// refused with ErrDefinitionChanged unless opt.Restart is set.
+// refused with ErrDefinitionChanged unless opt.Restart is set. The shards
+// of a sweep share the directory's lock (outputs.LockShared); a restart
+// takes it alone.
 func Run(ctx context.Context, p *Plan, opt Options) (Report, error) {
 	sh := opt.Shard
 	if sh == (Shard{}) {
@@ -63,15 +67,37 @@ func Run(ctx context.Context, p *Plan, opt Options) (Report, error) {
 		return rep, err
 	}
 	dir := p.Dir()
-	olds, err := loadManifests(dir)
+	lock := outputs.LockShared
+	if opt.Restart {
+		lock = outputs.Lock
+	}
+	lk, err := lock(dir)
+	if err != nil {
+		return rep, err
+	}
+	defer lk.Unlock()
+	// A temporary manifest of this shard is left over from a killed run.
+	if ents, err := os.ReadDir(dir); err == nil {
+		for _, e := range ents {
+			if strings.HasPrefix(e.Name(), manifestTemp(sh)) && e.Type().IsRegular() {
+				os.Remove(filepath.Join(dir, e.Name()))
+			}
+		}
+	}
+	olds, bad, err := readManifests(dir)
 	if err != nil {
 		return rep, err
 	}
 	if opt.Restart {
-		if err := clean(dir); err != nil {
+		if rep.SetAside, err = setAside(dir, bad, time.Now()); err != nil {
+			return rep, err
+		}
+		if rep.Removed, err = clean(lk, olds, bad); err != nil {
 			return rep, err
 		}
 		olds = nil
+	} else if len(bad) > 0 {
+		return rep, bad[0]
 	}
 	for _, m := range olds {
 		if ok, what := def.same(m.Definition); !ok {
@@ -87,9 +113,6 @@ func Run(ctx context.Context, p *Plan, opt Options) (Report, error) {
 		return rep, err
 	}
 	rep.Scales = sc
-	if err := os.MkdirAll(dir, 0o755); err != nil {
-		return rep, fmt.Errorf("output directory: %w", err)
-	}
 
 	known := map[int][]frameRecord{}
 	for _, m := range olds {
@@ -139,7 +162,7 @@ func Run(ctx context.Context, p *Plan, opt Options) (Report, error) {
 		return nil
 	}
 	for i, pt := range todo {
-		files, err := p.writeFrame(ctx, pt, sc, opt.Version)
+		files, err := p.writeFrame(ctx, lk, pt, sc, opt.Version)
 		if err != nil {
 			if pending {
 				if serr := save(); serr != nil {
@@ -174,25 +197,71 @@ func agreedScales(ms []*manifest) (maps.Scales, error) {
 	return ms[0].Scales.scales(), nil
 }
 
-// sweepFile matches the files a sweep or its merge writes.
-var sweepFile = regexp.MustCompile(`^(frame-[0-9]+-[a-z]+(-bare|-indexed)?\.(png|csv|fits)|sweep-[a-z0-9-]+\.(gif|png|csv))$`)
-
-// clean removes the manifests and every frame and merge file of a sweep
-// from dir (files named as a sweep names them), for a fresh start.
-func clean(dir string) error {
-	ents, err := os.ReadDir(dir)
-	if errors.Is(err, os.ErrNotExist) {
-		return nil
-	}
-	if err != nil {
-		return err
-	}
-	for _, e := range ents {
-		if !e.IsDir() && (sweepFile.MatchString(e.Name()) || manifestPattern.MatchString(e.Name())) {
-			if err := os.Remove(filepath.Join(dir, e.Name())); err != nil {
-				return err
-			}
+// clean removes what the manifests ms record: every frame file that is
+// unchanged since it was written (size and SHA-256), also those of the
+// whole file records left in the unreadable manifests bad, the merged
+// files (their own record, see Merge), then the manifests. Files the
+// manifests do not name, or that changed, are left alone. It returns the
+// number of files removed.
+func clean(lk *outputs.DirLock, ms []*manifest, bad []*badManifest) (int, error) {
+	dir := lk.Dir()
+	var recs []fileRecord
+	for _, m := range ms {
+		for _, fr := range m.Frames {
+			recs = append(recs, fr.Files...)
 		}
 	}
-	return nil
+	for _, b := range bad {
+		recs = append(recs, b.salvage()...)
+	}
+	n := 0
+	for _, f := range recs {
+		if !plainName(f.Name) {
+			continue
+		}
+		path := filepath.Join(dir, f.Name)
+		if size, sum, err := hashFile(path); err != nil || size != f.Bytes || sum != f.SHA256 {
+			continue
+		}
+		if err := os.Remove(path); err != nil {
+			return n, err
+		}
+		n++
+	}
+	merged, err := outputs.RemoveSet(lk, "merge")
+	n += len(merged)
+	if err != nil {
+		return n, err
+	}
+	for _, m := range ms {
+		if err := os.Remove(filepath.Join(dir, m.name)); err != nil {
+			return n, err
+		}
+		n++
+	}
+	return n, syncDir(dir)
+}
+
+// plainName reports whether a recorded file name names a visible file of
+// the directory itself.
+func plainName(n string) bool {
+	return n != "" && n != "." && n != ".." && !strings.HasPrefix(n, ".") && !strings.ContainsAny(n, "/\x00")
+}
+
+// setAside renames each unreadable manifest to NAME.corrupt-TIME (UTC),
+// out of the way of the sweep but kept for the user to inspect (it may
+// not even be ours). It returns the new paths.
+func setAside(dir string, bad []*badManifest, now time.Time) ([]string, error) {
+	var out []string
+	for _, b := range bad {
+		to := filepath.Join(dir, b.name+".corrupt-"+now.UTC().Format("20060102T150405Z"))
+		if _, err := os.Lstat(to); err == nil {
+			return out, fmt.Errorf("%s: cannot set it aside, %s exists", b.name, to)
+		}
+		if err := os.Rename(filepath.Join(dir, b.name), to); err != nil {
+			return out, err
+		}
+		out = append(out, to)
+	}
+	return out, nil
 }

@@ -68,7 +68,7 @@ func dirFiles(t *testing.T, dir, prefix string) map[string][]byte {
 	}
 	out := map[string][]byte{}
 	for _, e := range ents {
-		if e.IsDir() || !strings.HasPrefix(e.Name(), prefix) {
+		if e.IsDir() || !strings.HasPrefix(e.Name(), prefix) || strings.HasPrefix(e.Name(), ".") {
 			continue
 		}
 		data, err := os.ReadFile(filepath.Join(dir, e.Name()))
@@ -297,7 +297,7 @@ func TestInterrupted(t *testing.T) {
 	}
 	ents, _ := os.ReadDir(dir)
 	for _, e := range ents {
-		if strings.HasPrefix(e.Name(), "frame-0001") || strings.HasPrefix(e.Name(), ".") {
+		if strings.HasPrefix(e.Name(), "frame-0001") || strings.HasPrefix(e.Name(), ".kerrscope-partial-") || strings.HasPrefix(e.Name(), ".kerrscope-journal-") {
 			t.Errorf("left behind: %s", e.Name())
 		}
 	}
@@ -338,7 +338,7 @@ func TestShardsMatchOneProcess(t *testing.T) {
 			t.Errorf("shard %d/4 rendered %v, want %v", k, rep.Rendered, want)
 		}
 		if k == 2 {
-			if _, err := Merge(many, MergeOptions{}); err == nil || !strings.Contains(err.Error(), "2 of 6 frames") {
+			if _, err := Merge(context.Background(), many, MergeOptions{}); err == nil || !strings.Contains(err.Error(), "2 of 6 frames") {
 				t.Errorf("early merge: %v", err)
 			}
 		}
@@ -356,7 +356,7 @@ func TestShardsMatchOneProcess(t *testing.T) {
 		t.Errorf("manifests %v", slices.Sorted(stdmaps.Keys(ms)))
 	}
 	for _, d := range []string{one, many} {
-		if _, err := Merge(d, MergeOptions{GIFs: []string{"redshift", "intensity"}}); err != nil {
+		if _, err := Merge(context.Background(), d, MergeOptions{GIFs: []string{"redshift", "intensity"}}); err != nil {
 			t.Fatal(err)
 		}
 	}
