@@ -43,6 +43,9 @@ func Run(ctx context.Context, r scene.Resolved, opt Options) (Summary, error) {
 	bar := NewProgress(opt.Progress, r.Screen.Height, "tracing rows")
 	f, err := RenderScene(ctx, r, bar.Set)
 	bar.Done()
+	if err == nil {
+		err = CheckFinite(f)
+	}
 	if err != nil {
 		return Summary{}, err
 	}

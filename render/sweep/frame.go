@@ -28,6 +28,9 @@ var hookStaged func(index int, name string)
 // sorted by name.
 func (p *Plan) writeFrame(ctx context.Context, pt Point, sc render.Scales, version string) ([]fileRecord, error) {
 	f, err := render.RenderScene(ctx, pt.Scene, nil)
+	if err == nil {
+		err = render.CheckFinite(f)
+	}
 	if err != nil {
 		return nil, err
 	}
