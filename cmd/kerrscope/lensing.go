@@ -43,7 +43,7 @@ func runLensing(args []string, stdout, stderr io.Writer) error {
 	}
 	o, err := raytrace.NewObserver(spin, inc)
 	if err != nil {
-		return usagef("%v", err)
+		return usagef("%w", err)
 	}
 	// Centre: the middle of the critical curve's bounding box, inside the shadow.
 	amin, amax, bmin, bmax := math.Inf(1), math.Inf(-1), math.Inf(1), math.Inf(-1)

@@ -39,11 +39,11 @@ func runProbe(args []string, stdout, stderr io.Writer) error {
 	s.Disk.Orders = min(*orders, scene.MaxOrders)
 	r, err := s.Resolve()
 	if err != nil {
-		return usagef("%v", err)
+		return usagef("%w", err)
 	}
 	m, err := render.NewModel(r)
 	if err != nil {
-		return usagef("%v", err)
+		return usagef("%w", err)
 	}
 	rep := render.Probe(m.Obs, alpha, beta, *orders, m.RedshiftAt)
 	if *asJSON {

@@ -78,9 +78,18 @@ func runSweep(args []string, stdout, stderr io.Writer) error {
 	var pe *sweep.PointError
 	switch {
 	case errors.As(err, &pe):
-		return usagef("--vary: %v", err)
+		return usagef("--vary: %w", err)
 	case err != nil:
-		return usagef("%v", err)
+		return usagef("%w", err)
+	}
+	biggest := plan.Points[0].Scene
+	for _, pt := range plan.Points {
+		if scene.MemoryEstimate(pt.Scene) > scene.MemoryEstimate(biggest) {
+			biggest = pt.Scene
+		}
+	}
+	if err := checkMemory(biggest); err != nil {
+		return err
 	}
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 	defer stop()
