@@ -69,6 +69,50 @@ func (k *EmissivityKind) UnmarshalText(b []byte) error {
 // (common practice; Page & Thorne 1974).
 const DefaultPowerLawIndex = 3.0
 
+// EmissivityDecades bounds the dynamic range of the power laws on a disk:
+// every index is limited (see IndexLimits) so that ε lies within
+// 10^±EmissivityDecades for 1 M < r ≤ r_out (every radius outside a
+// horizon exceeds 1 M). The renderer keeps g³ε × limb and g⁴ε × limb in
+// float32 (largest 3.4e38), summed over up to MaxOrders orders; with the
+// limb factor at most 3.06 and g of disk gas a few at most, 10^30 leaves a
+// margin of about 10^6.
+const EmissivityDecades = 30
+
+// MaxAbsIndex bounds every power-law index whatever the disk: steeper
+// than r^{±100} is no emissivity profile at all.
+const MaxAbsIndex = 100
+
+// IndexLimits returns the largest allowed |index| of e's power laws on a
+// disk with outer edge rOut > 1 M, so that ε stays within
+// 10^±EmissivityDecades there. For PowerLaw both results bound Q:
+// EmissivityDecades / log10(rOut). For BrokenPowerLaw (RBreak ≥ 1 M)
+// inner bounds QIn, EmissivityDecades / log10(min(RBreak, rOut)), and
+// outer bounds QOut given QIn: (EmissivityDecades − |QIn| log10 RBreak) /
+// log10(rOut/RBreak), since log10 ε at rOut is −QIn log10 RBreak − QOut
+// log10(rOut/RBreak); QOut is unused, and not limited, when RBreak ≥
+// rOut. Both are at most MaxAbsIndex. Other laws have no index: both are
+// MaxAbsIndex.
+func (e Emissivity) IndexLimits(rOut float64) (inner, outer float64) {
+	lim := func(decades, logr float64) float64 {
+		if !(logr > 0) {
+			return MaxAbsIndex
+		}
+		return math.Max(0, math.Min(MaxAbsIndex, decades/logr))
+	}
+	switch e.Kind {
+	case PowerLaw:
+		q := lim(EmissivityDecades, math.Log10(rOut))
+		return q, q
+	case BrokenPowerLaw:
+		if !(e.RBreak < rOut) {
+			return lim(EmissivityDecades, math.Log10(rOut)), MaxAbsIndex
+		}
+		lb := math.Log10(e.RBreak)
+		return lim(EmissivityDecades, lb), lim(EmissivityDecades-math.Abs(e.QIn)*lb, math.Log10(rOut/e.RBreak))
+	}
+	return MaxAbsIndex, MaxAbsIndex
+}
+
 // Emissivity is a radial law ε(r) for the line emissivity per unit disk
 // area in the rest frame of the gas, up to an overall constant. Only the
 // fields of the chosen Kind are used.

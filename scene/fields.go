@@ -1,6 +1,7 @@
 package scene
 
 import (
+	"errors"
 	"fmt"
 	"math"
 	"strconv"
@@ -16,13 +17,25 @@ type Field struct {
 	set   func(s *Scene, v string) error
 }
 
-// Set parses v and stores it in s.
-func (f Field) Set(s *Scene, v string) error { return f.set(s, v) }
+// Set parses v and stores it in s, recording that the user gave the key.
+// A value that cannot be read is a *FieldError naming the key; ranges are
+// checked by Resolve.
+func (f Field) Set(s *Scene, v string) error {
+	if err := f.set(s, v); err != nil {
+		return &FieldError{Key: f.Key, Value: Cut(v), Allowed: err.Error()}
+	}
+	s.markGiven(f.Key)
+	return nil
+}
 
 func parseNumber(v string) (float64, error) {
 	x, err := strconv.ParseFloat(strings.TrimSpace(v), 64)
+	var ne *strconv.NumError
+	if errors.As(err, &ne) && errors.Is(ne.Err, strconv.ErrRange) {
+		return 0, fmt.Errorf("out of the range of a 64-bit float")
+	}
 	if err != nil {
-		return 0, fmt.Errorf("not a number")
+		return 0, fmt.Errorf("not a number (e.g. 0.9, -3, 6.4e3)")
 	}
 	if math.IsNaN(x) || math.IsInf(x, 0) {
 		return 0, fmt.Errorf("must be a finite number")
@@ -53,6 +66,10 @@ func optNum(p func(*Scene) **float64) func(*Scene, string) error {
 func whole(p func(*Scene) *int) func(*Scene, string) error {
 	return func(s *Scene, v string) error {
 		x, err := strconv.Atoi(strings.TrimSpace(v))
+		var ne *strconv.NumError
+		if errors.As(err, &ne) && errors.Is(ne.Err, strconv.ErrRange) {
+			return fmt.Errorf("whole number too large")
+		}
 		if err != nil {
 			return fmt.Errorf("not a whole number")
 		}

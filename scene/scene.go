@@ -4,11 +4,13 @@ import (
 	"bytes"
 	"errors"
 	"fmt"
+	"io"
 	"math"
 	"os"
 	"regexp"
 	"strconv"
 	"strings"
+	"unicode/utf8"
 
 	"github.com/pelletier/go-toml/v2"
 
@@ -27,6 +29,10 @@ type Scene struct {
 	Refine   Refine   `toml:"refine"`
 	Band     Band     `toml:"band"`
 	Output   Output   `toml:"output"`
+
+	// given holds the keys set by the user (scene file or flags); see
+	// markGiven. It is not part of the scene's TOML.
+	given map[string]bool
 }
 
 // Refine is adaptive sampling: Depth 0 traces one photon per pixel centre;
@@ -134,26 +140,46 @@ func Default() Scene {
 	}
 }
 
+// MaxSceneBytes is the largest scene file Load reads; a scene is a short
+// TOML text, so anything larger is not one.
+const MaxSceneBytes = 1 << 20
+
 // Load reads a scene file over the defaults. Unknown keys and wrong types
-// are errors naming the key and the line.
+// are errors naming the key and the line; a file larger than
+// MaxSceneBytes (or a device that never ends) is refused after reading
+// at most that much.
 func Load(path string) (Scene, error) {
-	data, err := os.ReadFile(path)
+	f, err := os.Open(path)
 	if err != nil {
 		return Scene{}, err
+	}
+	defer f.Close()
+	data, err := io.ReadAll(io.LimitReader(f, MaxSceneBytes+1))
+	if err != nil {
+		return Scene{}, fmt.Errorf("%s: %w", path, err)
+	}
+	if len(data) > MaxSceneBytes {
+		return Scene{}, &ParseError{File: path, Problem: fmt.Sprintf("larger than %d KiB; a scene file is a short TOML text", MaxSceneBytes>>10)}
 	}
 	return Parse(path, data)
 }
 
 // Parse decodes TOML scene text (name is used in error messages) over
-// the defaults.
+// the defaults. A leading UTF-8 byte-order mark is skipped. Errors are
+// *ParseError values.
 func Parse(name string, data []byte) (Scene, error) {
+	data = bytes.TrimPrefix(data, []byte("\xef\xbb\xbf"))
+	if !utf8.Valid(data) {
+		line := 1 + bytes.Count(data[:firstInvalid(data)], []byte("\n"))
+		return Scene{}, &ParseError{File: name, Line: line, Problem: "not UTF-8 text; a scene file is UTF-8 TOML"}
+	}
 	s := Default()
 	// Lists replace the defaults rather than merge with them.
 	s.Output.Maps, s.Output.Formats = nil, nil
 	d := toml.NewDecoder(bytes.NewReader(data))
 	d.DisallowUnknownFields()
 	if err := d.Decode(&s); err != nil {
-		return Scene{}, tomlError(name, err)
+		return Scene{}, tomlError(name, data, err)
 	}
 	def := Default()
 	if s.Output.Maps == nil {
@@ -162,42 +188,176 @@ func Parse(name string, data []byte) (Scene, error) {
 	if s.Output.Formats == nil {
 		s.Output.Formats = def.Output.Formats
 	}
+	// Record which keys the file sets, so that a refused pair of values
+	// blames the one the user wrote (the decoder matches keys regardless
+	// of case).
+	var doc map[string]any
+	if toml.Unmarshal(data, &doc) == nil {
+		for sec, v := range doc {
+			if kv, ok := v.(map[string]any); ok {
+				for k := range kv {
+					s.markGiven(strings.ToLower(sec + "." + k))
+				}
+			}
+		}
+	}
 	return s, nil
 }
 
-var typeMsg = regexp.MustCompile(`cannot decode TOML (\w+) into .* of type (\S+)`)
+// firstInvalid returns the offset of the first byte of data that is not
+// part of valid UTF-8.
+func firstInvalid(data []byte) int {
+	for i := 0; i < len(data); {
+		r, n := utf8.DecodeRune(data[i:])
+		if r == utf8.RuneError && n <= 1 {
+			return i
+		}
+		i += n
+	}
+	return len(data)
+}
 
-// tomlError rewrites a decoder error as "file:line: key k: problem".
-func tomlError(name string, err error) error {
+// markGiven records that key was set by the user (scene file or flag).
+// The set is copied, never changed in place, because scenes are copied by
+// value and share it.
+func (s *Scene) markGiven(key string) {
+	m := make(map[string]bool, len(s.given)+1)
+	for k := range s.given {
+		m[k] = true
+	}
+	m[key] = true
+	s.given = m
+}
+
+// isGiven reports whether the user set key (scene file or flag).
+func (s Scene) isGiven(key string) bool { return s.given[key] }
+
+var (
+	typeMsg  = regexp.MustCompile(`cannot decode TOML ([\w ]+?) into .* of type (\S+)`)
+	storeMsg = regexp.MustCompile(`cannot store (?:a|an) ([\w ]+?) in (?:a|an) (\S+)`)
+)
+
+// typeWords says in words what a Go type of the scene expects.
+func typeWords(goType string) string {
+	goType = strings.TrimPrefix(goType, "*")
+	switch goType {
+	case "float64":
+		return "a number"
+	case "int":
+		return "a whole number"
+	case "bool":
+		return "true or false"
+	case "string":
+		return "a string"
+	case "[]string":
+		return "a list of strings"
+	}
+	if strings.HasPrefix(goType, "scene.") || goType == "struct" {
+		return "a table (a [section] of keys)"
+	}
+	return "a different kind of value"
+}
+
+// tomlError rewrites a decoder error as a *ParseError naming the line, the
+// key, what was found there and what is allowed, in words rather than in
+// the decoder's terms.
+func tomlError(name string, data []byte, err error) error {
 	var sm *toml.StrictMissingError
 	if errors.As(err, &sm) && len(sm.Errors) > 0 {
-		var lines []string
-		for _, e := range sm.Errors {
-			row, _ := e.Position()
-			lines = append(lines, fmt.Sprintf("%s:%d: unknown key %q", name, row, strings.Join(e.Key(), ".")))
+		e := sm.Errors[0]
+		row, _ := e.Position()
+		key := strings.Join(e.Key(), ".")
+		pe := &ParseError{File: name, Line: row, Key: key, Problem: "unknown key (valid keys: " + validKeys(e.Key()) + ")"}
+		if len(sm.Errors) > 1 {
+			pe.Problem += fmt.Sprintf("; and %d more unknown keys", len(sm.Errors)-1)
 		}
-		return errors.New(strings.Join(lines, "; "))
+		return pe
 	}
 	var de *toml.DecodeError
-	if errors.As(err, &de) {
-		row, _ := de.Position()
-		msg := de.Error()
-		if m := typeMsg.FindStringSubmatch(msg); m != nil {
-			want := map[string]string{"float64": "a number", "int": "a whole number", "bool": "true or false",
-				"string": "a string", "[]string": "a list of strings"}[strings.TrimPrefix(m[2], "*")]
-			if want == "" {
-				want = m[2]
-			}
-			msg = fmt.Sprintf("wrong type: TOML %s where %s is expected", m[1], want)
-		} else {
-			msg = strings.TrimPrefix(msg, "toml: ")
-		}
-		if k := de.Key(); len(k) > 0 {
-			return fmt.Errorf("%s:%d: key %q: %s", name, row, strings.Join(k, "."), msg)
-		}
-		return fmt.Errorf("%s:%d: %s", name, row, msg)
+	if !errors.As(err, &de) {
+		return &ParseError{File: name, Problem: "cannot read the scene: " + Cut(err.Error())}
 	}
-	return fmt.Errorf("%s: %v", name, err)
+	row, _ := de.Position()
+	pe := &ParseError{File: name, Line: row, Key: strings.Join(de.Key(), "."), Found: foundAt(data, row)}
+	msg := strings.TrimPrefix(de.Error(), "toml: ")
+	switch m1, m2 := typeMsg.FindStringSubmatch(msg), storeMsg.FindStringSubmatch(msg); {
+	case m1 != nil:
+		pe.Problem = fmt.Sprintf("wrong type: TOML %s where %s is expected", m1[1], typeWords(m1[2]))
+	case m2 != nil:
+		pe.Problem = fmt.Sprintf("wrong type: TOML %s where %s is expected", m2[1], typeWords(m2[2]))
+	case strings.Contains(msg, "strconv.Parse") || strings.HasPrefix(msg, "unable to parse"):
+		pe.Problem = "not a number TOML can read, or out of the range of a 64-bit float (e.g. 0.9, -3, 6.4e3)"
+	case strings.Contains(msg, "too large to fit"):
+		pe.Problem = "whole number too large"
+	case strings.Contains(msg, "already defined") || strings.Contains(msg, "already exists"):
+		pe.Problem = "given twice"
+		if pe.Key != "" && !strings.Contains(pe.Key, ".") {
+			pe.Key = sectionAt(data, row, pe.Key)
+		}
+	default:
+		pe.Problem = Cut(msg)
+	}
+	return pe
+}
+
+// foundAt returns the text of the value at line row (1-based) of data:
+// what follows the first "=" on the line, or the line itself, trimmed
+// and cut to MaxValueLen characters.
+func foundAt(data []byte, row int) string {
+	lines := bytes.Split(data, []byte("\n"))
+	if row < 1 || row > len(lines) {
+		return ""
+	}
+	line := string(bytes.TrimSpace(lines[row-1]))
+	if i := strings.Index(line, "="); i >= 0 && !strings.HasPrefix(line, "[") {
+		line = strings.TrimSpace(line[i+1:])
+	}
+	return Cut(line)
+}
+
+// sectionAt prefixes key, found at line row (1-based), with the
+// [section] in force there, unless that line is itself a table header.
+func sectionAt(data []byte, row int, key string) string {
+	lines := bytes.Split(data, []byte("\n"))
+	header := func(i int) (string, bool) {
+		l := strings.TrimSpace(string(lines[i]))
+		return strings.Trim(l, "[] "), strings.HasPrefix(l, "[")
+	}
+	if row < 1 || row > len(lines) {
+		return key
+	}
+	if _, ok := header(row - 1); ok {
+		return key
+	}
+	for i := row - 2; i >= 0; i-- {
+		if sec, ok := header(i); ok {
+			return sec + "." + key
+		}
+	}
+	return key
+}
+
+// validKeys lists the keys of the section of key (or the sections).
+func validKeys(key []string) string {
+	if len(key) > 1 {
+		var out []string
+		for _, f := range Fields() {
+			if sec, k, _ := strings.Cut(f.Key, "."); sec == key[0] {
+				out = append(out, k)
+			}
+		}
+		if len(out) > 0 {
+			return strings.Join(out, ", ")
+		}
+	}
+	var secs []string
+	for _, f := range Fields() {
+		sec, _, _ := strings.Cut(f.Key, ".")
+		if len(secs) == 0 || secs[len(secs)-1] != "["+sec+"]" {
+			secs = append(secs, "["+sec+"]")
+		}
+	}
+	return strings.Join(secs, ", ")
 }
 
 // Resolved holds the scene's derived quantities, all validated.
@@ -222,42 +382,86 @@ const (
 	MaxPixels = 16384
 	MaxOrders = 16
 	MaxBins   = 1 << 20
+	MaxDepth  = 12
 )
 
-// BytesPerPixel estimates the renderer's peak memory per pixel for n
-// orders: the records (2 + 16n bytes), the FITS images built for writing
-// (4 bytes for each of 6 + 3n maps) and colour images (about 24 bytes).
-func BytesPerPixel(orders int) int64 { return int64(2 + 16*orders + 4*(6+3*orders) + 24) }
+// Allowed ranges of the physical values. Together with the emissivity
+// bound (Emissivity.IndexLimits) they keep every derived quantity finite: the float32
+// records (largest 3.4e38) of g, r and of g³ε × limb and g⁴ε × limb summed
+// over the orders, the float64 spectrum and its bin edges, the figure
+// axes and the FITS header values.
+const (
+	// MaxLength bounds every length and screen coordinate, in M: disk
+	// edges, break radius, field of view, window centre.
+	MaxLength = 1e7
+	// MinLineKeV and MaxLineKeV bound the line's rest energy: 1 meV to
+	// 1 GeV.
+	MinLineKeV, MaxLineKeV = 1e-6, 1e6
+	// MaxEnergyRatio bounds the spectrum's upper end, as a multiple of
+	// the line energy (disk gas shifts a line by a factor of a few at
+	// most, so higher energies stay empty).
+	MaxEnergyRatio = 1000
+	// MinEnergySpan is the smallest width of the energy range, relative
+	// to its upper end: with up to MaxBins bins the bin edges stay
+	// distinct in float64 and the spectrum's axis can be labelled.
+	MinEnergySpan = 1e-6
+	// MinFWHMeV is the smallest non-zero instrument resolution in eV
+	// (its Gaussian width stays a normal float64); the largest is the
+	// line energy itself.
+	MinFWHMeV = 1e-6
+	// MinMassSolar and MaxMassSolar bound the mass in solar masses.
+	MinMassSolar, MaxMassSolar = 1e-10, 1e15
+	// MinDistanceKpc and MaxDistanceKpc bound the distance in kpc (1e-12
+	// kpc is about 31 km; 1e10 kpc is beyond the Hubble distance).
+	MinDistanceKpc, MaxDistanceKpc = 1e-12, 1e10
+)
 
-// Resolve validates the scene and computes its derived quantities. The
-// messages name the scene key (its flag is the same key after the dot, as
-// listed by Fields).
+// Resolve validates the scene and computes its derived quantities. A
+// refused value gives a *FieldError naming the scene key (its flag is the
+// same key after the dot, as listed by Fields), the value and the allowed
+// range; when two values are refused together (inner and outer edge,
+// lower and upper energy, band ends) the error names the one the user
+// set. Resolve reads nothing from the machine: the same scene gives the
+// same answer everywhere.
 func (s Scene) Resolve() (Resolved, error) {
 	var r Resolved
 	r.Scene = s
 	finite := func(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
+	// pick returns a unless only b was given by the user.
+	pick := func(a, b string) string {
+		if s.isGiven(b) && !s.isGiven(a) {
+			return b
+		}
+		return a
+	}
 	a := s.Hole.Spin
 	if err := raytrace.ValidSpin(a); err != nil {
-		return r, fmt.Errorf("black_hole.spin = %v: must be in -1 < spin < 1", a)
+		return r, fieldErr("black_hole.spin", a, "must be in -1 < spin < 1")
 	}
 	if h := s.Hole; h.MassSolar != nil || h.DistanceKpc != nil || h.DistanceMpc != nil {
-		if h.MassSolar == nil || (h.DistanceKpc == nil && h.DistanceMpc == nil) {
-			return r, errors.New("black_hole: give both mass_msun and a distance (distance_kpc or distance_mpc) for angular axes, or neither")
+		switch {
+		case h.MassSolar == nil:
+			return r, &FieldError{Key: "black_hole.mass_msun", Allowed: "needed with a distance, for angular axes (or give neither)"}
+		case h.DistanceKpc == nil && h.DistanceMpc == nil:
+			return r, &FieldError{Key: "black_hole.distance_kpc", Allowed: "a distance (distance_kpc or distance_mpc) is needed with mass_msun, for angular axes (or give neither)"}
+		case h.DistanceKpc != nil && h.DistanceMpc != nil:
+			return r, fieldErr("black_hole.distance_mpc", *h.DistanceMpc, "give distance_kpc or distance_mpc, not both")
 		}
-		if h.DistanceKpc != nil && h.DistanceMpc != nil {
-			return r, errors.New("black_hole: give distance_kpc or distance_mpc, not both")
-		}
-		if m := *h.MassSolar; !(m > 0) || !finite(m) {
-			return r, fmt.Errorf("black_hole.mass_msun = %v: must be a positive number", m)
+		if m := *h.MassSolar; !(m >= MinMassSolar && m <= MaxMassSolar) {
+			return r, fieldErr("black_hole.mass_msun", m, "must be a mass from %g to %g solar masses", MinMassSolar, MaxMassSolar)
 		}
 		dkpc := 0.0
 		if h.DistanceKpc != nil {
 			dkpc = *h.DistanceKpc
+			if !(dkpc >= MinDistanceKpc && dkpc <= MaxDistanceKpc) {
+				return r, fieldErr("black_hole.distance_kpc", dkpc, "must be from %g to %g kpc", MinDistanceKpc, MaxDistanceKpc)
+			}
 		} else {
-			dkpc = *h.DistanceMpc * 1000
-		}
-		if !(dkpc > 0) || !finite(dkpc) {
-			return r, fmt.Errorf("black_hole: distance must be a positive number")
+			dmpc := *h.DistanceMpc
+			if !(dmpc >= MinDistanceKpc/1000 && dmpc <= MaxDistanceKpc/1000) {
+				return r, fieldErr("black_hole.distance_mpc", dmpc, "must be from %g to %g Mpc", MinDistanceKpc/1000, MaxDistanceKpc/1000)
+			}
+			dkpc = dmpc * 1000
 		}
 		// GM_sun/c² = 1476.6250 m (IAU 2015 nominal GM_sun); 1 kpc = 3.0856776e19 m (IAU 2012 au, pc).
 		const gmSunM, kpcM = 1476.6250385, 3.0856775814913673e19
@@ -265,66 +469,94 @@ func (s Scene) Resolve() (Resolved, error) {
 		r.MicroArcsecPerM = rad * 180 / math.Pi * 3600 * 1e6
 	}
 	if inc := s.Observer.InclinationDeg; !(inc >= 0 && inc <= 180) {
-		return r, fmt.Errorf("observer.inclination_deg = %v: must be between 0 and 180 degrees", inc)
+		return r, fieldErr("observer.inclination_deg", inc, "must be between 0 and 180 degrees")
 	}
 	sc := s.Screen
-	if sc.Width < 1 || sc.Width > MaxPixels || sc.Height < 1 || sc.Height > MaxPixels {
-		return r, fmt.Errorf("screen.width × screen.height = %d × %d: each must be between 1 and %d pixels", sc.Width, sc.Height, MaxPixels)
+	if sc.Width < 1 || sc.Width > MaxPixels {
+		return r, fieldErr("screen.width", sc.Width, "must be between 1 and %d pixels", MaxPixels)
 	}
-	if !(sc.FieldOfView > 0) || !finite(sc.FieldOfView) || sc.FieldOfView > 1e7 {
-		return r, fmt.Errorf("screen.field_of_view = %v: must be a positive number of M, at most 1e7", sc.FieldOfView)
+	if sc.Height < 1 || sc.Height > MaxPixels {
+		return r, fieldErr("screen.height", sc.Height, "must be between 1 and %d pixels", MaxPixels)
 	}
-	if !finite(sc.CenterAlpha) || !finite(sc.CenterBeta) || math.Abs(sc.CenterAlpha) > 1e7 || math.Abs(sc.CenterBeta) > 1e7 {
-		return r, fmt.Errorf("screen.center_alpha/center_beta = (%v, %v): must be finite, within ±1e7 M", sc.CenterAlpha, sc.CenterBeta)
+	if !(sc.FieldOfView > 0 && sc.FieldOfView <= MaxLength) {
+		return r, fieldErr("screen.field_of_view", sc.FieldOfView, "must be a positive number of M, at most %g", MaxLength)
+	}
+	if !(math.Abs(sc.CenterAlpha) <= MaxLength) {
+		return r, fieldErr("screen.center_alpha", sc.CenterAlpha, "must be within ±%g M", MaxLength)
+	}
+	if !(math.Abs(sc.CenterBeta) <= MaxLength) {
+		return r, fieldErr("screen.center_beta", sc.CenterBeta, "must be within ±%g M", MaxLength)
 	}
 	r.PixelSize = sc.FieldOfView / float64(sc.Width)
 	if r.PixelSize < 1e-13*math.Max(1, math.Abs(sc.CenterAlpha)+math.Abs(sc.CenterBeta)) {
-		return r, fmt.Errorf("screen.field_of_view = %v over %d pixels is finer than floating point resolves at centre (%v, %v)", sc.FieldOfView, sc.Width, sc.CenterAlpha, sc.CenterBeta)
+		return r, fieldErr("screen.field_of_view", sc.FieldOfView, "over %d pixels is finer than floating point resolves at centre (%v, %v)", sc.Width, sc.CenterAlpha, sc.CenterBeta)
 	}
 	d := s.Disk
 	if d.Orders < 1 || d.Orders > MaxOrders {
-		return r, fmt.Errorf("disk.orders = %d: must be between 1 and %d", d.Orders, MaxOrders)
-	}
-	need := int64(sc.Width) * int64(sc.Height) * BytesPerPixel(d.Orders)
-	if avail := availableMemory(); need > avail {
-		return r, fmt.Errorf("screen %d × %d with %d orders needs about %.1f GiB, more than the %.1f GiB this machine has free",
-			sc.Width, sc.Height, d.Orders, float64(need)/(1<<30), float64(avail)/(1<<30))
+		return r, fieldErr("disk.orders", d.Orders, "must be between 1 and %d", MaxOrders)
 	}
 	r.Horizon = raytrace.Horizon(a)
 	r.ISCO = raytrace.ISCO(a)
 	r.Inner = r.ISCO
 	if d.InnerRadius != nil {
 		in := *d.InnerRadius
-		if !finite(in) || !(in > r.Horizon) {
-			return r, fmt.Errorf("disk.inner_radius = %v: must lie outside the horizon r+ = %.6g M", in, r.Horizon)
+		if !(in > r.Horizon && in < MaxLength) {
+			return r, fieldErr("disk.inner_radius", in, "must lie outside the horizon r+ = %.6g M and below %g M", r.Horizon, MaxLength)
 		}
 		r.Inner = in
 		if in < r.ISCO && !d.Plunging {
 			r.Inner = r.ISCO
 		}
 	}
-	if !finite(d.OuterRadius) || !(d.OuterRadius > r.Inner) {
-		return r, fmt.Errorf("disk.outer_radius = %v: must be larger than the inner edge %.6g M", d.OuterRadius, r.Inner)
+	if !(d.OuterRadius > r.Inner && d.OuterRadius <= MaxLength) {
+		if d.OuterRadius <= r.Inner && d.InnerRadius != nil && pick("disk.outer_radius", "disk.inner_radius") == "disk.inner_radius" {
+			return r, fieldErr("disk.inner_radius", *d.InnerRadius, "must be smaller than disk.outer_radius = %v M", d.OuterRadius)
+		}
+		inner := fmt.Sprintf("the inner edge %.6g M", r.Inner)
+		switch {
+		case d.InnerRadius == nil:
+			inner = fmt.Sprintf("the inner edge, the ISCO at %.6g M", r.Inner)
+		case r.Inner != *d.InnerRadius:
+			inner = fmt.Sprintf("the inner edge, raised to the ISCO at %.6g M (disk.plunging lets gas inside it shine)", r.Inner)
+		}
+		return r, fieldErr("disk.outer_radius", d.OuterRadius, "must be larger than %s, at most %g M", inner, MaxLength)
 	}
 	em := s.Emission
-	if !(em.LineKeV > 0) || !finite(em.LineKeV) {
-		return r, fmt.Errorf("emission.line_kev = %v: must be a positive energy in keV", em.LineKeV)
+	if !(em.LineKeV >= MinLineKeV && em.LineKeV <= MaxLineKeV) {
+		return r, fieldErr("emission.line_kev", em.LineKeV, "must be a line energy from %g to %g keV", MinLineKeV, MaxLineKeV)
 	}
 	kind, err := ParseEmissivityKind(em.Emissivity)
 	if err != nil {
-		return r, fmt.Errorf("emission.emissivity: %v", err)
+		return r, fieldErr("emission.emissivity", em.Emissivity, "must be one of %s", strings.Join(emissivityNames[PowerLaw:], ", "))
 	}
 	r.Emissivity = Emissivity{Kind: kind, Q: em.Index, QIn: em.IndexInner, QOut: em.IndexOuter, RBreak: em.BreakRad, Spin: a}
+	switch kind {
+	case PowerLaw:
+		if qmax, _ := r.Emissivity.IndexLimits(d.OuterRadius); !(math.Abs(em.Index) <= qmax) {
+			return r, fieldErr("emission.index", em.Index, "must be within ±%.4g for disk.outer_radius = %v M (ε = r^-index within 10^±%d across the disk)", qmax, d.OuterRadius, EmissivityDecades)
+		}
+	case BrokenPowerLaw:
+		if !(em.BreakRad >= 1 && em.BreakRad <= MaxLength) {
+			return r, fieldErr("emission.break_radius", em.BreakRad, "must be from 1 M (no horizon is smaller) to %g M", MaxLength)
+		}
+		qin, _ := r.Emissivity.IndexLimits(d.OuterRadius)
+		if !(math.Abs(em.IndexInner) <= qin) {
+			return r, fieldErr("emission.index_inner", em.IndexInner, "must be within ±%.4g for break_radius = %v M and disk.outer_radius = %v M (ε within 10^±%d across the disk)", qin, em.BreakRad, d.OuterRadius, EmissivityDecades)
+		}
+		if _, qout := r.Emissivity.IndexLimits(d.OuterRadius); !(math.Abs(em.IndexOuter) <= qout) {
+			return r, fieldErr("emission.index_outer", em.IndexOuter, "must be within ±%.4g with index_inner = %v, break_radius = %v M and disk.outer_radius = %v M (ε within 10^±%d across the disk)", qout, em.IndexInner, em.BreakRad, d.OuterRadius, EmissivityDecades)
+		}
+	}
 	if err := r.Emissivity.Validate(); err != nil {
-		return r, fmt.Errorf("emission: %v", err)
+		return r, fieldErr("emission.emissivity", em.Emissivity, "%v", err)
 	}
 	lk, err := ParseLimbKind(em.Limb)
 	if err != nil {
-		return r, fmt.Errorf("emission.limb: %v", err)
+		return r, fieldErr("emission.limb", em.Limb, "must be one of %s", strings.Join(limbNames[Isotropic:], ", "))
 	}
 	r.Limb = Limb{Kind: lk}
 	if r.Gas, err = NewGas(a); err != nil {
-		return r, err
+		return r, fieldErr("black_hole.spin", a, "%v", err)
 	}
 	sp := s.Spectrum
 	r.MinKeV, r.MaxKeV = 0.2*em.LineKeV, 1.8*em.LineKeV
@@ -334,34 +566,52 @@ func (s Scene) Resolve() (Resolved, error) {
 	if sp.MaxKeV != nil {
 		r.MaxKeV = *sp.MaxKeV
 	}
-	if !finite(r.MinKeV) || !finite(r.MaxKeV) || r.MinKeV < 0 || !(r.MaxKeV > r.MinKeV) {
-		return r, fmt.Errorf("spectrum.energy_min_kev, energy_max_kev = %v, %v: need 0 ≤ min < max", r.MinKeV, r.MaxKeV)
+	emax := MaxEnergyRatio * em.LineKeV
+	if !(r.MinKeV >= 0 && r.MinKeV < emax) {
+		return r, fieldErr("spectrum.energy_min_kev", r.MinKeV, "must be from 0 to below %g × emission.line_kev = %g keV", float64(MaxEnergyRatio), emax)
+	}
+	if !(r.MaxKeV > 0 && r.MaxKeV <= emax) {
+		return r, fieldErr("spectrum.energy_max_kev", r.MaxKeV, "must be positive, at most %g × emission.line_kev = %g keV", float64(MaxEnergyRatio), emax)
+	}
+	if !(r.MaxKeV-r.MinKeV >= MinEnergySpan*r.MaxKeV) {
+		key, v := "spectrum.energy_max_kev", r.MaxKeV
+		if pick(key, "spectrum.energy_min_kev") != key {
+			key, v = "spectrum.energy_min_kev", r.MinKeV
+		}
+		return r, fieldErr(key, v, "need energy_min_kev < energy_max_kev, apart by at least %g of the upper end (here %g and %g keV)", MinEnergySpan, r.MinKeV, r.MaxKeV)
 	}
 	if sp.Bins < 1 || sp.Bins > MaxBins {
-		return r, fmt.Errorf("spectrum.bins = %d: must be between 1 and %d", sp.Bins, MaxBins)
+		return r, fieldErr("spectrum.bins", sp.Bins, "must be between 1 and %d", MaxBins)
 	}
-	if !(sp.FWHMeV >= 0) || !finite(sp.FWHMeV) {
-		return r, fmt.Errorf("spectrum.instrument_fwhm_ev = %v: must be ≥ 0 (0 = no instrument broadening)", sp.FWHMeV)
+	if f := sp.FWHMeV; !(f == 0 || (f >= MinFWHMeV && f <= 1000*em.LineKeV)) {
+		return r, fieldErr("spectrum.instrument_fwhm_ev", f, "must be 0 (no instrument broadening) or from %g eV to the line energy, %g eV", MinFWHMeV, 1000*em.LineKeV)
 	}
 	rf := s.Refine
-	if rf.Depth < 0 || rf.Depth > 12 {
-		return r, fmt.Errorf("refine.depth = %d: must be between 0 (off) and 12", rf.Depth)
+	if rf.Depth < 0 || rf.Depth > MaxDepth {
+		return r, fieldErr("refine.depth", rf.Depth, "must be between 0 (off) and %d", MaxDepth)
 	}
-	if !(rf.TolR > 0) || !finite(rf.TolR) || !(rf.TolG > 0) || !finite(rf.TolG) {
-		return r, fmt.Errorf("refine.tolerance_r, tolerance_g = %v, %v: must be positive", rf.TolR, rf.TolG)
+	if !(rf.TolR > 0) || !finite(rf.TolR) {
+		return r, fieldErr("refine.tolerance_r", rf.TolR, "must be a positive number")
+	}
+	if !(rf.TolG > 0) || !finite(rf.TolG) {
+		return r, fieldErr("refine.tolerance_g", rf.TolG, "must be a positive number")
 	}
 	if r.BandMin, err = ParseRadius(s.Band.RMin, r); err != nil {
-		return r, fmt.Errorf("band.r_min: %v", err)
+		return r, fieldErr("band.r_min", s.Band.RMin, "%v", err)
 	}
 	if r.BandMax, err = ParseRadius(s.Band.RMax, r); err != nil {
-		return r, fmt.Errorf("band.r_max: %v", err)
+		return r, fieldErr("band.r_max", s.Band.RMax, "%v", err)
 	}
 	if !(r.BandMax > r.BandMin) {
-		return r, fmt.Errorf("band.r_min, r_max = %q, %q (%.6g, %.6g M): need r_min < r_max", s.Band.RMin, s.Band.RMax, r.BandMin, r.BandMax)
+		key, v := "band.r_max", s.Band.RMax
+		if pick(key, "band.r_min") == "band.r_min" {
+			key, v = "band.r_min", s.Band.RMin
+		}
+		return r, fieldErr(key, strconv.Quote(v), "need r_min < r_max (here %.6g and %.6g M)", r.BandMin, r.BandMax)
 	}
 	o := s.Output
 	if strings.TrimSpace(o.Directory) == "" {
-		return r, errors.New("output.directory is empty")
+		return r, &FieldError{Key: "output.directory", Allowed: "is empty; give a folder to write into"}
 	}
 	if err := checkNames("output.maps", o.Maps, MapNames); err != nil {
 		return r, err
@@ -370,14 +620,14 @@ func (s Scene) Resolve() (Resolved, error) {
 		return r, err
 	}
 	if o.IntensityScale != "log" && o.IntensityScale != "linear" {
-		return r, fmt.Errorf("output.intensity_scale = %q: must be log or linear", o.IntensityScale)
+		return r, fieldErr("output.intensity_scale", strconv.Quote(o.IntensityScale), "must be log or linear")
 	}
 	return r, nil
 }
 
 func checkNames(key string, got, valid []string) error {
 	if len(got) == 0 {
-		return fmt.Errorf("%s is empty (valid: %s)", key, strings.Join(valid, ", "))
+		return &FieldError{Key: key, Allowed: "is empty (valid: " + strings.Join(valid, ", ") + ")"}
 	}
 	seen := map[string]bool{}
 	for _, g := range got {
@@ -386,10 +636,10 @@ func checkNames(key string, got, valid []string) error {
 			ok = ok || g == v
 		}
 		if !ok {
-			return fmt.Errorf("%s: unknown name %q (valid: %s)", key, g, strings.Join(valid, ", "))
+			return fieldErr(key, strconv.Quote(g), "unknown name (valid: %s)", strings.Join(valid, ", "))
 		}
 		if seen[g] {
-			return fmt.Errorf("%s: %q given twice", key, g)
+			return fieldErr(key, strconv.Quote(g), "given twice")
 		}
 		seen[g] = true
 	}
@@ -404,20 +654,6 @@ func (o Output) Has(name string) bool {
 		}
 	}
 	return false
-}
-
-// availableMemory reads MemAvailable from /proc/meminfo, or assumes 4 GiB.
-func availableMemory() int64 {
-	data, err := os.ReadFile("/proc/meminfo")
-	if err == nil {
-		for _, line := range strings.Split(string(data), "\n") {
-			var kb int64
-			if n, _ := fmt.Sscanf(line, "MemAvailable: %d kB", &kb); n == 1 {
-				return kb * 1024
-			}
-		}
-	}
-	return 4 << 30
 }
 
 // TOML returns the scene as TOML text (the manifest form): every field,
@@ -442,9 +678,19 @@ func (r Resolved) Caption() string {
 }
 
 // ParseRadius reads a radius expression: a number of M, or "isco" or
-// "horizon" optionally followed by "*x" (scaled) or "+x" (shifted by x M),
-// e.g. "isco*1.1", "horizon+0.05", "3.5".
+// "horizon" optionally followed by "*x" (scaled), "+x" or "-x" (shifted by
+// x M), e.g. "isco*1.1", "horizon+0.05", "3.5". The radius must come out
+// between 0 and MaxLength M.
 func ParseRadius(expr string, r Resolved) (float64, error) {
+	v, err := parseRadius(expr, r)
+	if err == nil && !(v >= 0 && v <= MaxLength) {
+		return 0, fmt.Errorf("radius %.6g M: must be from 0 to %g M", v, MaxLength)
+	}
+	return v, err
+}
+
+func parseRadius(expr string, r Resolved) (float64, error) {
+	const want = "want a number of M, or isco / horizon with an optional *x, +x or -x"
 	e := strings.ToLower(strings.ReplaceAll(expr, " ", ""))
 	base := 0.0
 	rest := e
@@ -456,7 +702,7 @@ func ParseRadius(expr string, r Resolved) (float64, error) {
 	default:
 		v, err := strconv.ParseFloat(e, 64)
 		if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
-			return 0, fmt.Errorf("radius %q: want a number, or isco / horizon with an optional *x or +x", expr)
+			return 0, errors.New(want)
 		}
 		return v, nil
 	}
@@ -465,7 +711,7 @@ func ParseRadius(expr string, r Resolved) (float64, error) {
 	}
 	v, err := strconv.ParseFloat(rest[1:], 64)
 	if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
-		return 0, fmt.Errorf("radius %q: cannot read %q", expr, rest)
+		return 0, fmt.Errorf("cannot read %q: %s", Cut(rest), want)
 	}
 	switch rest[0] {
 	case '*':
@@ -475,5 +721,5 @@ func ParseRadius(expr string, r Resolved) (float64, error) {
 	case '-':
 		return base - v, nil
 	}
-	return 0, fmt.Errorf("radius %q: after %s use *x, +x or -x", expr, e[:len(e)-len(rest)])
+	return 0, fmt.Errorf("after %s use *x, +x or -x", e[:len(e)-len(rest)])
 }

@@ -29,12 +29,12 @@ func TestDefaultAndDemoResolve(t *testing.T) {
 func TestParseErrorsNameKeyAndLine(t *testing.T) {
 	cases := []struct{ src, want string }{
 		{"[black_hole]\nspin = \"fast\"\n", `scene.toml:2: key "black_hole.spin": wrong type: TOML string where a number is expected`},
-		{"[disk]\norbits = 3\n", `scene.toml:2: unknown key "disk.orbits"`},
+		{"[disk]\norbits = 3\n", `scene.toml:2: key "disk.orbits": unknown key (valid keys: inner_radius, outer_radius, opaque, orders, plunging)`},
 		{"[screen]\nwidth = 2.5\n", `scene.toml:2: key "screen.width": wrong type`},
 		{"[disk]\nopaque = 1\n", `scene.toml:2: key "disk.opaque": wrong type`},
 		{"[output]\nmaps = \"redshift\"\n", `scene.toml:2: key "output.maps": wrong type`},
 		{"\n\n[observer]\ninclination_deg = \n", `scene.toml:4:`},
-		{"[nowhere]\nx = 1\n", `unknown key "nowhere`},
+		{"[nowhere]\nx = 1\n", `key "nowhere": unknown key (valid keys: [black_hole], [observer], [screen]`},
 	}
 	for _, c := range cases {
 		_, err := Parse("scene.toml", []byte(c.src))
@@ -60,8 +60,7 @@ func TestResolveRejects(t *testing.T) {
 		{"inclination 200", func(s *Scene) { s.Observer.InclinationDeg = 200 }, "inclination_deg"},
 		{"inclination -1", func(s *Scene) { s.Observer.InclinationDeg = -1 }, "inclination_deg"},
 		{"zero width", func(s *Scene) { s.Screen.Width = 0 }, "screen.width"},
-		{"absurd height", func(s *Scene) { s.Screen.Height = 1 << 20 }, "screen.width × screen.height"},
-		{"too much memory", func(s *Scene) { s.Screen.Width, s.Screen.Height, s.Disk.Orders = 16384, 16384, 16 }, "GiB"},
+		{"absurd height", func(s *Scene) { s.Screen.Height = 1 << 20 }, "screen.height = 1048576: must be between 1 and 16384"},
 		{"zero fov", func(s *Scene) { s.Screen.FieldOfView = 0 }, "field_of_view"},
 		{"fov finer than float", func(s *Scene) { s.Screen.FieldOfView, s.Screen.CenterAlpha = 1e-12, 5 }, "floating point"},
 		{"orders 0", func(s *Scene) { s.Disk.Orders = 0 }, "disk.orders"},
@@ -186,8 +185,9 @@ func TestReadmeSceneExample(t *testing.T) {
 }
 
 func TestAngularScale(t *testing.T) {
-	// One M at distance D subtends GM/(c² D) (physics notes §8), with the
-	// IAU 2015 nominal GM_sun = 1.3271244e20 m³ s⁻² and c = 299792458 m/s.
+	// One M at distance D subtends the angle GM/(c² D) (the length unit
+	// GM/c² seen from D), with the IAU 2015 nominal GM_sun =
+	// 1.3271244e20 m³ s⁻² (IAU 2015 Resolution B3) and c = 299792458 m/s.
 	s := Default()
 	m, d := 2.5e7, 3.2 // invented: 2.5e7 solar masses at 3.2 Mpc
 	s.Hole.MassSolar, s.Hole.DistanceMpc = &m, &d

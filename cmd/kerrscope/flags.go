@@ -6,18 +6,27 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"regexp"
 	"strconv"
 	"strings"
+	"unicode/utf8"
+
+	"kerrscope/scene"
 )
 
 var errHelp = errors.New("help shown")
 
+// invalidValue matches the flag package's message for a value its flag
+// refuses: the quoted value, the flag name, the reason.
+var invalidValue = regexp.MustCompile(`(?s)^invalid value (".*") for flag -([\w-]+): (.*)$`)
+
 // flags wraps a FlagSet so that every parse error is one line naming the
 // flag, and --help prints the flags to stdout.
 type flags struct {
-	fs  *flag.FlagSet
-	out io.Writer
-	set map[string]bool
+	fs     *flag.FlagSet
+	out    io.Writer
+	set    map[string]bool
+	failed error // the last scene flag value that could not be read
 }
 
 func newFlags(name string, stdout io.Writer) *flags {
@@ -32,11 +41,21 @@ func (f *flags) parse(args []string) error {
 		f.help()
 		return errHelp
 	}
+	if err != nil && f.failed != nil {
+		return usagef("%w", f.failed)
+	}
 	if err != nil {
 		msg := err.Error()
+		if m := invalidValue.FindStringSubmatch(msg); m != nil {
+			v, uerr := strconv.Unquote(m[1])
+			if uerr != nil {
+				v = m[1]
+			}
+			return usagef("--%s %s: %s", m[2], scene.Cut(v), cutLine(f.reason(m[2], m[3])))
+		}
 		// flag's messages say "-name"; we document "--name".
 		msg = strings.Replace(msg, " -", " --", 1)
-		return usagef("%s", msg)
+		return usagef("%s", cutLine(msg))
 	}
 	if f.fs.NArg() > 0 {
 		return usagef("unexpected argument %q", f.fs.Arg(0))
@@ -44,6 +63,38 @@ func (f *flags) parse(args []string) error {
 	f.set = map[string]bool{}
 	f.fs.Visit(func(fl *flag.Flag) { f.set[fl.Name] = true })
 	return nil
+}
+
+// cutLine shortens a message to at most 240 characters, ending in "…"
+// when cut, so that an echoed value cannot make an error line huge.
+func cutLine(s string) string {
+	const n = 240
+	if utf8.RuneCountInString(s) <= n {
+		return s
+	}
+	return string([]rune(s)[:n-1]) + "…"
+}
+
+// reason puts the flag package's reason for refusing a value of flag name
+// in words.
+func (f *flags) reason(name, why string) string {
+	if why != "parse error" && why != "value out of range" {
+		return why
+	}
+	fl := f.fs.Lookup(name)
+	if fl == nil {
+		return why
+	}
+	if _, err := strconv.Atoi(fl.DefValue); err == nil {
+		if why == "value out of range" {
+			return "whole number too large"
+		}
+		return "not a whole number"
+	}
+	if b, ok := fl.Value.(interface{ IsBoolFlag() bool }); ok && b.IsBoolFlag() {
+		return "must be true or false"
+	}
+	return why
 }
 
 // given reports whether the user set the flag.

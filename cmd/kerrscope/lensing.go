@@ -41,7 +41,7 @@ func runLensing(ctx context.Context, args []string, stdout, stderr io.Writer) er
 	}
 	o, err := raytrace.NewObserver(spin, inc)
 	if err != nil {
-		return usagef("%v", err)
+		return usagef("%w", err)
 	}
 	rep, err := survey.Lensing(ctx, o, angles, *orders)
 	if err != nil {

@@ -16,13 +16,16 @@ import (
 // version is the program version, recorded in every output file.
 const version = "0.1.0"
 
-// usageError is bad input from the user: printed on one line, exit status 2.
-type usageError struct{ msg string }
+// usageError is bad input from the user: printed on one line, exit status
+// 2. It wraps the error it was made from (format verb %w), so that callers
+// can still find a *scene.FieldError in it with errors.As.
+type usageError struct{ err error }
 
-func (e usageError) Error() string { return e.msg }
+func (e usageError) Error() string { return e.err.Error() }
+func (e usageError) Unwrap() error { return e.err }
 
 func usagef(format string, args ...any) error {
-	return usageError{fmt.Sprintf(format, args...)}
+	return usageError{fmt.Errorf(format, args...)}
 }
 
 type command struct {

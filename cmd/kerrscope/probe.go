@@ -41,11 +41,11 @@ func runProbe(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	s.Disk.Orders = min(*orders, scene.MaxOrders)
 	r, err := s.Resolve()
 	if err != nil {
-		return usagef("%v", err)
+		return usagef("%w", err)
 	}
 	m, err := pixels.NewModel(r)
 	if err != nil {
-		return usagef("%v", err)
+		return usagef("%w", err)
 	}
 	rep := survey.Probe(m.Obs, alpha, beta, *orders, m.RedshiftAt)
 	if *asJSON {

@@ -16,10 +16,12 @@ import (
 )
 
 // sceneFlag adapts a scene.Field to the flag package; values are applied
-// after the scene file is loaded.
+// after the scene file is loaded. A value that cannot be read is kept in
+// failed (the flag package keeps only its text) for flags.parse to report.
 type sceneFlag struct {
-	field scene.Field
-	vals  *[]pending
+	field  scene.Field
+	vals   *[]pending
+	failed *error
 }
 
 type pending struct {
@@ -33,6 +35,7 @@ func (s sceneFlag) Set(v string) error {
 	// Check the value now so the error names the flag.
 	probe := scene.Default()
 	if err := s.field.Set(&probe, v); err != nil {
+		*s.failed = fmt.Errorf("--%s: %w", s.field.Flag, err)
 		return err
 	}
 	*s.vals = append(*s.vals, pending{s.field, v})
@@ -58,7 +61,7 @@ fields:
 				continue fields
 			}
 		}
-		f.fs.Var(sceneFlag{fl, vals}, fl.Flag, fl.Usage+" ["+fl.Key+"]")
+		f.fs.Var(sceneFlag{fl, vals, &f.failed}, fl.Flag, fl.Usage+" ["+fl.Key+"]")
 	}
 	return path, quiet, vals
 }
@@ -70,18 +73,18 @@ func loadScene(path string, base scene.Scene, vals []pending) (scene.Scene, erro
 	if path != "" {
 		var err error
 		if s, err = scene.Load(path); err != nil {
-			return s, usagef("%v", err)
+			return s, usagef("--scene: %w", err)
 		}
 	}
 	for _, p := range vals {
 		if err := p.field.Set(&s, p.value); err != nil {
-			return s, usagef("--%s: %v", p.field.Flag, err)
+			return s, usagef("--%s: %w", p.field.Flag, err)
 		}
 	}
 	return s, nil
 }
 
-// buildScene is loadScene followed by validation.
+// buildScene is loadScene followed by validation and the memory check.
 func buildScene(path string, base scene.Scene, vals []pending) (scene.Resolved, error) {
 	s, err := loadScene(path, base, vals)
 	if err != nil {
@@ -89,9 +92,9 @@ func buildScene(path string, base scene.Scene, vals []pending) (scene.Resolved, 
 	}
 	r, err := s.Resolve()
 	if err != nil {
-		return r, usagef("%v", err)
+		return r, usagef("%w", err)
 	}
-	return r, nil
+	return r, checkMemory(r)
 }
 
 func progressWriter(quiet bool, stderr io.Writer) io.Writer {

@@ -76,9 +76,18 @@ func runSweep(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	var pe *sweep.PointError
 	switch {
 	case errors.As(err, &pe):
-		return usagef("--vary: %v", err)
+		return usagef("--vary: %w", err)
 	case err != nil:
-		return usagef("%v", err)
+		return usagef("%w", err)
+	}
+	biggest := plan.Points[0].Scene
+	for _, pt := range plan.Points {
+		if scene.MemoryEstimate(pt.Scene) > scene.MemoryEstimate(biggest) {
+			biggest = pt.Scene
+		}
+	}
+	if err := checkMemory(biggest); err != nil {
+		return err
 	}
 	if sh == (sweep.Shard{}) {
 		sh = sweep.Shard{K: 1, N: 1}

@@ -74,8 +74,12 @@ func (s Scales) GPosition(g float64) float64 {
 }
 
 // niceRatios returns tick values of g between GMin and GMax, at least
-// 0.07 apart on the colour bar, always including g = 1.
+// 0.07 apart on the colour bar, always including g = 1; none unless
+// 0 < GMin < 1 < GMax, both finite. It tries a fixed list of candidates.
 func niceRatios(sc Scales) []float64 {
+	if !(sc.GMin > 0 && sc.GMin < 1 && sc.GMax > 1 && !math.IsInf(sc.GMax, 0)) {
+		return nil
+	}
 	cands := []float64{1, 0.5, 2, 0.2, 5, 0.1, 10, 0.05, 0.02, 0.01, 0.005, 0.3, 3, 0.7, 1.5, 0.4, 0.6, 0.8, 1.2, 1.1, 1.3, 4, 0.9, 1.4, 1.05, 0.95}
 	var out []float64
 	for _, g := range cands {
@@ -95,24 +99,51 @@ func niceRatios(sc Scales) []float64 {
 	return out
 }
 
-// decadeTicks returns the powers of ten within [lo, hi].
+// maxTickDecades bounds the decades a colour-bar tick loop visits: every
+// positive finite float64 lies within 10^-324 … 10^309.
+const maxTickDecades = 640
+
+// decadeRange returns the decades of lo and hi, ok only for
+// 0 < lo ≤ hi < ∞.
+func decadeRange(lo, hi float64) (dlo, dhi float64, ok bool) {
+	if !(lo > 0 && hi >= lo) || math.IsInf(hi, 0) {
+		return 0, 0, false
+	}
+	return math.Log10(lo), math.Log10(hi), true
+}
+
+// decadeTicks returns the powers of ten within [lo, hi]; none unless
+// 0 < lo ≤ hi < ∞.
 func decadeTicks(lo, hi float64) []float64 {
+	llo, lhi, ok := decadeRange(lo, hi)
+	if !ok {
+		return nil
+	}
 	var out []float64
-	for d := math.Ceil(math.Log10(lo)); d <= math.Floor(math.Log10(hi)); d++ {
+	d := math.Ceil(llo)
+	for i := 0; i < maxTickDecades && d <= math.Floor(lhi); i++ {
 		out = append(out, math.Pow(10, d))
+		d++
 	}
 	return out
 }
 
-// logTicks returns 1-2-5 values within [lo, hi].
+// logTicks returns lo, the 1-2-5 values within [lo, hi] and hi; none
+// unless 0 < lo ≤ hi < ∞.
 func logTicks(lo, hi float64) []float64 {
+	llo, lhi, ok := decadeRange(lo, hi)
+	if !ok {
+		return nil
+	}
 	var out []float64
-	for d := math.Floor(math.Log10(lo)); d <= math.Ceil(math.Log10(hi)); d++ {
+	d := math.Floor(llo)
+	for i := 0; i < maxTickDecades && d <= math.Ceil(lhi); i++ {
 		for _, m := range []float64{1, 2, 5} {
 			if v := m * math.Pow(10, d); v >= lo && v <= hi {
 				out = append(out, v)
 			}
 		}
+		d++
 	}
 	return append([]float64{lo}, append(out, hi)...)
 }

@@ -50,6 +50,9 @@ func Run(ctx context.Context, r scene.Resolved, opt Options) (Summary, error) {
 	}
 	defer lk.Unlock()
 	f, err := pixels.RenderScene(ctx, r, opt.Progress)
+	if err == nil {
+		err = pixels.CheckFinite(f)
+	}
 	if err != nil {
 		return Summary{}, err
 	}

@@ -22,6 +22,9 @@ var hookStaged func(index int, name string)
 // their records, sorted by name.
 func (p *Plan) writeFrame(ctx context.Context, lk *outputs.DirLock, pt Point, sc maps.Scales, version string) ([]fileRecord, error) {
 	f, err := pixels.RenderScene(ctx, pt.Scene, nil)
+	if err == nil {
+		err = pixels.CheckFinite(f)
+	}
 	if err != nil {
 		return nil, err
 	}

@@ -15,13 +15,20 @@ type tickSet struct {
 	values    []float64
 }
 
-// decade returns the integer n with 10ⁿ ≤ x < 10ⁿ⁺¹ for finite x > 0.
+// decade returns the integer n with 10ⁿ ≤ x < 10ⁿ⁺¹ for finite x > 0
+// (−324 to 308). For other x it returns 0. The logarithm is taken of the
+// binary mantissa and exponent (math.Log10 of a subnormal number can be
+// decades off), so the rounding corrections need at most two steps.
 func decade(x float64) int {
-	n := int(math.Floor(math.Log10(x)))
-	for math.Pow10(n+1) <= x {
+	if !(x > 0) || math.IsInf(x, 0) {
+		return 0
+	}
+	frac, exp := math.Frexp(x)
+	n := int(math.Floor(math.Log10(frac) + float64(exp)*math.Log10(2)))
+	for i := 0; i < 2 && math.Pow10(n+1) <= x; i++ {
 		n++
 	}
-	for math.Pow10(n) > x {
+	for i := 0; i < 2 && math.Pow10(n) > x; i++ {
 		n--
 	}
 	return n
@@ -235,7 +242,13 @@ func linearScale(lo, hi float64, maxTicks int, label string, reversed bool) scal
 // axis: powers of ten when the range spans two or more of them (every
 // second, fifth, ... when there are many), otherwise 1-2-5 values, and
 // linear ticks for very narrow ranges.
+//
+// It gives no ticks unless 0 < lo < hi < ∞; its loops then visit at most
+// the 634 decades of float64.
 func logScale(lo, hi float64, maxTicks int, label string) scale {
+	if !(lo > 0 && hi > lo) || math.IsInf(hi, 0) {
+		return scale{label: label}
+	}
 	llo, lhi := math.Log10(lo), math.Log10(hi)
 	frac := func(v float64) float64 { return (math.Log10(v) - llo) / (lhi - llo) }
 	inside := func(v float64) bool { return v >= lo*(1-1e-9) && v <= hi*(1+1e-9) }

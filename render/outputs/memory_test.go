@@ -1,0 +1,43 @@
+package outputs
+
+import (
+	"context"
+	"testing"
+
+	"kerrscope/render/pixels"
+
+	"kerrscope/scene"
+)
+
+// TestMemoryEstimateCoversLiveData checks scene.MemoryEstimate against the
+// renderer's own allocations: from a one-pixel image to a larger one, the
+// estimate must grow by at least the bytes held at once while the FITS
+// file is encoded, the frame's records plus every image fitsImages
+// builds, counted from the slices themselves.
+func TestMemoryEstimateCoversLiveData(t *testing.T) {
+	live := func(w, h, n int) (int64, int64) {
+		r := resolve(t, func(s *scene.Scene) {
+			s.Screen.Width, s.Screen.Height, s.Disk.Orders = w, h, n
+			s.Output.Formats = []string{"fits"}
+		})
+		f, err := pixels.Render(context.Background(), r, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		b := int64(len(f.Fate) + len(f.First))
+		for o := 0; o < f.Orders; o++ {
+			b += 4 * int64(len(f.R[o])+len(f.G[o])+len(f.Line[o])+len(f.Bol[o]))
+		}
+		for _, im := range fitsImages(f) {
+			b += 4 * int64(len(im.Data))
+		}
+		return b, scene.MemoryEstimate(r)
+	}
+	for _, c := range [][3]int{{40, 30, 1}, {64, 64, 3}, {33, 17, 8}, {16, 16, scene.MaxOrders}} {
+		l0, e0 := live(1, 1, c[2])
+		l1, e1 := live(c[0], c[1], c[2])
+		if e1-e0 < l1-l0 {
+			t.Errorf("%v: estimate grows by %d bytes, the live data by %d", c, e1-e0, l1-l0)
+		}
+	}
+}
