@@ -265,16 +265,23 @@ func (s fileSum) matches(path string) bool {
 	if err != nil || !st.Mode().IsRegular() || st.Size() != s.Bytes {
 		return false
 	}
+	_, sum, err := HashFile(path)
+	return err == nil && sum == s.SHA256
+}
+
+// HashFile returns the size of the file at path and its SHA-256 (hex).
+func HashFile(path string) (int64, string, error) {
 	f, err := os.Open(path)
 	if err != nil {
-		return false
+		return 0, "", err
 	}
 	defer f.Close()
 	h := sha256.New()
-	if _, err := io.Copy(h, f); err != nil {
-		return false
+	n, err := io.Copy(h, f)
+	if err != nil {
+		return 0, "", err
 	}
-	return hex.EncodeToString(h.Sum(nil)) == s.SHA256
+	return n, hex.EncodeToString(h.Sum(nil)), nil
 }
 
 // move is one staged file of a commit.
@@ -414,13 +421,13 @@ func (l *DirLock) replay(name string) error {
 
 // finish removes a carried-out journal and its staging folder.
 func (l *DirLock) finish(journalName, stage string) error {
-	if err := syncDir(l.dir); err != nil {
+	if err := SyncDir(l.dir); err != nil {
 		return err
 	}
 	if err := os.Remove(filepath.Join(l.dir, journalName)); err != nil {
 		return err
 	}
-	if err := syncDir(l.dir); err != nil {
+	if err := SyncDir(l.dir); err != nil {
 		return err
 	}
 	return os.RemoveAll(stage)
@@ -513,8 +520,8 @@ func (l *DirLock) back(j *journal) error {
 	return errors.Join(errs...)
 }
 
-// syncDir flushes a directory's entries to disk.
-func syncDir(dir string) error {
+// SyncDir flushes a directory's entries to disk.
+func SyncDir(dir string) error {
 	f, err := os.Open(dir)
 	if err != nil {
 		return err
@@ -583,5 +590,5 @@ func RemoveSet(l *DirLock, set string) ([]string, error) {
 	if err := os.Remove(filepath.Join(l.dir, recordPrefix+set+".json")); err != nil && !errors.Is(err, os.ErrNotExist) {
 		return removed, err
 	}
-	return removed, syncDir(l.dir)
+	return removed, SyncDir(l.dir)
 }

@@ -175,7 +175,7 @@ func (o *Outputs) commit() ([]string, error) {
 	}
 	name := strings.Replace(filepath.Base(o.stage), stagePrefix, journalPrefix, 1) + ".json"
 	tmp := filepath.Join(o.stage, "journal.tmp")
-	if err := syncDir(filepath.Join(o.stage, "new")); err != nil {
+	if err := SyncDir(filepath.Join(o.stage, "new")); err != nil {
 		o.Abort()
 		return nil, err
 	}
@@ -187,7 +187,7 @@ func (o *Outputs) commit() ([]string, error) {
 		o.Abort()
 		return nil, err
 	}
-	if err := syncDir(dir); err != nil {
+	if err := SyncDir(dir); err != nil {
 		// Without a journal known to be on disk, no file may move.
 		os.Remove(filepath.Join(dir, name))
 		o.Abort()

@@ -16,6 +16,7 @@ import (
 	"strings"
 
 	"kerrscope/render/maps"
+	"kerrscope/render/outputs"
 )
 
 // Shard is process K of N (1 ≤ K ≤ N): it renders the frames whose index
@@ -262,28 +263,13 @@ func (m *manifest) write(dir string) error {
 		err = os.Rename(tmp.Name(), filepath.Join(dir, m.Shard.ManifestName()))
 	}
 	if err == nil {
-		err = syncDir(dir)
+		err = outputs.SyncDir(dir)
 	}
 	if err != nil {
 		os.Remove(tmp.Name())
 		return fmt.Errorf("manifest: %w", err)
 	}
 	return nil
-}
-
-// hashFile returns the size and SHA-256 (hex) of a file.
-func hashFile(path string) (int64, string, error) {
-	f, err := os.Open(path)
-	if err != nil {
-		return 0, "", err
-	}
-	defer f.Close()
-	h := sha256.New()
-	n, err := io.Copy(h, f)
-	if err != nil {
-		return 0, "", err
-	}
-	return n, hex.EncodeToString(h.Sum(nil)), nil
 }
 
 // verify reports whether rec describes frame pt of the plan and all its
@@ -305,7 +291,7 @@ func (p *Plan) verify(rec frameRecord, pt Point) bool {
 		if f.Name != want[i] {
 			return false
 		}
-		n, sum, err := hashFile(filepath.Join(p.Dir(), f.Name))
+		n, sum, err := outputs.HashFile(filepath.Join(p.Dir(), f.Name))
 		if err != nil || n != f.Bytes || sum != f.SHA256 {
 			return false
 		}
@@ -343,17 +329,4 @@ func (hw *hashingWriter) Write(b []byte) (int, error) {
 
 func (hw *hashingWriter) record(name string) fileRecord {
 	return fileRecord{Name: name, Bytes: hw.n, SHA256: hex.EncodeToString(hw.s.Sum(nil))}
-}
-
-// syncDir flushes a directory's entries to disk.
-func syncDir(dir string) error {
-	f, err := os.Open(dir)
-	if err != nil {
-		return err
-	}
-	err = f.Sync()
-	if cerr := f.Close(); err == nil {
-		err = cerr
-	}
-	return err
 }

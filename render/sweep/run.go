@@ -220,7 +220,7 @@ func clean(lk *outputs.DirLock, ms []*manifest, bad []*badManifest) (int, error)
 			continue
 		}
 		path := filepath.Join(dir, f.Name)
-		if size, sum, err := hashFile(path); err != nil || size != f.Bytes || sum != f.SHA256 {
+		if size, sum, err := outputs.HashFile(path); err != nil || size != f.Bytes || sum != f.SHA256 {
 			continue
 		}
 		if err := os.Remove(path); err != nil {
@@ -239,7 +239,7 @@ func clean(lk *outputs.DirLock, ms []*manifest, bad []*badManifest) (int, error)
 		}
 		n++
 	}
-	return n, syncDir(dir)
+	return n, outputs.SyncDir(dir)
 }
 
 // plainName reports whether a recorded file name names a visible file of
