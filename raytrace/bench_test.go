@@ -44,3 +44,17 @@ func BenchmarkIntegrate(b *testing.B) {
 		i++
 	}
 }
+
+// BenchmarkTraceTimed: as BenchmarkTrace, with the time delay and azimuth
+// of every crossing (TraceTimed).
+func BenchmarkTraceTimed(b *testing.B) {
+	rays := benchRays(4096)
+	p := TimedPath{Path: Path{Crossings: make([]Crossing, 0, 3)}, Times: make([]Timing, 0, 3)}
+	b.ReportAllocs()
+	i := 0
+	for b.Loop() {
+		r := &rays[i&4095]
+		r.o.TraceTimed(r.alpha, r.beta, 3, &p)
+		i++
+	}
+}

@@ -25,6 +25,9 @@
 //	}
 //	fmt.Println(p.Fate) // where the photon came from: horizon or infinity
 //
+// TraceTimed also gives each crossing's Boyer–Lindquist time delay and
+// azimuth (Timing), in closed form; IntegrateTimed checks them.
+//
 // The crossing radii, with CircularOrbit, give the redshift of orbiting gas;
 // CriticalCurve gives the edge of the black hole's shadow. The runnable
 // examples in example_test.go show each in a few lines; they run with

@@ -53,6 +53,14 @@ const (
 	// the bracket stops shrinking or f vanishes).
 	locateMaxIter = 100
 	locateRelTol  = 1e-16
+	// timedHorizonMargin: IntegrateTimed leaves t and φ out of the error
+	// control where Δ/r² falls below it. Both diverge logarithmically at
+	// the horizon, and controlling them there would shrink the steps
+	// forever (the photon reaches r₊ in finite Mino time); crossings that
+	// close to the horizon (r − r₊ ≲ 1e-9 r²/(r₊ − r₋)) get t and φ
+	// from steps sized for the orbit alone.
+	timedHorizonMargin = 1e-9
+
 	// locateZero is the |f| below which locate takes the point as the root:
 	// the event functions (u, u - 1/r₊, x, du/dτ) are of order 1, so this
 	// only catches exact or underflowing zeros.
@@ -84,8 +92,10 @@ func (e event) String() string {
 	return "unknown"
 }
 
-// odeState is (u, du/dτ, x, dx/dτ) with u = 1/r and x = cos θ.
-type odeState [4]float64
+// odeState is (u, du/dτ, x, dx/dτ, S, Φ) with u = 1/r and x = cos θ; S
+// and Φ carry the time and azimuth of IntegrateTimed (see timedRates) and
+// stay 0 otherwise.
+type odeState [6]float64
 
 // geodesicODE holds the coefficients of the second-order Mino-time
 // equations in u = 1/r and x = cos θ, both polynomial, so the integration
@@ -97,26 +107,73 @@ type odeState [4]float64
 //
 // with A = a² - η - λ², B = 2[η + (λ - a)²], C = -a²η (Carter 1968; the
 // u form follows from R(r) of Bardeen 1973 with r = 1/u).
-type geodesicODE struct{ A, B, C, a2 float64 }
+type geodesicODE struct {
+	A, B, C, a2 float64
+	// timed: also integrate S and Φ (components 4 and 5); a and λ are
+	// needed for their rates.
+	timed     bool
+	a, lambda float64
+}
+
+// delta returns Δ/r² = 1 − 2u + a²u², which vanishes at the horizons.
+func (g geodesicODE) delta(u float64) float64 { return 1 - 2*u + g.a2*u*u }
+
+// dim is the number of integrated components.
+func (g geodesicODE) dim() int {
+	if g.timed {
+		return 6
+	}
+	return 4
+}
 
 func (g geodesicODE) deriv(y odeState) odeState {
 	u, x := y[0], y[2]
-	return odeState{
+	d := odeState{
 		y[1],
 		u * (g.A + u*(1.5*g.B+2*g.C*u)),
 		y[3],
 		x * (g.A - 2*g.a2*x*x),
 	}
+	if g.timed {
+		d[4], d[5] = g.timedRates(y)
+	}
+	return d
+}
+
+// timedRates returns dS/dτ and dΦ/dτ. Φ is the azimuth integral of the
+// forward-time rate dφ/dτ = a(2r − aλ)/Δ + λ/sin²θ (Carter 1968; Bardeen
+// 1973), so the crossing's φ − φ_o is −Φ. The time rate
+// dt/dτ = T = r² + 2r + 4 + [(8 − 2aλ)r − 4a²]/Δ + a² x² (the same
+// rate, polynomial division by Δ) diverges at u = 0; S integrates
+// T − (1 + 2/r)|dr/dτ| = T − (r² + 2r)|du/dτ| instead, which is finite at
+// both ends of an escaping path: with the first integral
+// (du/dτ)² = 1 + A u² + B u³ + C u⁴ the term (r² + 2r)(1 − |du/dτ|) is
+// −(1 + 2u)(A + B u + C u²)/(1 + |du/dτ|). What was subtracted is an
+// exact differential, so t_o − t − (r_o + 2 ln r_o) = S − (r + 2 ln r)
+// before the radial turning point r_t and S + (r + 2 ln r) − 2(r_t + 2 ln r_t)
+// after it.
+func (g geodesicODE) timedRates(y odeState) (ds, dphi float64) {
+	u, du, x := y[0], y[1], y[2]
+	a, l := g.a, g.lambda
+	delta := 1 - 2*u + g.a2*u*u // Δ/r²
+	head := -(1 + 2*u) * (g.A + u*(g.B+g.C*u)) / (1 + math.Abs(du))
+	ds = head + 4 + u*((8-2*a*l)-4*g.a2*u)/delta + g.a2*x*x
+	dphi = a * u * (2 - a*l*u) / delta
+	if l != 0 {
+		dphi += l / ((1 - x) * (1 + x))
+	}
+	return ds, dphi
 }
 
 // step takes one Dormand–Prince step of size h and returns the fifth-order
 // solution and the error estimate (fifth minus fourth order).
 func (g geodesicODE) step(y odeState, h float64) (y5, errv odeState) {
 	var k [7]odeState
+	nd := g.dim()
 	k[0] = g.deriv(y)
 	for s := 1; s < 7; s++ {
 		var ys odeState
-		for i := range ys {
+		for i := 0; i < nd; i++ {
 			acc := 0.0
 			for j := 0; j < s; j++ {
 				acc += dpA[s][j] * k[j][i]
@@ -125,7 +182,7 @@ func (g geodesicODE) step(y odeState, h float64) (y5, errv odeState) {
 		}
 		k[s] = g.deriv(ys)
 	}
-	for i := range y5 {
+	for i := 0; i < nd; i++ {
 		s5, s4 := 0.0, 0.0
 		for s := 0; s < 7; s++ {
 			s5 += dpB5[s] * k[s][i]
@@ -151,7 +208,22 @@ var ErrNoConvergence = errors.New("raytrace: integrator exceeded its step limit"
 // turning point is passed). It is far slower than Trace.
 // Domain: any finite α, β; 1e-14 ≤ tol ≤ 1e-3.
 func (o Observer) Integrate(alpha, beta float64, orders int, tol float64, p *Path) error {
-	o = o.resolved()
+	return o.resolved().integrate(alpha, beta, orders, tol, p, nil)
+}
+
+// IntegrateTimed is Integrate plus the Timing of each crossing, from
+// Dormand–Prince integration of the rates of t and φ (see timedRates)
+// alongside the orbit: an independent check of TraceTimed. The error
+// control covers t and φ until the last requested crossing, after which
+// they are no longer integrated. For λ = 0 photons (α = 0, or an observer
+// on the axis) that pass exactly over a pole, where φ jumps, DeltaPhi
+// lacks the jumps of ±π. Domain as for Integrate.
+func (o Observer) IntegrateTimed(alpha, beta float64, orders int, tol float64, tp *TimedPath) error {
+	tp.Times = tp.Times[:0]
+	return o.resolved().integrate(alpha, beta, orders, tol, &tp.Path, &tp.Times)
+}
+
+func (o Observer) integrate(alpha, beta float64, orders int, tol float64, p *Path, times *[]Timing) error {
 	a := o.spin
 	lambda, eta := o.constants(alpha, beta)
 	p.Lambda, p.Eta = lambda, eta
@@ -159,21 +231,29 @@ func (o Observer) Integrate(alpha, beta float64, orders int, tol float64, p *Pat
 	p.Turn = math.Inf(1)
 	p.Roots = 0
 	p.Fate = 0
-	g := geodesicODE{A: a*a - eta - lambda*lambda, B: 2 * (eta + (lambda-a)*(lambda-a)), C: -a * a * eta, a2: a * a}
+	g := geodesicODE{A: a*a - eta - lambda*lambda, B: 2 * (eta + (lambda-a)*(lambda-a)), C: -a * a * eta, a2: a * a,
+		timed: times != nil && orders > 0, a: a, lambda: lambda}
 	// Backward, β > 0 moves toward smaller θ (larger x), and
 	// (dx/dτ)² = sin²θo Θ(θo) = sin²θo β² at the observer (Bardeen 1973):
 	// this form avoids the cancellation in η + A x² - a² x⁴ near the poles.
 	x0 := o.cos
 	dx0 := o.sin * beta
-	y := odeState{0, 1, x0, dx0}
+	y := odeState{0, 1, x0, dx0, 0, 0}
 	uh := 1 / o.horizon
 	tau := 0.0
 	h := initialStep
 	prevDu := 1.0
+	// rt is r_t + 2 ln r_t at the radial turning point, once passed
+	// (timed integration only; see timedRates).
+	turnTerm := math.NaN()
 	for n := 0; n < maxSteps; n++ {
 		y5, ev := g.step(y, h)
 		errn := 0.0
-		for i := range y5 {
+		nd := g.dim()
+		if g.timed && math.Min(g.delta(y[0]), g.delta(y5[0])) < timedHorizonMargin {
+			nd = 4 // t and φ diverge at the horizon: control the orbit only
+		}
+		for i := 0; i < nd; i++ {
 			sc := tol * (1 + math.Max(math.Abs(y[i]), math.Abs(y5[i])))
 			errn = math.Max(errn, math.Abs(ev[i])/sc)
 		}
@@ -183,6 +263,12 @@ func (o Observer) Integrate(alpha, beta float64, orders int, tol float64, p *Pat
 				h = h / 10
 			}
 			continue
+		}
+		if g.timed && y[1] > 0 && y5[1] <= 0 && math.IsNaN(turnTerm) {
+			// u at the turning point is flat in τ, so the located point
+			// gives it to rounding.
+			yt, _ := g.step(y, g.locate(y, h, func(s odeState) float64 { return s[1] }))
+			turnTerm = 1/yt[0] - 2*math.Log(yt[0])
 		}
 		// Events inside [tau, tau+h]: earliest of plane, horizon, infinity.
 		best, kind := h, noEvent
@@ -207,6 +293,18 @@ func (o Observer) Integrate(alpha, beta float64, orders int, tol float64, p *Pat
 			case planeCrossing:
 				if len(p.Crossings) < orders {
 					p.Crossings = append(p.Crossings, Crossing{R: 1 / ys[0], Mino: tau + best, Outbound: ys[1] > 0})
+					if g.timed {
+						u := ys[0]
+						rr := 1/u - 2*math.Log(u) // r + 2 ln r
+						d := ys[4] - rr
+						if ys[1] < 0 {
+							d = ys[4] + rr - 2*turnTerm
+						}
+						*times = append(*times, Timing{Delay: d, DeltaPhi: -ys[5]})
+						if len(p.Crossings) == orders {
+							g.timed = false // t and φ no longer needed
+						}
+					}
 				}
 				ys[2] = 0 // on the plane: the next step must not find it again
 			case horizonReached:

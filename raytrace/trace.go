@@ -194,10 +194,12 @@ func (o Observer) constants(alpha, beta float64) (lambda, eta float64) {
 func (o Observer) Trace(alpha, beta float64, orders int, p *Path) {
 	o = o.resolved()
 	lambda, eta := o.constants(alpha, beta)
-	o.trace(lambda, eta, beta, orders, p)
+	o.trace(lambda, eta, beta, orders, p, nil)
 }
 
-func (o Observer) trace(lambda, eta, beta float64, orders int, p *Path) {
+// trace is Trace for the resolved observer. If tm is not nil and the photon
+// crosses the plane, it also receives what TraceTimed needs (timing.go).
+func (o Observer) trace(lambda, eta, beta float64, orders int, p *Path, tm *timingInput) {
 	a := o.spin
 	p.Lambda, p.Eta = lambda, eta
 	p.Crossings = p.Crossings[:0]
@@ -286,6 +288,12 @@ func (o Observer) trace(lambda, eta, beta float64, orders int, p *Path) {
 			sgn = -1
 		}
 		tau0 = gq + sgn*(gq-gobs)
+		if tm != nil {
+			tm.sgn, tm.gobs, tm.s2, tm.c2 = sgn, gobs, s2, c2
+		}
+	}
+	if tm != nil {
+		tm.set(q, rad, w, up, mcTheta, sw, gq, beta == 0)
 	}
 	for n := 0; n < orders; n++ {
 		tau := tau0 + 2*float64(n)*gq

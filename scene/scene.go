@@ -119,9 +119,27 @@ type Output struct {
 
 // Map names and format names accepted in Output.
 var (
-	MapNames    = []string{"redshift", "intensity", "radius", "order", "shadow"}
+	MapNames    = []string{"redshift", "intensity", "radius", "order", "shadow", "delay"}
 	FormatNames = []string{"png", "bare", "fits", "csv"}
+	// defaultMaps are the maps rendered when the scene names none: all
+	// but delay, which doubles the cost of every photon (time delays).
+	defaultMaps = []string{"redshift", "intensity", "radius", "order", "shadow"}
+	// TimingMaps are the maps that need each crossing's time delay.
+	TimingMaps = []string{"delay"}
 )
+
+// NeedsTiming reports whether the scene asks for a map that needs the time
+// delays of the crossings (TimingMaps).
+func (s Scene) NeedsTiming() bool {
+	for _, m := range s.Output.Maps {
+		for _, t := range TimingMaps {
+			if m == t {
+				return true
+			}
+		}
+	}
+	return false
+}
 
 // Default returns the built-in default scene.
 func Default() Scene {
@@ -135,7 +153,7 @@ func Default() Scene {
 		Spectrum: Spectrum{Bins: 240},
 		Refine:   Refine{Depth: 0, TolR: 0.05, TolG: 0.01},
 		Band:     Band{RMin: "isco", RMax: "isco*1.1"},
-		Output: Output{Directory: "kerrscope-out", Maps: append([]string(nil), MapNames...),
+		Output: Output{Directory: "kerrscope-out", Maps: append([]string(nil), defaultMaps...),
 			Formats: append([]string(nil), FormatNames...), IntensityScale: "log"},
 	}
 }
@@ -615,6 +633,9 @@ func (s Scene) Resolve() (Resolved, error) {
 	}
 	if err := checkNames("output.maps", o.Maps, MapNames); err != nil {
 		return r, err
+	}
+	if s.NeedsTiming() && s.Refine.Depth > 0 {
+		return r, fmt.Errorf("output.maps includes delay with refine.depth = %d: the adaptive sampler does not record time delays; use refine.depth = 0", s.Refine.Depth)
 	}
 	if err := checkNames("output.formats", o.Formats, FormatNames); err != nil {
 		return r, err

@@ -206,3 +206,22 @@ func TestAngularScale(t *testing.T) {
 		t.Errorf("kpc and Mpc disagree: %v vs %v", r2.MicroArcsecPerM, r.MicroArcsecPerM)
 	}
 }
+
+func TestDelayMapNeedsPixelCentres(t *testing.T) {
+	s := Default()
+	if s.NeedsTiming() {
+		t.Error("the default maps ask for time delays")
+	}
+	s.Output.Maps = []string{"redshift", "delay"}
+	if !s.NeedsTiming() {
+		t.Error("the delay map does not ask for time delays")
+	}
+	if _, err := s.Resolve(); err != nil {
+		t.Fatal(err)
+	}
+	s.Refine.Depth = 2
+	_, err := s.Resolve()
+	if err == nil || !strings.Contains(err.Error(), "output.maps") || !strings.Contains(err.Error(), "refine.depth = 2") {
+		t.Errorf("delay map with refinement: error %v", err)
+	}
+}

@@ -41,7 +41,7 @@ func TestProbeJSONKeys(t *testing.T) {
 	if len(cs) == 0 {
 		t.Fatal("no crossings")
 	}
-	for _, k := range []string{"order", "r", "mino_time", "outbound"} {
+	for _, k := range []string{"order", "r", "mino_time", "outbound", "time_delay", "delta_phi"} {
 		if _, ok := cs[0].(map[string]any)[k]; !ok {
 			t.Errorf("crossing lacks %q", k)
 		}

@@ -16,6 +16,13 @@ type ProbeCrossing struct {
 	MinoTime float64  `json:"mino_time"`
 	Outbound bool     `json:"outbound"`
 	G        *float64 `json:"g"` // redshift factor of the disk gas there; nil off the disk
+	// TimeDelay is t_o − t from the crossing to the observer, in M,
+	// regularised for an observer at infinity (raytrace.Timing): only
+	// differences between crossings and between photons are physical.
+	TimeDelay float64 `json:"time_delay"`
+	// DeltaPhi is the crossing's azimuth minus the observer's, in
+	// radians, not reduced modulo 2π.
+	DeltaPhi float64 `json:"delta_phi"`
 }
 
 // ProbeReport is what happens to the photon of one screen point. Its JSON
@@ -37,15 +44,16 @@ type ProbeReport struct {
 // crossings. redshift, if not nil, gives g of the disk gas at a crossing
 // (ok = false where the crossing misses the disk).
 func Probe(o raytrace.Observer, alpha, beta float64, orders int, redshift func(c raytrace.Crossing, lambda, eta float64) (float64, bool)) ProbeReport {
-	var p raytrace.Path
-	o.Trace(alpha, beta, orders, &p)
+	var p raytrace.TimedPath
+	o.TraceTimed(alpha, beta, orders, &p)
 	rep := ProbeReport{
 		Spin: o.Spin(), InclinationDeg: o.InclinationDeg(), Alpha: alpha, Beta: beta,
 		Lambda: p.Lambda, Eta: p.Eta, Fate: p.Fate.String(), RootCase: p.Roots.String(),
 		TotalMino: p.Mino, Crossings: []ProbeCrossing{},
 	}
 	for i, c := range p.Crossings {
-		pc := ProbeCrossing{Order: i, R: c.R, MinoTime: c.Mino, Outbound: c.Outbound}
+		pc := ProbeCrossing{Order: i, R: c.R, MinoTime: c.Mino, Outbound: c.Outbound,
+			TimeDelay: p.Times[i].Delay, DeltaPhi: p.Times[i].DeltaPhi}
 		if redshift != nil {
 			if g, ok := redshift(c, p.Lambda, p.Eta); ok {
 				pc.G = &g
@@ -77,13 +85,15 @@ func (r ProbeReport) WriteText(w io.Writer) error {
 		p.println("  it never crosses the equatorial plane")
 		return p.err
 	}
+	p.println("  delay: t at the observer minus t at the crossing, less r_o + 2 ln r_o (observer at r_o → ∞);")
+	p.println("  Δφ: azimuth of the crossing minus the observer's")
 	p.println()
 	if p.err != nil {
 		return p.err
 	}
 	tw := tabwriter.NewWriter(w, 0, 0, 3, ' ', 0)
 	t := &printer{w: tw}
-	t.println("  order\tr [M]\tMino time [1/M]\tleft the plane\tg (disk)")
+	t.println("  order\tr [M]\tMino time [1/M]\tleft the plane\tg (disk)\tdelay [M]\tΔφ [rad]")
 	for _, c := range r.Crossings {
 		dir := "inward"
 		if c.Outbound {
@@ -93,7 +103,7 @@ func (r ProbeReport) WriteText(w io.Writer) error {
 		if c.G != nil {
 			g = fmt.Sprintf("%.8f", *c.G)
 		}
-		t.printf("  %d\t%.10g\t%.10g\t%s\t%s\n", c.Order, c.R, c.MinoTime, dir, g)
+		t.printf("  %d\t%.10g\t%.10g\t%s\t%s\t%.10g\t%.10g\n", c.Order, c.R, c.MinoTime, dir, g, c.TimeDelay, c.DeltaPhi)
 	}
 	if t.err != nil {
 		return t.err

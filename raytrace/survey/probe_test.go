@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"errors"
 	"io"
+	"math"
 	"strings"
 	"testing"
 
@@ -83,5 +84,32 @@ func TestProbeWriteErrors(t *testing.T) {
 	var text strings.Builder
 	if err := crossing.WriteText(&text); err != nil || !strings.Contains(text.String(), "off disk") || !strings.Contains(text.String(), "0.50000000") {
 		t.Errorf("text report lacks the g column: %v\n%s", err, text.String())
+	}
+}
+
+func TestProbeTimingSchwarzschild(t *testing.T) {
+	// At a = 0 a photon moves in a plane through the centre, so its
+	// successive equatorial crossings lie on one line through the hole:
+	// their azimuths differ by π (Chandrasekhar 1983, The Mathematical
+	// Theory of Black Holes, §20), and the earlier crossing is the later
+	// in the report, so its delay is larger.
+	o, err := raytrace.NewObserver(0, 75)
+	if err != nil {
+		t.Fatal(err)
+	}
+	rep := Probe(o, 5.25, 0.5, 3, nil)
+	if len(rep.Crossings) < 2 {
+		t.Fatalf("%d crossings, want at least 2", len(rep.Crossings))
+	}
+	c0, c1 := rep.Crossings[0], rep.Crossings[1]
+	if d := math.Abs(c1.DeltaPhi - c0.DeltaPhi); math.Abs(d-math.Pi) > 1e-12 {
+		t.Errorf("crossings differ by %.15g rad in azimuth, want π", d)
+	}
+	if !(c1.TimeDelay > c0.TimeDelay) {
+		t.Errorf("delays %v, %v: the earlier crossing must have the larger delay", c0.TimeDelay, c1.TimeDelay)
+	}
+	var text strings.Builder
+	if err := rep.WriteText(&text); err != nil || !strings.Contains(text.String(), "delay [M]") {
+		t.Errorf("text report lacks the delay column: %v\n%s", err, text.String())
 	}
 }

@@ -1,5 +1,5 @@
 // Package maps is the table of the renderer's maps: for each map (redshift,
-// intensity, radius, order, shadow) the quantity it shows, how a pixel is
+// intensity, radius, order, shadow, delay) the quantity it shows, how a pixel is
 // placed on its colour scale, its colours, its 8-bit palette, and its
 // decorated figure (title, colour bar, contours, overlays). Adding a map is
 // adding one entry to the table in this file (and its name to
@@ -88,6 +88,12 @@ var table = []Map{
 		classify: classifyShadow,
 		palette:  func() color.Palette { return color.Palette{colormap.NoHit, colormap.Shadow, EscapedColor, EdgeColor} },
 		decorate: shadowDecoration,
+	},
+	{
+		Name: "delay", Title: "arrival-time delay of the first image seen", Scale: colormap.Sequential,
+		classify: onScale(delayValues, delayPosition),
+		palette:  scalePalette(colormap.Sequential),
+		decorate: delayBar,
 	},
 }
 

@@ -33,6 +33,7 @@ func TestIndexedMatchesBare(t *testing.T) {
 	s := scene.Default()
 	s.Screen.Width, s.Screen.Height, s.Screen.FieldOfView = 48, 40, 40
 	s.Observer.InclinationDeg = 75
+	s.Output.Maps = scene.MapNames
 	r, err := s.Resolve()
 	if err != nil {
 		t.Fatal(err)
@@ -50,7 +51,7 @@ func TestIndexedMatchesBare(t *testing.T) {
 		}
 		bare := m.Image(f, sc)
 		idx := m.Indexed(f, sc)
-		continuous := name == "redshift" || name == "intensity" || name == "radius"
+		continuous := name == "redshift" || name == "intensity" || name == "radius" || name == "delay"
 		seen := map[uint8]bool{}
 		for k := 0; k < f.W*f.H; k++ {
 			x, y := k%f.W, k/f.W

@@ -18,6 +18,9 @@ type Scales struct {
 	RMin     float64 // radius colour range (default: disk edges)
 	RMax     float64
 	FluxMax  float64 // spectrum plot upper limit (per keV)
+	// TMin, TMax: delay colours, in M of t_o − t (raytrace.Timing); the
+	// delay map shows t_o − t − TMin. Default: the frame's range.
+	TMin, TMax float64
 }
 
 // AutoScales returns the scales the frame would choose for itself.
@@ -42,6 +45,10 @@ func AutoScales(f *pixels.Frame) Scales {
 	if sc.IMax == 0 {
 		sc.IMax = 1
 	}
+	sc.TMin, sc.TMax = delayRange(f)
+	if !(sc.TMax > sc.TMin) {
+		sc.TMax = sc.TMin + 1
+	}
 	return sc
 }
 
@@ -59,6 +66,9 @@ func (s Scales) Fill(f *pixels.Frame) Scales {
 	}
 	if !(s.RMin > 0) || !(s.RMax > s.RMin) {
 		s.RMin, s.RMax = auto.RMin, auto.RMax
+	}
+	if !(s.TMax > s.TMin) {
+		s.TMin, s.TMax = auto.TMin, auto.TMax
 	}
 	return s
 }

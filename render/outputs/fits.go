@@ -64,7 +64,7 @@ func fitsImages(f *pixels.Frame) []fits.Image {
 			mk("R_ORD"+suffix, "", "source radius in M of image order "+suffix, f.R[o]),
 			mk("I_ORD"+suffix, "", "line intensity g^3 eps limb of image order "+suffix, f.Line[o]))
 	}
-	return ims
+	return append(ims, timingImages(f, mk)...)
 }
 
 // fitsHeader returns the primary header cards: what was rendered, with

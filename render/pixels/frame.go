@@ -22,6 +22,9 @@ type Frame struct {
 	R, G   [][]float32 // [order][pixel]; NaN where that order is not seen
 	Line   [][]float32 // g³ ε L per order
 	Bol    [][]float32 // g⁴ ε L per order
+	// T and Phi are the time delay (M, regularised as in raytrace.Timing)
+	// and azimuth φ − φ_o (radians) per order; nil unless Model.Timing.
+	T, Phi [][]float32
 	// Photons is the number of photons traced to make the frame.
 	Photons int64
 	// refined is the spectrum collapsed from the refined samples, if any.
@@ -63,8 +66,16 @@ func Render(ctx context.Context, r scene.Resolved, progress func(rows int)) (*Fr
 	done := 0
 	parallel(ctx, h, n, func(j int, p *raytrace.Path, s *Sample) {
 		beta := PixelBeta(r, j)
+		var tp raytrace.TimedPath
+		if m.Timing {
+			tp.Crossings, tp.Times = p.Crossings, make([]raytrace.Timing, 0, n)
+		}
 		for i := 0; i < w; i++ {
-			m.Shade(PixelAlpha(r, i), beta, p, s)
+			if m.Timing {
+				m.ShadeTimed(PixelAlpha(r, i), beta, &tp, s)
+			} else {
+				m.Shade(PixelAlpha(r, i), beta, p, s)
+			}
 			f.store(j*w+i, s)
 		}
 		if progress != nil {
@@ -94,6 +105,9 @@ func newFrame(r scene.Resolved, m Model) *Frame {
 		return out
 	}
 	f.R, f.G, f.Line, f.Bol = alloc(), alloc(), alloc(), alloc()
+	if m.Timing {
+		f.T, f.Phi = alloc(), alloc()
+	}
 	return f
 }
 
@@ -124,6 +138,11 @@ func (f *Frame) store(k int, s *Sample) {
 		}
 		f.R[o][k], f.G[o][k] = float32(hit.R), float32(hit.G)
 		f.Line[o][k], f.Bol[o][k] = float32(hit.Line), float32(hit.Bol)
+	}
+	if f.T != nil {
+		for o := 0; o < f.Orders; o++ {
+			f.T[o][k], f.Phi[o][k] = float32(s.Hits[o].T), float32(s.Hits[o].Phi)
+		}
 	}
 }
 

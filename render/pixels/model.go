@@ -25,6 +25,10 @@ type Model struct {
 	Inner, Outer float64 // emitting disk edges in M
 	Opaque       bool
 	Orders       int
+	// Timing: also record each crossing's time delay and azimuth
+	// (raytrace.TraceTimed, about twice the cost of a plain trace); set
+	// when the scene asks for a map that needs them.
+	Timing bool
 }
 
 // NewModel builds the model of a resolved scene.
@@ -34,7 +38,8 @@ func NewModel(r scene.Resolved) (Model, error) {
 		return Model{}, err
 	}
 	return Model{Obs: o, Gas: r.Gas, Emissivity: r.Emissivity, Limb: r.Limb,
-		Inner: r.Inner, Outer: r.Disk.OuterRadius, Opaque: r.Disk.Opaque, Orders: r.Disk.Orders}, nil
+		Inner: r.Inner, Outer: r.Disk.OuterRadius, Opaque: r.Disk.Opaque, Orders: r.Disk.Orders,
+		Timing: r.NeedsTiming()}, nil
 }
 
 // Hit is the light a photon picks up at one crossing of the disk.
@@ -44,6 +49,10 @@ type Hit struct {
 	Line float64 // observed line intensity g³ ε(r) L(cos δ) (Liouville: I_ν/ν³ conserved)
 	Bol  float64 // bolometric intensity g⁴ ε(r) L(cos δ)
 	Seen bool    // the crossing lands on the disk and its light reaches the observer
+	// T and Phi are the crossing's time delay t_o − t (regularised, M) and
+	// azimuth φ − φ_o (radians) of raytrace.Timing; NaN unless the model
+	// records timing.
+	T, Phi float64
 }
 
 // Sample is one photon's record: its fate, the first order that landed on
@@ -58,10 +67,22 @@ type Sample struct {
 // (reuse one per goroutine).
 func (m *Model) Shade(alpha, beta float64, p *raytrace.Path, s *Sample) {
 	m.Obs.Trace(alpha, beta, m.Orders, p)
+	m.fill(p, nil, s)
+}
+
+// ShadeTimed is Shade with each seen crossing's time delay and azimuth
+// (Hit.T, Hit.Phi), from raytrace.TraceTimed.
+func (m *Model) ShadeTimed(alpha, beta float64, tp *raytrace.TimedPath, s *Sample) {
+	m.Obs.TraceTimed(alpha, beta, m.Orders, tp)
+	m.fill(&tp.Path, tp.Times, s)
+}
+
+// fill turns a traced path (and its times, if any) into the sample.
+func (m *Model) fill(p *raytrace.Path, times []raytrace.Timing, s *Sample) {
 	s.Fate = p.Fate
 	s.First = -1
 	for n := 0; n < m.Orders; n++ {
-		s.Hits[n] = Hit{R: math.NaN(), G: math.NaN()}
+		s.Hits[n] = Hit{R: math.NaN(), G: math.NaN(), T: math.NaN(), Phi: math.NaN()}
 	}
 	for n, c := range p.Crossings {
 		if c.R < m.Inner || c.R > m.Outer {
@@ -74,7 +95,10 @@ func (m *Model) Shade(alpha, beta float64, p *raytrace.Path, s *Sample) {
 		eps := m.Emissivity.At(c.R)
 		limb := m.Limb.At(scene.EmissionCosine(g, c.R, p.Eta))
 		g3 := g * g * g
-		s.Hits[n] = Hit{R: c.R, G: g, Line: g3 * eps * limb, Bol: g3 * g * eps * limb, Seen: true}
+		s.Hits[n] = Hit{R: c.R, G: g, Line: g3 * eps * limb, Bol: g3 * g * eps * limb, Seen: true, T: math.NaN(), Phi: math.NaN()}
+		if times != nil {
+			s.Hits[n].T, s.Hits[n].Phi = times[n].Delay, times[n].DeltaPhi
+		}
 		if s.First < 0 {
 			s.First = n
 		}

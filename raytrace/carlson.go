@@ -1,0 +1,360 @@
+package raytrace
+
+import "math"
+
+// Carlson's symmetric elliptic integrals R_C, R_D and R_J (Carlson 1995,
+// Numer. Algorithms 10, 13; DLMF §19.16, §19.36(i)). gonum's mathext
+// provides R_F and R_D but not R_J; R_J and its companions below share one
+// duplication loop so that a caller needing R_D and several R_J with the
+// same x, y, z pays for the square roots of x, y, z once.
+
+// carlsonTol is the r of Carlson (1995): the duplication stops when the
+// truncated series is accurate to about r^{1/6}·... ; 1e-16 gives full
+// double precision with the seventh-order series used below.
+const carlsonTol = 1e-16
+
+// carlsonQF and carlsonQJ are Carlson's (1995) factors (3r)^{-1/6} (R_F)
+// and (r/4)^{-1/6} (R_D, R_J) for r = carlsonTol, worked out once.
+var (
+	carlsonQF = math.Pow(3*carlsonTol, -1.0/6)
+	carlsonQJ = math.Pow(carlsonTol/4, -1.0/6)
+)
+
+// carlsonMaxIter bounds the duplication loop. The deviation from the mean
+// shrinks by 4 per step, so even arguments spread over 600 decades converge
+// in about 500 steps; real calls need 5 to 30.
+const carlsonMaxIter = 600
+
+// CarlsonRC returns R_C(x, y) = ½ ∫₀^∞ (t+x)^{-1/2} (t+y)^{-1} dt for
+// x ≥ 0, y ≠ 0, and its Cauchy principal value for y < 0 (Carlson 1995,
+// eq. 2.14; DLMF 19.2.20). Closed forms (DLMF 19.2.17–19.2.19):
+//
+//	0 ≤ x < y:  arctan(sqrt((y−x)/x)) / sqrt(y − x)
+//	y < x:      [ln(sqrt x + sqrt(x − y)) − ½ ln|y|] / sqrt(x − y)
+//
+// with a series in 1 − y/x where x and y nearly agree. It returns NaN
+// outside the domain.
+func CarlsonRC(x, y float64) float64 {
+	if !(x >= 0) || y == 0 || math.IsNaN(y) || math.IsInf(x, 0) || math.IsInf(y, 0) {
+		return math.NaN()
+	}
+	return carlsonRC(x, y)
+}
+
+func carlsonRC(x, y float64) float64 {
+	if x == 0 {
+		if y < 0 {
+			return 0 // principal value: sqrt(x/(x−y)) R_C(x−y, −y) → 0
+		}
+		return math.Pi / 2 / math.Sqrt(y)
+	}
+	u := (x - y) / x // R_C = x^{-1/2} f(u), f(u) = artanh(√u)/√u
+	if math.Abs(u) < 1e-3 {
+		// f(u) = Σ u^k/(2k+1), to u⁵: error below 1e-19.
+		return (1 + u*(1.0/3+u*(1.0/5+u*(1.0/7+u*(1.0/9+u/11))))) / math.Sqrt(x)
+	}
+	if y > x {
+		return math.Atan(math.Sqrt(-u)) / math.Sqrt(y-x)
+	}
+	return rcLogNumerator(x, y) / math.Sqrt(x-y)
+}
+
+// rcLogNumerator returns ln(sqrt x + sqrt(x − y)) − ½ ln|y| for y < x,
+// y ≠ 0, without cancellation: for 0 < y < x it is
+// log1p(√u) − ½ log1p(−u) with u = (x − y)/x; for y < 0 every term is
+// positive.
+func rcLogNumerator(x, y float64) float64 {
+	if y > 0 {
+		u := (x - y) / x
+		return math.Log1p(math.Sqrt(u)) - 0.5*math.Log1p(-u)
+	}
+	d := x - y
+	return math.Log1p(math.Sqrt(x/d)) + 0.5*math.Log(d/(-y))
+}
+
+// rcRegular returns R_C(x, y) + ½ ln|y| / sqrt(x − y) in the limit y → 0
+// at fixed x > 0, namely ln(2 sqrt x)/sqrt x: the finite part of R_C at its
+// logarithmic singularity (from the y < x form of CarlsonRC). Callers add
+// −½ L/sqrt x themselves, with L the regularised value of ln|y|.
+func rcRegular(x float64) float64 {
+	return math.Log(2*math.Sqrt(x)) / math.Sqrt(x)
+}
+
+// CarlsonRD returns R_D(x, y, z) = (3/2) ∫₀^∞ [(t+x)(t+y)]^{-1/2} (t+z)^{-3/2} dt
+// for x, y ≥ 0 (at most one zero) and z > 0 (Carlson 1995, eq. 2.28;
+// DLMF 19.16.5). Unlike gonum's EllipticRD it accepts arguments down to
+// the smallest normal numbers (the near-critical photons need that). It
+// returns NaN outside the domain.
+func CarlsonRD(x, y, z float64) float64 {
+	if !(x >= 0 && y >= 0 && z > 0) || x+y == 0 || math.IsInf(x+y+z, 0) {
+		return math.NaN()
+	}
+	var rj [1]float64
+	return carlsonDJ(x, y, z, nil, rj[:0])
+}
+
+// CarlsonRJ returns R_J(x, y, z, p) = (3/2) ∫₀^∞ [(t+x)(t+y)(t+z)]^{-1/2} (t+p)^{-1} dt
+// for x, y, z ≥ 0 (at most one zero) and p ≠ 0; for p < 0 it is the Cauchy
+// principal value (Carlson 1995; DLMF 19.16.2, 19.20.14). Duplication algorithm of Carlson (1995, sec. 2.4). It returns
+// NaN outside the domain.
+func CarlsonRJ(x, y, z, p float64) float64 {
+	if !(x >= 0 && y >= 0 && z >= 0) || p == 0 || math.IsNaN(p) ||
+		(x == 0 && y == 0) || (x == 0 && z == 0) || (y == 0 && z == 0) ||
+		math.IsInf(x+y+z+math.Abs(p), 0) {
+		return math.NaN()
+	}
+	return carlsonRJ(x, y, z, p)
+}
+
+func carlsonRJ(x, y, z, p float64) float64 {
+	var out [1]float64
+	carlsonDJ(x, y, z, []float64{p}, out[:0])
+	return out[0]
+}
+
+// carlsonDJ returns R_D(x, y, z) and appends R_J(x, y, z, p) for each p in
+// ps to out (which must have capacity len(ps); nothing is allocated then).
+// Negative p are handled by the principal-value transformation of
+// Carlson (1995; DLMF 19.20.14), which needs R_J at a positive q (run in
+// the same loop), R_F and R_C. Arguments as for CarlsonRJ, z > 0.
+func carlsonDJ(x, y, z float64, ps []float64, out []float64) float64 {
+	// Positive p go straight to the loop; negative p are mapped to a
+	// positive q = y + (z − y)(y − x)/(y − p), with y the middle one of
+	// x, y, z (Carlson 1995; DLMF 19.20.14).
+	var qs [4]float64
+	n := len(ps)
+	if n > len(qs) {
+		panic("raytrace: carlsonDJ takes at most 4 values of p")
+	}
+	neg := false
+	for i, p := range ps {
+		qs[i] = p
+		if p < 0 {
+			neg = true
+		}
+	}
+	// Sorted copy for the principal-value map.
+	lo, mid, hi := sort3(x, y, z)
+	if neg {
+		for i, p := range ps {
+			if p < 0 {
+				qs[i] = mid + (hi-mid)*(mid-lo)/(mid-p)
+			}
+		}
+	}
+	var rj [4]float64
+	rd := carlsonLoop(x, y, z, qs[:n], rj[:n])
+	for i, p := range ps {
+		v := rj[i]
+		if p < 0 {
+			q := qs[i]
+			// (y − p) R_J(x,y,z,p) = (q − y) R_J(x,y,z,q) − 3 R_F(x,y,z)
+			// + 3 R_C(xz/y, pq/y), y the middle argument (Carlson 1995).
+			rf := carlsonRF(x, y, z)
+			v = ((q-mid)*v - 3*rf + 3*carlsonRC(lo*hi/mid, p*q/mid)) / (mid - p)
+		}
+		out = append(out, v)
+	}
+	return rd
+}
+
+func sort3(a, b, c float64) (lo, mid, hi float64) {
+	if a > b {
+		a, b = b, a
+	}
+	if b > c {
+		b, c = c, b
+	}
+	if a > b {
+		a, b = b, a
+	}
+	return a, b, c
+}
+
+// carlsonRF is R_F(x, y, z) by duplication (Carlson 1995, sec. 2.2:
+// A₀ = (x+y+z)/3, deviations X = 4^{-n}(A₀ − x)/A_n, Y likewise,
+// Z = −X − Y, E2 = XY − Z², E3 = XYZ, and
+// R_F = A_n^{-1/2}(1 − E2/10 + E3/14 + E2²/24 − 3E2E3/44)). Unlike gonum's
+// EllipticRF it accepts arguments down to the smallest normal numbers.
+func carlsonRF(x, y, z float64) float64 {
+	a0 := (x + y + z) / 3
+	q := carlsonQF * math.Max(math.Abs(a0-x), math.Max(math.Abs(a0-y), math.Abs(a0-z)))
+	x0, y0 := x, y
+	a := a0
+	fac := 1.0
+	for i := 0; i < carlsonMaxIter && fac*q >= math.Abs(a); i++ {
+		sx, sy, sz := math.Sqrt(x), math.Sqrt(y), math.Sqrt(z)
+		lam := sx*sy + sx*sz + sy*sz
+		x, y, z, a = (x+lam)/4, (y+lam)/4, (z+lam)/4, (a+lam)/4
+		fac /= 4
+	}
+	X := fac * (a0 - x0) / a
+	Y := fac * (a0 - y0) / a
+	Z := -X - Y
+	e2 := X*Y - Z*Z
+	e3 := X * Y * Z
+	return (1 - e2/10 + e3/14 + e2*e2/24 - 3*e2*e3/44) / math.Sqrt(a)
+}
+
+// carlsonLoop runs the duplication of Carlson (1995) for R_D(x, y, z) and
+// R_J(x, y, z, p_i), all p_i > 0 (at most 4), writing the R_J into rj.
+// With A₀ = (x+y+z+2p)/5, δ = (p−x)(p−y)(p−z), each step n adds
+// 4^{-n} R_C(1, 1 + e_n)/d_n to the R_J sum, where
+// d_n = (√p+√x)(√p+√y)(√p+√z) and e_n = 4^{-3n} δ/d_n², and
+// 4^{-n}/(√z (z+λ)) to the R_D sum; at the end the fifth-order Taylor
+// series in the deviations from the mean is added (Carlson 1995, eqs.
+// 2.29–2.31 and 2.37–2.39). One loop serves all: the square roots of x,
+// y, z and the mean shifts λ are shared.
+func carlsonLoop(x, y, z float64, ps []float64, rj []float64) float64 {
+	n := len(ps)
+	var pv, a0, av, delta, sum [4]float64
+	// R_D is R_J with p = z; its mean is (x + y + 3z)/5.
+	ad0 := (x + y + 3*z) / 5
+	lo, _, hi := sort3(x, y, z)
+	ad := ad0
+	maxDev := max(ad0-lo, hi-ad0)
+	minA := ad0
+	for i := 0; i < n; i++ {
+		p := ps[i]
+		pv[i] = p
+		a := (x + y + z + 2*p) / 5
+		a0[i], av[i] = a, a
+		delta[i] = (p - x) * (p - y) * (p - z)
+		// The mean lies between the smallest and largest argument.
+		maxDev = max(maxDev, a-min(lo, p), max(hi, p)-a)
+		minA = min(minA, a)
+	}
+	// Stop when 4^{-k} Q < min A_k; the A_k shrink together with 4^{-k}
+	// once λ dominates, so it is enough to compare with the initial means
+	// scaled as they evolve (tracked in minA).
+	q := carlsonQJ * maxDev
+	x0, y0, z0 := x, y, z
+	fac := 1.0
+	sumD := 0.0
+	for it := 0; it < carlsonMaxIter && fac*q >= minA; it++ {
+		sx, sy, sz := math.Sqrt(x), math.Sqrt(y), math.Sqrt(z)
+		lam := sx*sy + sx*sz + sy*sz
+		sumD += fac / (sz * (z + lam))
+		f3 := fac * fac * fac
+		for i := range pv[:n] {
+			sp := math.Sqrt(pv[i])
+			d := (sp + sx) * (sp + sy) * (sp + sz)
+			inv := 1 / d
+			e := f3 * delta[i] * inv * inv
+			var rc float64
+			if e < 3e-4 && e > -3e-4 {
+				rc = 1 - e*(1.0/3-e*(1.0/5-e*(1.0/7-e/9))) // rc1's short series
+			} else {
+				rc = rc1(e)
+			}
+			sum[i] += fac * rc * inv
+			pv[i] = (pv[i] + lam) * 0.25
+			av[i] = (av[i] + lam) * 0.25
+		}
+		x, y, z = (x+lam)*0.25, (y+lam)*0.25, (z+lam)*0.25
+		ad = (ad + lam) * 0.25
+		minA = ad
+		for _, a := range av[:n] {
+			minA = min(minA, a)
+		}
+		fac *= 0.25
+	}
+	// R_D: deviations X, Y from the mean, Z = −(X+Y)/3.
+	{
+		ia := fac / ad
+		X := (ad0 - x0) * ia
+		Y := (ad0 - y0) * ia
+		Z := -(X + Y) / 3
+		xy, zz := X*Y, Z*Z
+		e2 := xy - 6*zz
+		e3 := (3*xy - 8*zz) * Z
+		e4 := 3 * (xy - zz) * zz
+		e5 := xy * Z * zz
+		sumD = fac*(1-3*e2/14+e3/6+9*e2*e2/88-3*e4/22-9*e2*e3/52+3*e5/26)/(ad*math.Sqrt(ad)) + 3*sumD
+	}
+	for i := 0; i < n; i++ {
+		a := av[i]
+		ia := fac / a
+		X := (a0[i] - x0) * ia
+		Y := (a0[i] - y0) * ia
+		Z := (a0[i] - z0) * ia
+		P := -(X + Y + Z) / 2
+		P2 := P * P
+		xyz := X * Y * Z
+		e2 := X*Y + X*Z + Y*Z - 3*P2
+		e3 := xyz + 2*e2*P + 4*P2*P
+		e4 := (2*xyz + e2*P + 3*P2*P) * P
+		e5 := xyz * P2
+		rj[i] = fac*(1-3*e2/14+e3/6+9*e2*e2/88-3*e4/22-9*e2*e3/52+3*e5/26)/(a*math.Sqrt(a)) + 6*sum[i]
+	}
+	return sumD
+}
+
+// rc1 returns R_C(1, 1 + e) for e > −1: arctan(√e)/√e for e > 0,
+// artanh(√−e)/√−e for e < 0 (DLMF 19.2.17–19.2.18), by its series
+// 1 − e/3 + e²/5 − … for small |e| (the duplication makes e shrink by 64
+// per step, so after the first step the series is what runs).
+func rc1(e float64) float64 {
+	// Σ (−e)^k/(2k+1), cut where the next term is below 1e-17.
+	switch ae := math.Abs(e); {
+	case ae < 4e-6:
+		return 1 - e*(1.0/3-e/5)
+	case ae < 3e-4:
+		return 1 - e*(1.0/3-e*(1.0/5-e*(1.0/7-e/9)))
+	case ae < 0.03:
+		return 1 - e*(1.0/3-e*(1.0/5-e*(1.0/7-e*(1.0/9-e*(1.0/11-e*(1.0/13-e*(1.0/15-e*(1.0/17-e*(1.0/19-e/21)))))))))
+	}
+	if e > 0 {
+		s := math.Sqrt(e)
+		return math.Atan(s) / s
+	}
+	s := math.Sqrt(-e)
+	return math.Atanh(s) / s
+}
+
+// bulirschCel returns Bulirsch's general complete elliptic integral
+//
+//	cel(kc, p, a, b) = ∫₀^{π/2} (a cos²φ + b sin²φ) / ((cos²φ + p sin²φ) sqrt(cos²φ + kc² sin²φ)) dφ
+//
+// for kc ≠ 0 and p ≠ 0 (a Cauchy principal value for p < 0), by
+// Bulirsch's quadratically convergent transformation (Bulirsch 1969,
+// Numer. Math. 13, 305, algorithm cel3). With kc² = 1 − m it gives
+// K(m) = cel(kc, 1, 1, 1), ∫ sin²φ/sqrt(1 − m sin²φ) = cel(kc, 1, 0, 1) and
+// Π(n|m) = cel(kc, 1 − n, 1, 1) (DLMF 19.2.11) at the cost of a few square
+// roots, far less than an incomplete integral.
+func bulirschCel(kc, p, a, b float64) float64 {
+	const ca = 1e-8 // quadratic convergence: the error is then below ca²
+	qc := math.Abs(kc)
+	e := qc
+	em := 1.0
+	if p > 0 {
+		p = math.Sqrt(p)
+		b /= p
+	} else {
+		f := qc * qc
+		q := 1 - f
+		g := 1 - p
+		f -= p
+		q *= b - a*p
+		p = math.Sqrt(f / g)
+		a = (a - b) / g
+		b = -q/(g*g*p) + a*p
+	}
+	for i := 0; i < 64; i++ {
+		f := a
+		a += b / p
+		g := e / p
+		b += f * g
+		b += b
+		p += g
+		g = em
+		em += qc
+		if math.Abs(g-qc) <= g*ca {
+			break
+		}
+		qc = math.Sqrt(e)
+		qc += qc
+		e = qc * em
+	}
+	return math.Pi / 2 * (b + a*em) / (em * (em + p))
+}

@@ -1,0 +1,566 @@
+package raytrace
+
+import "math"
+
+// Timing is the Boyer–Lindquist time and azimuth of one equatorial
+// crossing, relative to the photon's arrival at the observer.
+//
+// Delay is t_o − t, the coordinate time the photon took from the crossing
+// to the observer, regularised for an observer at infinity: the time to a
+// distant observer at radius r_o grows like r_o + 2 ln r_o (in M), and Delay
+// is the limit of t_o − t − (r_o + 2 ln r_o) as r_o → ∞. Only differences
+// of Delay, between crossings of one photon or between photons, are
+// physical; they do not depend on this choice.
+//
+// DeltaPhi is φ − φ_o, the azimuth of the crossing minus the observer's
+// azimuth, in radians, not reduced modulo 2π (it counts the windings of
+// near-critical photons). For an observer on the axis (θo = 0° or 180°),
+// whose azimuth is undefined, it is the limit θo → 0, in which the first
+// crossing lies toward the screen direction atan2(α, −β cos θo).
+//
+// Both diverge at the horizon, so a crossing that Trace places on r₊
+// itself (its rounding clamp at the very end of a capture) has infinite
+// Delay and DeltaPhi.
+type Timing struct {
+	Delay    float64 // regularised t_o − t, in M
+	DeltaPhi float64 // φ − φ_o, in radians
+}
+
+// TimedPath is a Path together with the Timing of each crossing:
+// Times[i] belongs to Crossings[i]. Reuse one per goroutine.
+type TimedPath struct {
+	Path
+	Times []Timing
+}
+
+// TraceTimed is Trace plus the time delay and azimuth of every crossing in
+// closed form (Gralla & Lupsasca 2020, PRD 101, 044032, sec. IV and
+// appendices A–B). It allocates nothing once cap(tp.Crossings) and
+// cap(tp.Times) ≥ orders. Domain as for Trace.
+//
+// The Mino-time rates of t and φ (Carter 1968; Bardeen 1973) split into a
+// radial and an angular part,
+//
+//	dt/dτ = r² + 2r + 4 + [(8 − 2aλ) r − 4a²]/Δ  +  a² cos²θ
+//	dφ/dτ = a (2r − aλ)/Δ                        +  λ / sin²θ
+//
+// so Δt = I_t + a² G_t and Δφ = I_φ + λ G_φ, where I are integrals over
+// the radial path and G = ∫cos²θ dτ, ∫dτ/sin²θ over the angular one. With
+// Δ = (r − r₊)(r − r₋) the radial integrands are r², r, 1 and
+// 1/(r − r±); radialTimer expresses their integrals through Legendre's
+// integrals of the first, second and third kind, evaluated with Carlson's
+// R_F, R_D, R_J and R_C (carlson.go). The divergent ∫r² dτ and ∫r dτ are
+// regularised as described for Timing.
+//
+// Accuracy: against an independent integration of the rates (see
+// IntegrateTimed and timing_test.go) about 1e-10 of the delay and 1e-9
+// rad, except near extremality, where the coefficients C±, A± grow like
+// 1/(r₊ − r₋) with opposite signs and magnify the rounding of I±: the
+// error grows to about 1e-12/(r₊ − r₋) of the size (1e-6 at
+// |a| = 1 − 1e-12); and on the critical curve itself, where the crossings
+// are ambiguous.
+func (o Observer) TraceTimed(alpha, beta float64, orders int, tp *TimedPath) {
+	o = o.resolved()
+	lambda, eta := o.constants(alpha, beta)
+	var in timingInput
+	o.trace(lambda, eta, beta, orders, &tp.Path, &in)
+	tp.Times = tp.Times[:0]
+	if len(tp.Crossings) == 0 || !in.ok {
+		return
+	}
+	a := o.spin
+	rt := newRadialTimer(in.q, in.rad, a, lambda, o.horizon)
+	ang := o.newAngularTimer(&in, alpha, beta, lambda)
+	for n, c := range tp.Crossings {
+		it, iphi := rt.at(c.Mino, c.R)
+		gt, lgphi := ang.at(n)
+		tp.Times = append(tp.Times, Timing{Delay: it + a*a*gt, DeltaPhi: -(iphi + lgphi)})
+	}
+}
+
+// timingInput carries what trace computed that the timing needs.
+type timingInput struct {
+	ok        bool
+	q         quartic
+	rad       radial
+	w, up, mc float64 // a² u₋, u₊ and 1 − m of the angular motion
+	sw, gq    float64 // sqrt(−w), G_θ
+	beta0     bool    // β = 0: the observer sits at a turning point
+	sgn, gobs float64 // s and G_o of the crossing times (β ≠ 0)
+	s2, c2    float64 // sin², cos² of the observer's amplitude (β ≠ 0)
+}
+
+func (tm *timingInput) set(q quartic, rad radial, w, up, mc, sw, gq float64, beta0 bool) {
+	tm.ok = rad.cs == FourReal || rad.cs == TwoReal
+	tm.q, tm.rad = q, rad
+	tm.w, tm.up, tm.mc, tm.sw, tm.gq = w, up, mc, sw, gq
+	tm.beta0 = beta0
+}
+
+// angularTimer holds G_t = ∫cos²θ dτ and λG_φ = λ∫dτ/sin²θ over a quarter
+// oscillation (equator to turning latitude, q) and from the equator to the
+// observer's latitude (o). With x = cos θ = sqrt(u₊) sn(ψ|m),
+// ψ = sqrt(−w) τ (package documentation), ∫sn² dψ = (s³/3) R_D(c², d², 1)
+// and ∫dψ/(1 − u₊ sn²) = Π(u₊; am ψ | m) = F + (u₊/3) s³ R_J(c², d², 1,
+// 1 − u₊ s²) with s = sn ψ, c = cn ψ, d = dn ψ (DLMF 19.25.9, 19.25.14).
+// The path to crossing n runs like its Mino time,
+// G(τ_n) = (2n+1) G_q + s (G_q − G_o) (Gralla & Lupsasca 2020, eq. 80).
+type angularTimer struct {
+	tq, to   float64 // G_t quarter and observer parts
+	pq, po   float64 // λG_φ quarter and observer parts
+	sgn      float64
+	observer bool // false when β = 0: the observer part equals the quarter
+}
+
+func (o Observer) newAngularTimer(in *timingInput, alpha, beta, lambda float64) angularTimer {
+	var at angularTimer
+	up, mc, sw := in.up, in.mc, in.sw
+	a := o.spin
+	var rj [1]float64
+	// 1 − u₊ = λ²/(a² − w), without cancellation (u₊ → 1 as λ → 0).
+	omu := lambda * lambda / (a*a - in.w)
+	// Quarter oscillation: complete integrals by Bulirsch's cel, with
+	// kc² = 1 − m: ∫sn² dψ = cel(kc, 1, 0, 1), Π(u₊|m) = cel(kc, 1 − u₊, 1, 1).
+	kc := math.Sqrt(mc)
+	rdq := 3 * bulirschCel(kc, 1, 0, 1) // R_D(0, 1 − m, 1)
+	if omu > 0 {
+		at.pq = lambda * bulirschCel(kc, omu, 1, 1) / sw
+	} else {
+		// λ → 0: the photon passes over a pole and its azimuth sweeps
+		// by π per half oscillation: λ Π(u₊) → sign(λ)·(π/2) sqrt(−w) per
+		// quarter (R_J(0, y, z, p) ≈ (3π/2)/sqrt(y z p) as p → 0, with
+		// u₊ = 1, −w(1 − m) = η + a², a² − w = a² + η at λ = 0).
+		at.pq = -sgnNonNeg(alpha) * math.Pi / 2
+	}
+	at.tq = up / sw * rdq / 3
+	at.sgn = 1
+	if in.beta0 {
+		at.to, at.po = at.tq, at.pq
+		return at
+	}
+	at.observer = true
+	at.sgn = in.sgn
+	s2, c2 := in.s2, in.c2
+	d2 := c2 + mc*s2 // 1 − m s²
+	s3 := s2 * math.Sqrt(s2)
+	st2 := o.sin * o.sin // 1 − u₊ s² = sin²θo
+	if s2 == 0 {
+		return at // observer in the plane: G_o = 0
+	}
+	if st2 > 0 && omu > 0 {
+		rd := carlsonDJ(c2, d2, 1, []float64{st2}, rj[:0])
+		at.to = up / sw * s3 * rd / 3
+		at.po = lambda * (in.gobs + up/(3*sw)*s3*rj[0])
+		return at
+	}
+	at.to = up / sw * s3 * CarlsonRD(c2, d2, 1) / 3
+	if o.sin == 0 {
+		// Observer on the axis (θo = 0° or 180°), λ = 0: the limit θo → 0
+		// of λG_o is −sign(α) arctan(|α|/|β|) (R_J(x, y, z, p) ≈
+		// 3 R_C(x, p)/sqrt(y z) as x, p → 0; then x/p → β²/(η + a²)), so
+		// that the first crossing lies at φ − φ_o = atan2(α, −β cos θo)
+		// (plus the radial part): the direction of the screen point.
+		at.po = -sgnNonNeg(alpha) * math.Atan2(math.Abs(alpha), math.Abs(beta))
+	}
+	return at
+}
+
+// sgnNonNeg is the sign of v with sgnNonNeg(0) = 1.
+func sgnNonNeg(v float64) float64 {
+	if v < 0 {
+		return -1
+	}
+	return 1
+}
+
+// at returns G_t and λG_φ from the observer to crossing n.
+func (at angularTimer) at(n int) (gt, lgphi float64) {
+	k := float64(2*n + 1)
+	gt = k*at.tq + at.sgn*(at.tq-at.to)
+	lgphi = k*at.pq + at.sgn*(at.pq-at.po)
+	return gt, lgphi
+}
+
+// farRadius: beyond r − r3 > farRadius·(1 + |r3|) the case-I timing takes
+// 1 − n sn² from the crossing radius instead of from sn (see
+// radialTimer.at). There r43/(r − r3) is exact to rounding even for the
+// uncertain roots of near-critical photons (their error, about 1e-10 of
+// their size, is 1e-14 of r − r3), while n cn² − r43/r31 starts to
+// cancel (by about r/r31). Any value between 1e3 and 1e6 would do.
+const farRadius = 1e4
+
+// rootPoleGap: in case II a horizon r± closer than rootPoleGap·(1 + r21)
+// to the root r2 is treated as on it (see setupII). At that gap both ways
+// err by about 1e-8 of ∫dτ/(r − r±), and it happens only for r₋ as a → 0
+// (both are O(a²)), where the coefficients A₋, C₋ are O(a²) and O(a³).
+const rootPoleGap = 1e-8
+
+// radialTimer evaluates I_t and I_φ, the radial parts of Δt and Δφ, from
+// infinity to a point of the radial path.
+//
+// The partial fractions of the rates (Δ = (r − r₊)(r − r₋)) are
+//
+//	[(8 − 2aλ) r − 4a²]/Δ = C₊/(r − r₊) + C₋/(r − r₋),  C± = ±2r±(2r± − aλ)/(r₊ − r₋)
+//	a (2r − aλ)/Δ         = A₊/(r − r₊) + A₋/(r − r₋),  A± = ±a(2r± − aλ)/(r₊ − r₋)
+//
+// so I_t = I₂ + 2I₁ + 4τ + C₊I₊ + C₋I₋ and I_φ = A₊I₊ + A₋I₋ with
+// I_k = ∫r^k dτ and I± = ∫dτ/(r − r±). I₂ is reduced with the identity
+// r² = c² + R'(c)/(2(r − c)) ± d/dτ[sqrt(R)/(r − c)] for a root c of R
+// (differentiate sqrt(R)/(r − c) along the path), which leaves a
+// second-kind integral and a boundary term carrying the divergence r_o.
+// The logarithmic divergence of I₁ sits in one R_C (case I) or one
+// logarithm (case II), whose finite part gives the regularised value.
+type radialTimer struct {
+	cs       RootCase
+	cp, cm   float64 // C₊, C₋
+	ap, am   float64 // A₊, A₋
+	rp, rm   float64 // r₊, r₋
+	skipM    bool    // r₋ terms below rounding (a → 0)
+	scale    float64 // dX/dτ
+	x0       float64 // X at infinity: F0 (case I), X0 (case II)
+	m, mc    float64
+	inf      [5]float64 // J_1, J_r, J_r² (elliptic part), J₊, J₋ at infinity, regularised
+	breg     float64    // regularised boundary term of I₂ at infinity
+	r1, r2   float64
+	r3, r4   float64
+	r31, r41 float64
+	r42, r43 float64
+	r32      float64
+	n, nu    float64 // case I: n = r41/r31, ν = m/n = r32/r42
+	d4p, d4m float64 // case I: r4 − r±
+	// case II
+	re, im       float64
+	apr, bpr     float64 // A', B'
+	a0, a1       float64 // B'r2 − A'r1, B'r2 + A'r1
+	b0, b1       float64 // B' − A', B' + A'
+	r21          float64
+	g            [3]float64 // γ of the poles at infinity, r₊, r₋
+	p0, p1       [3]float64 // for r±: 1/(r − c) = (1/p1)[b1 − (2A'B'r21/p0)/(1 + γ cn)]
+	compRD       float64    // R_D(0, 1−m, 1)
+	compRJ       [3]float64 // R_J(0, 1−m, 1, ·) for each γ
+	atRoot       [3]bool    // case II: the pole r± sits on the root r2 (see setupII)
+	coefInf      float64    // 2A'B'r21/(b0 b1)
+	logInfFinite float64    // ln(2A'B'r21/(b0 b1)): finite part of ln(1 + γ∞ cn) at infinity
+}
+
+func newRadialTimer(q quartic, rad radial, a, lambda, rh float64) radialTimer {
+	rt := radialTimer{cs: rad.cs, scale: rad.scale, x0: rad.x0, m: rad.m, mc: rad.mc}
+	rt.rp = rh
+	rt.rm = a * a / rh // r₋ = a²/r₊ without cancellation
+	dr := 2 * math.Sqrt((1-a)*(1+a))
+	rt.cp = 2 * rt.rp * (2*rt.rp - a*lambda) / dr
+	rt.cm = -2 * rt.rm * (2*rt.rm - a*lambda) / dr
+	rt.ap = a * (2*rt.rp - a*lambda) / dr
+	rt.am = -a * (2*rt.rm - a*lambda) / dr
+	// On the path r − r₋ > r − r₊ > 0, so 0 < I₋ < I₊: the r₋ terms are
+	// below rounding of the r₊ terms when their coefficients are 1e-17 of
+	// those (a → 0, where r₋ = a²/r₊ also meets the root r2 = O(a²) and
+	// its own formula degenerates).
+	rt.skipM = math.Abs(rt.cm) <= 1e-17*math.Abs(rt.cp) && math.Abs(rt.am) <= 1e-17*math.Abs(rt.ap)
+	rt.r1, rt.r2 = q.r1, q.r2
+	if rad.cs == FourReal {
+		rt.setupI(q, rad)
+	} else {
+		rt.setupII(q, rad)
+	}
+	return rt
+}
+
+// Case I (four real roots, r ≥ r4): r = r3 + r43/(1 − n sn²X), n = r41/r31,
+// X = scale·τ − F0, r(X) even (Gralla & Lupsasca 2020, eq. B9). On
+// 0 ≤ Y ≤ F0, with s, c, d = sn, cn, dn of Y:
+//
+//	∫₀^Y dX/(1 − n sn²X) = Π(n; am Y|m)
+//	  = s R_C(c²d², (1 − ns²)(1 − νs²)) − (ν/3) s³ R_J(c², d², 1, 1 − νs²)
+//
+// (ν = m/n; the transformation n → m/n of DLMF 19.7.9, where for n > 1
+// the F terms cancel), whose R_C holds the logarithm at infinity
+// (s² = 1/n); ∫₀^Y sn² dX = (s³/3) R_D(c², d², 1) (DLMF 19.25.9); and
+// ∫₀^Y dX/(r − c) = Y/d₄ − (n r43/d₄²)(s³/3) R_J(c², d², 1, 1 − n_c s²)
+// with d₄ = r4 − c, n_c = n (r3 − c)/d₄ (a principal value where r4 < c,
+// captured photons).
+func (rt *radialTimer) setupI(q quartic, rad radial) {
+	rt.r3, rt.r4 = q.r3, q.r4
+	rt.r31, rt.r41, rt.r42, rt.r43 = rad.r31, rad.r41, rad.r42, rad.r43
+	rt.r32 = q.r3 - q.r2
+	rt.n = rt.r41 / rt.r31
+	rt.nu = rt.r32 / rt.r42
+	rt.d4p = rt.r4 - rt.rp
+	rt.d4m = rt.r4 - rt.rm
+	// Infinity: s² = r31/r41, c² = r43/r41, d² = r43/r42.
+	s2 := rt.r31 / rt.r41
+	c2 := rt.r43 / rt.r41
+	d2 := rt.r43 / rt.r42
+	onu := rt.r43 * (rt.r31 + rt.r42) / (rt.r41 * rt.r42) // 1 − ν s²
+	// ln y = ln r43 + ln(1 − νs²) − ln(r − r3): keep the finite part.
+	rt.inf = rt.jI(rt.x0, s2, c2, d2, onu, rt.r43/rt.d4p, rt.r43/rt.d4m, math.Log(rt.r43)+math.Log(onu), true)
+	// sqrt((r−r1)(r−r2)(r−r4)/(r−r3)) = r + (r3 − r1 − r2 − r4)/2 + O(1/r).
+	rt.breg = (rt.r3 - rt.r1 - rt.r2 - rt.r4) / 2
+}
+
+// jI returns the case-I integrals ∫₀^Y of 1, r, r² (elliptic part), and
+// 1/(r − r±) over X, given s² = sn²Y, c², d², 1 − νs² and 1 − n±s², and
+// for the R_C either its second argument (1 − ns²)(1 − νs²) (reg = false)
+// or the regularised logarithm of that argument (reg = true, at infinity).
+func (rt *radialTimer) jI(y, s2, c2, d2, onu, onp, onm, yc float64, reg bool) [5]float64 {
+	var out [5]float64
+	out[0] = y
+	if s2 == 0 {
+		return out
+	}
+	s := math.Sqrt(s2)
+	s3 := s2 * s
+	ps := [3]float64{onu, onp, onm}
+	np := 3
+	if rt.skipM {
+		np = 2
+	}
+	var rj [3]float64
+	rd := carlsonDJ(c2, d2, 1, ps[:np], rj[:0])
+	x := c2 * d2
+	var rc float64
+	if reg {
+		rc = rcRegular(x) - 0.5*yc/math.Sqrt(x)
+	} else {
+		rc = carlsonRC(x, yc)
+	}
+	pin := s*rc - rt.nu/3*s3*rj[0] // Π(n; am Y | m)
+	out[1] = rt.r3*y + rt.r43*pin
+	out[2] = rt.r3*rt.r3*y - rt.r31*rt.r32/2*(y-rt.n*s3*rd/3)
+	out[3] = y/rt.d4p - rt.n*rt.r43/(rt.d4p*rt.d4p)*s3*rj[1]/3
+	if !rt.skipM {
+		out[4] = y/rt.d4m - rt.n*rt.r43/(rt.d4m*rt.d4m)*s3*rj[2]/3
+	}
+	return out
+}
+
+// Case II (r1 < r2 real, r3,4 = re ∓ i·im): r = (a0 + a1 cn X)/(b0 + b1 cn X),
+// X = scale·τ − X0 (Gralla & Lupsasca 2020, eq. B45), so on the path
+// Y = −X runs from X0 (infinity, cn = (A'−B')/(A'+B')) down. Every
+// integrand is a rational function of cn: with
+// Q(γ; Y) = ∫₀^Y dY'/(1 + γ cn Y') (Byrd & Friedman 1971, 341.03),
+//
+//	r        = a1/b1 + (2A'B'r21/(b0 b1)) / (1 + γ∞ cn),   γ∞ = b1/b0
+//	1/(r−c)  = (1/p1) [b1 − (2A'B'r21/p0) / (1 + γ_c cn)],  γ_c = p1/p0
+//	1/(r−r1) = (1/(B'r21)) [b1 − 2A'/(1 + cn)]
+//
+// with p0 = B'(r2 − c) + A'(c − r1), p1 = B'(r2 − c) − A'(c − r1); and
+// ∫₀^Y dY'/(1 + cn) = sn dn/(1 + cn) + m ∫₀^Y sn² (differentiate
+// sn dn/(1 + cn)).
+func (rt *radialTimer) setupII(q quartic, rad radial) {
+	rt.re, rt.im = q.re34, q.im34
+	rt.apr, rt.bpr = rad.ap, rad.bp
+	rt.a0, rt.a1 = rad.num0, rad.num1
+	rt.b0, rt.b1 = rad.den0, rad.den1
+	rt.r21 = rad.r21
+	ab := rt.apr * rt.bpr
+	rt.coefInf = 2 * ab * rt.r21 / (rt.b0 * rt.b1)
+	rt.logInfFinite = math.Log(rt.coefInf)
+	rt.g[0] = rt.b1 / rt.b0
+	for i, c := range [2]float64{rt.rp, rt.rm} {
+		p0 := rt.bpr*(rt.r2-c) + rt.apr*(c-rt.r1)
+		p1 := rt.bpr*(rt.r2-c) - rt.apr*(c-rt.r1)
+		rt.p0[i+1], rt.p1[i+1] = p0, p1
+		rt.g[i+1] = p1 / p0
+		// A pole on the root r2 (γ → −1) makes Q ill-conditioned, by
+		// about ε r21/|c − r2|; replacing c by r2 costs |c − r2|/(r − r2).
+		// The two meet near sqrt(ε): below, take the root's formula.
+		if math.Abs(c-rt.r2) < rootPoleGap*(1+rt.r21) {
+			rt.atRoot[i+1] = true
+			rt.g[i+1] = 0 // not used; keeps the other formulas finite
+		}
+	}
+	// Complete integrals at Y = K (φ = π/2).
+	m, mc := rt.m, rt.mc
+	var ps [3]float64
+	ng := rt.numPoles()
+	for i := 0; i < ng; i++ {
+		g2 := rt.g[i] * rt.g[i]
+		if g2 > 1 {
+			ps[i] = mc + m/g2 // 1 − ν, ν = m(γ²−1)/γ²
+		} else {
+			ps[i] = 1 / (1 - g2) // 1 − N, N = γ²/(γ² − 1)
+		}
+	}
+	// R_D(0, mc, 1) = 3 cel(kc, 1, 0, 1), R_J(0, mc, 1, p) = 3 cel(kc, p, 0, 1)
+	// (kc² = mc; DLMF 19.25.1–19.25.2 with 19.2.11).
+	kc := math.Sqrt(mc)
+	rt.compRD = 3 * bulirschCel(kc, 1, 0, 1)
+	for i := 0; i < ng; i++ {
+		rt.compRJ[i] = 3 * bulirschCel(kc, ps[i], 0, 1)
+	}
+	// Infinity: cn = c0 = (A' − B')/(A' + B'), sn² = 4A'B'/(A'+B')².
+	c0 := (rt.apr - rt.bpr) / (rt.apr + rt.bpr)
+	s2 := 4 * ab / ((rt.apr + rt.bpr) * (rt.apr + rt.bpr))
+	d2 := mc + m*c0*c0
+	// 1 + γ cn at infinity for the poles r±: (r − c)(b0 + b1 cn)/p0 with
+	// (b0 + b1 cn)(r − a1/b1) = 2A'B'r21/b1 as r → ∞.
+	var onegc [3]float64
+	onegc[0] = 0
+	for i := 1; i < ng; i++ {
+		onegc[i] = 2 * ab * rt.r21 / (rt.b1 * rt.p0[i])
+	}
+	rt.inf = rt.jII(rt.x0, math.Sqrt(s2), c0, math.Sqrt(d2), onegc, true)
+	// sqrt((r−r2)((r−re)² + im²)/(r−r1)) = r + (r1 − r2 − 2re)/2 + O(1/r).
+	rt.breg = (rt.r1 - rt.r2 - 2*rt.re) / 2
+}
+
+func (rt *radialTimer) numPoles() int {
+	if rt.skipM {
+		return 2
+	}
+	return 3
+}
+
+// jII returns the case-II integrals ∫₀^Y of 1, r, r² (elliptic part) and
+// 1/(r − r±) over Y, given sn, cn, dn of Y (0 < Y < 2K) and 1 + γ cn for
+// each pole (index 0: infinity; ignored if reg, where the regularised
+// logarithm is used instead).
+func (rt *radialTimer) jII(y, sn, cn, dn float64, onegc [3]float64, reg bool) [5]float64 {
+	var out [5]float64
+	out[0] = y
+	m, mc := rt.m, rt.mc
+	s2, c2, d2 := sn*sn, cn*cn, dn*dn
+	s3 := s2 * sn
+	eps := 1.0
+	if cn < 0 {
+		eps = -1
+	}
+	ng := rt.numPoles()
+	var ps [3]float64
+	for i := 0; i < ng; i++ {
+		g := rt.g[i]
+		g2 := g * g
+		if g2 > 1 {
+			ps[i] = d2 + m*s2/g2 // 1 − ν s²
+		} else {
+			ps[i] = (1 - g2*c2) / (1 - g2) // 1 − N s²
+		}
+	}
+	var rj [3]float64
+	rd := carlsonDJ(c2, d2, 1, ps[:ng], rj[:0])
+	// ∫₀^Y sn² = ε (s³/3) R_D(c², d², 1) + (1 − ε)(1/3) R_D(0, mc, 1).
+	dsn := (eps*s3*rd + (1-eps)*rt.compRD) / 3
+	var q [3]float64
+	for i := 0; i < ng; i++ {
+		g := rt.g[i]
+		g2 := g * g
+		p := 1 - g2
+		qc := m + g2*mc
+		var pi, om float64
+		if g2 > 1 {
+			nu := m * (g2 - 1) / g2
+			x := c2 * d2
+			var rc, l1, l2 float64 // l1, l2: ln|1 + γ cn|, ln|γ cn − 1|
+			if reg && i == 0 {
+				// ln|y|, y = (1 − N s²)(1 − ν s²), 1 − N s² = (γcn−1)(γcn+1)/(γ²−1),
+				// with ln|1 + γ∞ cn| → its finite part (cn → −1/γ∞).
+				l1, l2 = rt.logInfFinite, math.Log(2)
+				logy := l1 + l2 - math.Log(g2-1) + math.Log(ps[i])
+				rc = rcRegular(x) - 0.5*logy/math.Sqrt(x)
+			} else {
+				l1 = math.Log(math.Abs(onegc[i]))
+				l2 = math.Log(math.Abs(onegc[i] - 2))
+				rc = carlsonRC(x, onegc[i]*(onegc[i]-2)/(g2-1)*ps[i])
+			}
+			pi = eps*(sn*rc-nu/3*s3*rj[i]) - (1-eps)*nu/3*rt.compRJ[i]
+			// ω = −½ ln|(1+v)/(1−v)| / sqrt(−p Qc), v = (sn/dn) sqrt(Qc/−p),
+			// 1 − v² = (γcn − 1)(γcn + 1)/(dn² (γ² − 1)).
+			v := sn / dn * math.Sqrt(qc/-p)
+			l1mv2 := l1 + l2 - math.Log(d2*(g2-1))
+			om = -(math.Log1p(v) - 0.5*l1mv2) / math.Sqrt(-p*qc)
+		} else {
+			nn := g2 / (g2 - 1)
+			pi = y + nn/3*(eps*s3*rj[i]+(1-eps)*rt.compRJ[i])
+			w := sn / dn
+			om = math.Atan(w*math.Sqrt(qc/p)) / math.Sqrt(p*qc)
+		}
+		q[i] = pi/p - g*om
+	}
+	out[1] = rt.a1/rt.b1*y + rt.coefInf*q[0]
+	// ∫ dY/(1 + cn) = sn dn/(1 + cn) + m ∫sn²; sn/(1 + cn) = (1 − cn)/sn.
+	var h float64
+	if cn >= 0 {
+		h = sn * dn / (1 + cn)
+	} else {
+		h = dn * (1 - cn) / sn
+	}
+	r1 := rt.r1
+	out[2] = r1*r1*y - rt.bpr/2*(rt.b1*y-2*rt.apr*(h+m*dsn))
+	ab2 := 2 * rt.apr * rt.bpr * rt.r21
+	for i := 1; i < ng; i++ {
+		if rt.atRoot[i] {
+			// 1/(r − r2) = (1/(A'r21)) [−b1 + 2B'/(1 − cn)], and
+			// ∫dY/(1 − cn) = −sn dn/(1 − cn) + m ∫sn² (shift Y by 2K in
+			// the formula for 1/(1 + cn)); sn/(1 − cn) = (1 + cn)/sn.
+			var g float64
+			if cn <= 0 {
+				g = -sn * dn / (1 - cn)
+			} else {
+				g = -dn * (1 + cn) / sn
+			}
+			out[i+2] = (-rt.b1*y + 2*rt.bpr*(g+m*dsn)) / (rt.apr * rt.r21)
+			continue
+		}
+		out[i+2] = (rt.b1*y - ab2/rt.p0[i]*q[i]) / rt.p1[i]
+	}
+	return out
+}
+
+// at returns I_t (regularised) and I_φ from infinity to Mino time tau,
+// where the photon is at radius r.
+func (rt *radialTimer) at(tau, r float64) (it, iphi float64) {
+	var j [5]float64
+	var sgn, bnd float64
+	switch rt.cs {
+	case FourReal:
+		xs := rt.scale*tau - rt.x0
+		y := math.Abs(xs)
+		sgn = 1
+		if xs < 0 {
+			sgn = -1
+		}
+		sn, cn, dn := jacobi(y, rt.m, rt.mc)
+		s2, c2 := sn*sn, cn*cn
+		// 1 − n s² = r43/(r − r3). Near a double root r3 ≈ r4 (the
+		// critical curve) the roots themselves are uncertain by about
+		// sqrt(ε) of their size while r43 is not (radialRoots), so
+		// r − r3 is taken from the radius only far out; elsewhere from
+		// 1 − n s² = n c² − r43/r31, which then has no cancellation.
+		onn := rt.n*c2 - rt.r43/rt.r31
+		if r-rt.r3 > farRadius*(1+math.Abs(rt.r3)) {
+			onn = rt.r43 / (r - rt.r3)
+		}
+		onu := rt.r43/rt.r42 + rt.nu*c2
+		onp := (r - rt.rp) * onn / rt.d4p
+		onm := (r - rt.rm) * onn / rt.d4m
+		j = rt.jI(y, s2, c2, dn*dn, onu, onp, onm, onn*onu, false)
+		// sqrt(R)/(r − r3) with (r − r4)/(r − r3) = n s².
+		bnd = math.Sqrt((r-rt.r1)*(r-rt.r2)*rt.n) * sn
+	default:
+		y := rt.x0 - rt.scale*tau
+		sgn = -1
+		sn, cn, dn := jacobi(y, rt.m, rt.mc)
+		var onegc [3]float64
+		// b0 + b1 cn = (2A'B'r21/b1)/(r − a1/b1).
+		bb := 2 * rt.apr * rt.bpr * rt.r21 / (rt.b1 * (r - rt.a1/rt.b1))
+		onegc[0] = bb / rt.b0
+		onegc[1] = (r - rt.rp) * bb / rt.p0[1]
+		onegc[2] = (r - rt.rm) * bb / rt.p0[2]
+		j = rt.jII(y, sn, cn, dn, onegc, false)
+		d1 := r - rt.re
+		bnd = math.Sqrt((r - rt.r2) * (d1*d1 + rt.im*rt.im) / (r - rt.r1))
+	}
+	var iv [5]float64
+	for k := range iv {
+		iv[k] = (rt.inf[k] + sgn*j[k]) / rt.scale
+	}
+	i2 := iv[2] + rt.breg + sgn*bnd
+	it = i2 + 2*iv[1] + 4*iv[0] + rt.cp*iv[3]
+	iphi = rt.ap * iv[3]
+	if !rt.skipM {
+		it += rt.cm * iv[4]
+		iphi += rt.am * iv[4]
+	}
+	return it, iphi
+}

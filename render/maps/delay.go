@@ -1,0 +1,77 @@
+package maps
+
+import (
+	"math"
+	"strconv"
+
+	"kerrscope/colormap"
+	"kerrscope/render/internal/figure"
+	"kerrscope/render/pixels"
+)
+
+// The delay map shows, for the first image order seen in each pixel, how
+// much earlier (in Boyer–Lindquist t) its light left the disk than the
+// light of the pixel that left last: t_o − t (raytrace.Timing) minus its
+// smallest value on the frame (or Scales.TMin). Only such differences
+// are physical; the regularisation of t_o − t cancels in them.
+
+// delayValues returns the first-seen delays (NaN where none is seen, or
+// everywhere if the frame has no timing).
+func delayValues(f *pixels.Frame) []float32 {
+	if f.T == nil {
+		out := make([]float32, f.W*f.H)
+		for k := range out {
+			out[k] = float32(math.NaN())
+		}
+		return out
+	}
+	return f.FirstSeen(f.T)
+}
+
+// delayRange returns the smallest and largest first-seen delay of the
+// frame (0, 0 if none).
+func delayRange(f *pixels.Frame) (lo, hi float64) {
+	lo, hi = math.Inf(1), math.Inf(-1)
+	for _, v := range delayValues(f) {
+		if x := float64(v); !math.IsNaN(x) && !math.IsInf(x, 0) {
+			lo, hi = math.Min(lo, x), math.Max(hi, x)
+		}
+	}
+	if lo > hi {
+		return 0, 0
+	}
+	return lo, hi
+}
+
+func delayPosition(_ *pixels.Frame, sc Scales) func(float64) float64 {
+	return func(x float64) float64 { return colormap.Linear(x, sc.TMin, sc.TMax) }
+}
+
+// delayBar labels the colour bar in M after the earliest-leaving light.
+func delayBar(_ *pixels.Frame, sc Scales, p *figure.Panel) {
+	bar := &figure.ColorBar{Colors: colormap.Sequential.Table(256), Label: "t_obs − t_emit − min [M]"}
+	span := sc.TMax - sc.TMin
+	for _, v := range linearTicks(span) {
+		bar.Ticks = append(bar.Ticks, figure.Tick{T: v / span, Label: strconv.FormatFloat(v, 'g', 3, 64)})
+	}
+	p.Bar = bar
+}
+
+// linearTicks returns round values from 0 to span, 3 to 7 of them.
+func linearTicks(span float64) []float64 {
+	if !(span > 0) {
+		return []float64{0}
+	}
+	step := math.Pow(10, math.Floor(math.Log10(span)))
+	for _, f := range []float64{1, 2, 5, 10} {
+		if span/(step*f) <= 6 {
+			step *= f
+			break
+		}
+	}
+	var out []float64
+	for v := 0.0; v <= span*(1+1e-9); v += step {
+		out = append(out, v)
+	}
+	return out
+}
