@@ -42,9 +42,12 @@ type Map struct {
 	Title string       // figure title
 	Scale colormap.Map // continuous colour scale; the zero Map for categorical maps
 
-	// classify sets class[k] and t[k] for every pixel of the frame, with
-	// the scales already completed from the frame.
-	classify func(f *pixels.Frame, sc Scales, class []Class, t []float64)
+	// needs is the set of per-order records the map reads.
+	needs pixels.Keep
+	// pixel returns the function that places pixel k of the frame on the
+	// map (its class and, for OnScale and Category, t), with the scales
+	// already completed from the frame.
+	pixel func(f *pixels.Frame, sc Scales) func(k int) (Class, float64)
 	// palette is the colour table of the map's 8-bit images, laid out
 	// for indexOf.
 	palette func() color.Palette
@@ -56,21 +59,21 @@ type Map struct {
 // table lists every map, in the order of scene.MapNames.
 var table = []Map{
 	{
-		Name: "redshift", Title: "redshift factor g", Scale: colormap.Redshift,
-		classify: onScale(func(f *pixels.Frame) []float32 { return f.FirstSeen(f.G) },
+		Name: "redshift", Title: "redshift factor g", Scale: colormap.Redshift, needs: pixels.KeepG,
+		pixel: onScale(func(f *pixels.Frame, k int) float32 { return f.FirstSeenAt(f.G, k) },
 			func(f *pixels.Frame, sc Scales) func(float64) float64 { return sc.GPosition }),
 		palette:  scalePalette(colormap.Redshift),
 		decorate: redshiftBar,
 	},
 	{
-		Name: "intensity", Title: "observed line intensity", Scale: colormap.Sequential,
-		classify: onScale(func(f *pixels.Frame) []float32 { return f.Total(f.Line) }, intensityPosition),
+		Name: "intensity", Title: "observed line intensity", Scale: colormap.Sequential, needs: pixels.KeepLine,
+		pixel:    onScale(func(f *pixels.Frame, k int) float32 { return f.TotalAt(f.Line, k) }, intensityPosition),
 		palette:  scalePalette(colormap.Sequential),
 		decorate: intensityBar,
 	},
 	{
-		Name: "radius", Title: "source radius", Scale: colormap.Sequential,
-		classify: onScale(func(f *pixels.Frame) []float32 { return f.FirstSeen(f.R) },
+		Name: "radius", Title: "source radius", Scale: colormap.Sequential, needs: pixels.KeepR,
+		pixel: onScale(func(f *pixels.Frame, k int) float32 { return f.FirstSeenAt(f.R, k) },
 			func(f *pixels.Frame, sc Scales) func(float64) float64 {
 				return func(x float64) float64 { return colormap.Log(x, sc.RMin, sc.RMax) }
 			}),
@@ -79,13 +82,13 @@ var table = []Map{
 	},
 	{
 		Name: "order", Title: "image order seen first",
-		classify: classifyOrder,
+		pixel:    orderPixel,
 		palette:  orderPalette,
 		decorate: orderBar,
 	},
 	{
 		Name: "shadow", Title: "shadow: captured photons and the critical curve",
-		classify: classifyShadow,
+		pixel:    shadowPixel,
 		palette:  func() color.Palette { return color.Palette{colormap.NoHit, colormap.Shadow, EscapedColor, EdgeColor} },
 		decorate: shadowDecoration,
 	},
@@ -110,6 +113,10 @@ func Lookup(name string) (Map, error) {
 	return Map{}, fmt.Errorf("no map named %q (maps: %v)", name, Names())
 }
 
+// Needs returns the per-order records of a frame that the map reads
+// (pixels.Keep); its images and figure need a frame that has them.
+func (m Map) Needs() pixels.Keep { return m.needs }
+
 // Classify places every pixel of the frame on the map with the scales sc
 // (completed from the frame where zero): for OnScale pixels t is the
 // position on the colour scale in [0, 1], for Category pixels the image
@@ -117,7 +124,10 @@ func Lookup(name string) (Map, error) {
 func (m Map) Classify(f *pixels.Frame, sc Scales) (class []Class, t []float64) {
 	class = make([]Class, f.W*f.H)
 	t = make([]float64, f.W*f.H)
-	m.classify(f, sc.Fill(f), class, t)
+	at := m.pixel(f, sc.Fill(f))
+	for k := range class {
+		class[k], t[k] = at(k)
+	}
 	return class, t
 }
 
@@ -166,10 +176,12 @@ func (m Map) Palette() color.Palette { return m.palette() }
 
 // Image returns the pixel-exact colour image of the map (row 0 at the top).
 func (m Map) Image(f *pixels.Frame, sc Scales) *image.RGBA {
-	class, t := m.Classify(f, sc)
 	img := image.NewRGBA(image.Rect(0, 0, f.W, f.H))
-	for k, c := range class {
-		img.SetRGBA(k%f.W, k/f.W, m.colour(c, t[k]))
+	at := m.pixel(f, sc.Fill(f))
+	for k := 0; k < f.W*f.H; k++ {
+		c := m.colour(at(k))
+		p := img.Pix[4*k : 4*k+4 : 4*k+4] // row stride = 4 f.W
+		p[0], p[1], p[2], p[3] = c.R, c.G, c.B, c.A
 	}
 	return img
 }
@@ -179,9 +191,9 @@ func (m Map) Image(f *pixels.Frame, sc Scales) *image.RGBA {
 // is ever quantised from RGB. It is the source of the sweep's GIFs.
 func (m Map) Indexed(f *pixels.Frame, sc Scales) *image.Paletted {
 	img := image.NewPaletted(image.Rect(0, 0, f.W, f.H), m.Palette())
-	class, t := m.Classify(f, sc)
-	for k, c := range class {
-		img.Pix[k] = indexOf(c, t[k]) // row stride = f.W
+	at := m.pixel(f, sc.Fill(f))
+	for k := range img.Pix {
+		img.Pix[k] = indexOf(at(k)) // row stride = f.W
 	}
 	return img
 }
@@ -189,15 +201,14 @@ func (m Map) Indexed(f *pixels.Frame, sc Scales) *image.Paletted {
 // onScale classifies a map that shows one quantity on a continuous scale:
 // pixels with a value are OnScale at position(value); others are NoDisk
 // or Horizon by the photon's fate.
-func onScale(value func(*pixels.Frame) []float32, position func(*pixels.Frame, Scales) func(float64) float64) func(*pixels.Frame, Scales, []Class, []float64) {
-	return func(f *pixels.Frame, sc Scales, class []Class, t []float64) {
-		v := value(f)
+func onScale(value func(f *pixels.Frame, k int) float32, position func(*pixels.Frame, Scales) func(float64) float64) func(*pixels.Frame, Scales) func(int) (Class, float64) {
+	return func(f *pixels.Frame, sc Scales) func(int) (Class, float64) {
 		pos := position(f, sc)
-		for k := range class {
-			class[k] = fateClass(f, k)
-			if x := float64(v[k]); !math.IsNaN(x) {
-				class[k], t[k] = OnScale, pos(x)
+		return func(k int) (Class, float64) {
+			if x := float64(value(f, k)); !math.IsNaN(x) {
+				return OnScale, pos(x)
 			}
+			return fateClass(f, k), 0
 		}
 	}
 }
@@ -219,24 +230,24 @@ func fateClass(f *pixels.Frame, k int) Class {
 	return NoDisk
 }
 
-func classifyOrder(f *pixels.Frame, _ Scales, class []Class, t []float64) {
-	for k := range class {
-		class[k] = fateClass(f, k)
+func orderPixel(f *pixels.Frame, _ Scales) func(int) (Class, float64) {
+	return func(k int) (Class, float64) {
 		if o := f.First[k]; o >= 0 {
-			class[k], t[k] = Category, float64(o)
+			return Category, float64(o)
 		}
+		return fateClass(f, k), 0
 	}
 }
 
-func classifyShadow(f *pixels.Frame, _ Scales, class []Class, _ []float64) {
-	for k := range class {
-		class[k] = Escaped
-		if f.Fate[k] == raytrace.Captured {
-			class[k] = Horizon
-			if onEdge(f, k) {
-				class[k] = Edge
-			}
+func shadowPixel(f *pixels.Frame, _ Scales) func(int) (Class, float64) {
+	return func(k int) (Class, float64) {
+		if f.Fate[k] != raytrace.Captured {
+			return Escaped, 0
 		}
+		if onEdge(f, k) {
+			return Edge, 0
+		}
+		return Horizon, 0
 	}
 }
 

@@ -39,7 +39,7 @@ type Summary struct {
 // manifest.toml (the effective scene). On any error nothing new is left
 // behind.
 func Run(ctx context.Context, r scene.Resolved, opt Options) (Summary, error) {
-	f, err := pixels.RenderScene(ctx, r, opt.Progress)
+	f, err := pixels.RenderScene(ctx, r, opt.Progress, Needs(Artifacts(r.Output, Set{Band: opt.Band, Manifest: true})))
 	if err != nil {
 		return Summary{}, err
 	}

@@ -21,7 +21,7 @@ var hookStaged func(index int, name string)
 // cancelled ctx leaves none of them behind. It returns their records,
 // sorted by name.
 func (p *Plan) writeFrame(ctx context.Context, pt Point, sc maps.Scales, version string) ([]fileRecord, error) {
-	f, err := pixels.RenderScene(ctx, pt.Scene, nil)
+	f, err := pixels.RenderScene(ctx, pt.Scene, nil, outputs.Needs(p.artifacts(pt.Index)))
 	if err != nil {
 		return nil, err
 	}
