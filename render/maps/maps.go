@@ -61,7 +61,7 @@ var table = []Map{
 	{
 		Name: "redshift", Title: "redshift factor g", Scale: colormap.Redshift, needs: pixels.KeepG,
 		pixel: onScale(func(f *pixels.Frame, k int) float32 { return f.FirstSeenAt(f.G, k) },
-			func(f *pixels.Frame, sc Scales) func(float64) float64 { return sc.GPosition }),
+			func(f *pixels.Frame, sc Scales) func(float64) float64 { return sc.gPositioner() }),
 		palette:  scalePalette(colormap.Redshift),
 		decorate: redshiftBar,
 	},
@@ -74,9 +74,7 @@ var table = []Map{
 	{
 		Name: "radius", Title: "source radius", Scale: colormap.Sequential, needs: pixels.KeepR,
 		pixel: onScale(func(f *pixels.Frame, k int) float32 { return f.FirstSeenAt(f.R, k) },
-			func(f *pixels.Frame, sc Scales) func(float64) float64 {
-				return func(x float64) float64 { return colormap.Log(x, sc.RMin, sc.RMax) }
-			}),
+			func(f *pixels.Frame, sc Scales) func(float64) float64 { return colormap.LogScale(sc.RMin, sc.RMax) }),
 		palette:  scalePalette(colormap.Sequential),
 		decorate: radiusDecoration,
 	},
@@ -177,13 +175,22 @@ func (m Map) Palette() color.Palette { return m.palette() }
 // Image returns the pixel-exact colour image of the map (row 0 at the top).
 func (m Map) Image(f *pixels.Frame, sc Scales) *image.RGBA {
 	img := image.NewRGBA(image.Rect(0, 0, f.W, f.H))
+	m.Draw(img, f, sc)
+	return img
+}
+
+// Draw draws the map's Image into img, which must be f.W × f.H pixels
+// with its origin at (0, 0) (a buffer reused from frame to frame).
+func (m Map) Draw(img *image.RGBA, f *pixels.Frame, sc Scales) {
+	if img.Rect != image.Rect(0, 0, f.W, f.H) {
+		panic(fmt.Sprintf("maps: Draw into a %v image for a %d×%d frame", img.Rect, f.W, f.H))
+	}
 	at := m.pixel(f, sc.Fill(f))
 	for k := 0; k < f.W*f.H; k++ {
 		c := m.colour(at(k))
 		p := img.Pix[4*k : 4*k+4 : 4*k+4] // row stride = 4 f.W
 		p[0], p[1], p[2], p[3] = c.R, c.G, c.B, c.A
 	}
-	return img
 }
 
 // Indexed returns the map as an 8-bit palette image (Palette): every
@@ -219,8 +226,7 @@ func intensityPosition(f *pixels.Frame, sc Scales) func(float64) float64 {
 	if f.Res.Output.IntensityScale == "linear" {
 		return func(x float64) float64 { return colormap.Linear(x, 0, sc.IMax) }
 	}
-	lo := sc.IMax * math.Pow(10, -sc.IDecades)
-	return func(x float64) float64 { return colormap.Log(x, lo, sc.IMax) }
+	return colormap.LogScale(sc.IMax*math.Pow(10, -sc.IDecades), sc.IMax)
 }
 
 func fateClass(f *pixels.Frame, k int) Class {

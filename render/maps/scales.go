@@ -83,6 +83,18 @@ func (s Scales) GPosition(g float64) float64 {
 	return math.Min(1, 0.5*(1+math.Log(g)/math.Log(s.GMax)))
 }
 
+// gPositioner returns GPosition with the logarithms of GMin and GMax
+// taken once: the same values, for per-pixel use.
+func (s Scales) gPositioner() func(g float64) float64 {
+	lmin, lmax := math.Log(s.GMin), math.Log(s.GMax)
+	return func(g float64) float64 {
+		if g < 1 {
+			return math.Max(0, 0.5*(1-math.Log(g)/lmin))
+		}
+		return math.Min(1, 0.5*(1+math.Log(g)/lmax))
+	}
+}
+
 // niceRatios returns tick values of g between GMin and GMax, at least
 // 0.07 apart on the colour bar, always including g = 1.
 func niceRatios(sc Scales) []float64 {

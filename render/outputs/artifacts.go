@@ -158,8 +158,19 @@ func Needs(arts []Artifact) pixels.Keep {
 // task is one piece of Write's work done on the worker pool; done is
 // closed when it has run.
 type task struct {
-	run  func()
+	run  func(s *scratch)
 	done chan struct{}
+}
+
+// scratch is one worker's map image, reused from map to map.
+type scratch struct{ img *image.RGBA }
+
+// image returns the worker's w × h image.
+func (s *scratch) image(w, h int) *image.RGBA {
+	if s.img == nil || s.img.Rect != image.Rect(0, 0, w, h) {
+		s.img = image.NewRGBA(image.Rect(0, 0, w, h))
+	}
+	return s.img
 }
 
 // Write produces every artifact of the job and hands each to put, in the
@@ -176,7 +187,7 @@ func Write(ctx context.Context, arts []Artifact, job Job, put Put) error {
 	}
 	ctx, cancel := context.WithCancel(ctx)
 	var tasks []*task
-	add := func(run func()) *task {
+	add := func(run func(*scratch)) *task {
 		t := &task{run: run, done: make(chan struct{})}
 		tasks = append(tasks, t)
 		return t
@@ -186,7 +197,7 @@ func Write(ctx context.Context, arts []Artifact, job Job, put Put) error {
 	var specTask *task
 	for _, a := range arts {
 		if a.Kind == SpectrumCSV || a.Kind == SpectrumFigure {
-			specTask = add(func() { spec = f.Spectrum() })
+			specTask = add(func(*scratch) { spec = f.Spectrum() })
 			break
 		}
 	}
@@ -220,14 +231,14 @@ func Write(ctx context.Context, arts []Artifact, job Job, put Put) error {
 	}
 	for _, name := range order {
 		idx := byMap[name]
-		t := add(func() { mapImages(arts, idx, job, encode) })
+		t := add(func(s *scratch) { mapImages(arts, idx, job, s, encode) })
 		for _, i := range idx {
 			producer[i] = t
 		}
 	}
 	for i, a := range arts {
 		if isImage(a.Kind) && producer[i] == nil {
-			producer[i] = add(func() {
+			producer[i] = add(func(*scratch) {
 				if a.Kind == SpectrumFigure {
 					<-specTask.done // an earlier task: already running or done
 				}
@@ -240,8 +251,8 @@ func Write(ctx context.Context, arts []Artifact, job Job, put Put) error {
 	pool := make(chan struct{})
 	go func() {
 		defer close(pool)
-		workers.Each(ctx, len(tasks), func() struct{} { return struct{}{} }, func(n int, _ struct{}) {
-			tasks[n].run()
+		workers.Each(ctx, len(tasks), func() *scratch { return &scratch{} }, func(n int, s *scratch) {
+			tasks[n].run(s)
 			close(tasks[n].done)
 		})
 	}()
@@ -300,7 +311,7 @@ func Write(ctx context.Context, arts []Artifact, job Job, put Put) error {
 
 // mapImages draws one map once and makes its artifacts arts[i], i in idx
 // (all of the same map), with job.Scales complete.
-func mapImages(arts []Artifact, idx []int, job Job, encode func(int, image.Image, error)) {
+func mapImages(arts []Artifact, idx []int, job Job, s *scratch, encode func(int, image.Image, error)) {
 	f := job.Frame
 	m, err := maps.Lookup(arts[idx[0]].Map)
 	if err != nil {
@@ -317,7 +328,8 @@ func mapImages(arts []Artifact, idx []int, job Job, encode func(int, image.Image
 			continue
 		}
 		if img == nil {
-			img = m.Image(f, job.Scales)
+			img = s.image(f.W, f.H)
+			m.Draw(img, f, job.Scales)
 		}
 		if a.Kind == MapBare {
 			encode(i, img, nil)
