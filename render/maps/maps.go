@@ -48,6 +48,10 @@ type Map struct {
 	// map (its class and, for OnScale and Category, t), with the scales
 	// already completed from the frame.
 	pixel func(f *pixels.Frame, sc Scales) func(k int) (Class, float64)
+	// scale, for a map of one quantity on a continuous scale, gives that
+	// quantity row by row and its position on the scale (Draw's fast
+	// path; pixel is made from it).
+	scale *onScaleMap
 	// palette is the colour table of the map's 8-bit images, laid out
 	// for indexOf.
 	palette func() color.Palette
@@ -60,21 +64,21 @@ type Map struct {
 var table = []Map{
 	{
 		Name: "redshift", Title: "redshift factor g", Scale: colormap.Redshift, needs: pixels.KeepG,
-		pixel: onScale(func(f *pixels.Frame, k int) float32 { return f.FirstSeenAt(f.G, k) },
-			func(f *pixels.Frame, sc Scales) func(float64) float64 { return sc.gPositioner() }),
+		scale: &onScaleMap{value: firstSeenRow(func(f *pixels.Frame) [][]float32 { return f.G }),
+			position: func(f *pixels.Frame, sc Scales) func(float64) float64 { return sc.gPositioner() }},
 		palette:  scalePalette(colormap.Redshift),
 		decorate: redshiftBar,
 	},
 	{
 		Name: "intensity", Title: "observed line intensity", Scale: colormap.Sequential, needs: pixels.KeepLine,
-		pixel:    onScale(func(f *pixels.Frame, k int) float32 { return f.TotalAt(f.Line, k) }, intensityPosition),
+		scale:    &onScaleMap{value: totalRow(func(f *pixels.Frame) [][]float32 { return f.Line }), position: intensityPosition},
 		palette:  scalePalette(colormap.Sequential),
 		decorate: intensityBar,
 	},
 	{
 		Name: "radius", Title: "source radius", Scale: colormap.Sequential, needs: pixels.KeepR,
-		pixel: onScale(func(f *pixels.Frame, k int) float32 { return f.FirstSeenAt(f.R, k) },
-			func(f *pixels.Frame, sc Scales) func(float64) float64 { return colormap.LogScale(sc.RMin, sc.RMax) }),
+		scale: &onScaleMap{value: firstSeenRow(func(f *pixels.Frame) [][]float32 { return f.R }),
+			position: func(f *pixels.Frame, sc Scales) func(float64) float64 { return colormap.LogScale(sc.RMin, sc.RMax) }},
 		palette:  scalePalette(colormap.Sequential),
 		decorate: radiusDecoration,
 	},
@@ -90,6 +94,14 @@ var table = []Map{
 		palette:  func() color.Palette { return color.Palette{colormap.NoHit, colormap.Shadow, EscapedColor, EdgeColor} },
 		decorate: shadowDecoration,
 	},
+}
+
+func init() {
+	for i := range table {
+		if o := table[i].scale; o != nil {
+			table[i].pixel = o.pixel
+		}
+	}
 }
 
 // Names returns the names of every map, in table order.
@@ -185,11 +197,34 @@ func (m Map) Draw(img *image.RGBA, f *pixels.Frame, sc Scales) {
 	if img.Rect != image.Rect(0, 0, f.W, f.H) {
 		panic(fmt.Sprintf("maps: Draw into a %v image for a %d×%d frame", img.Rect, f.W, f.H))
 	}
-	at := m.pixel(f, sc.Fill(f))
-	for k := 0; k < f.W*f.H; k++ {
-		c := m.colour(at(k))
+	sc = sc.Fill(f)
+	set := func(k int, c color.RGBA) {
 		p := img.Pix[4*k : 4*k+4 : 4*k+4] // row stride = 4 f.W
 		p[0], p[1], p[2], p[3] = c.R, c.G, c.B, c.A
+	}
+	if o := m.scale; o != nil {
+		// The colours of pixel and colour, a row at a time.
+		pos := o.position(f, sc)
+		row := make([]float32, f.W)
+		for j := 0; j < f.H; j++ {
+			o.value(f, j, row)
+			for i, v := range row {
+				k := j*f.W + i
+				switch x := float64(v); {
+				case !math.IsNaN(x):
+					set(k, m.Scale.At(pos(x)))
+				case f.Fate[k] == raytrace.Captured:
+					set(k, colormap.Shadow)
+				default:
+					set(k, colormap.NoHit)
+				}
+			}
+		}
+		return
+	}
+	at := m.pixel(f, sc)
+	for k := 0; k < f.W*f.H; k++ {
+		set(k, m.colour(at(k)))
 	}
 }
 
@@ -205,17 +240,45 @@ func (m Map) Indexed(f *pixels.Frame, sc Scales) *image.Paletted {
 	return img
 }
 
-// onScale classifies a map that shows one quantity on a continuous scale:
+// onScaleMap is a map that shows one quantity on a continuous scale:
 // pixels with a value are OnScale at position(value); others are NoDisk
 // or Horizon by the photon's fate.
-func onScale(value func(f *pixels.Frame, k int) float32, position func(*pixels.Frame, Scales) func(float64) float64) func(*pixels.Frame, Scales) func(int) (Class, float64) {
-	return func(f *pixels.Frame, sc Scales) func(int) (Class, float64) {
-		pos := position(f, sc)
-		return func(k int) (Class, float64) {
-			if x := float64(value(f, k)); !math.IsNaN(x) {
-				return OnScale, pos(x)
-			}
-			return fateClass(f, k), 0
+type onScaleMap struct {
+	value    func(f *pixels.Frame, j int, row []float32) // the quantity along row j (NaN: no value)
+	position func(*pixels.Frame, Scales) func(float64) float64
+}
+
+func (o *onScaleMap) pixel(f *pixels.Frame, sc Scales) func(int) (Class, float64) {
+	pos := o.position(f, sc)
+	row, j := make([]float32, f.W), -1
+	return func(k int) (Class, float64) {
+		if k/f.W != j {
+			j = k / f.W
+			o.value(f, j, row)
+		}
+		if x := float64(row[k%f.W]); !math.IsNaN(x) {
+			return OnScale, pos(x)
+		}
+		return fateClass(f, k), 0
+	}
+}
+
+// firstSeenRow gives the record q (f.R or f.G) of the first order seen.
+func firstSeenRow(q func(*pixels.Frame) [][]float32) func(*pixels.Frame, int, []float32) {
+	return func(f *pixels.Frame, j int, row []float32) {
+		v, k0 := q(f), j*f.W
+		for i := range row {
+			row[i] = f.FirstSeenAt(v, k0+i)
+		}
+	}
+}
+
+// totalRow gives the record q (f.Line) summed over the orders seen.
+func totalRow(q func(*pixels.Frame) [][]float32) func(*pixels.Frame, int, []float32) {
+	return func(f *pixels.Frame, j int, row []float32) {
+		v, k0 := q(f), j*f.W
+		for i := range row {
+			row[i] = f.TotalAt(v, k0+i)
 		}
 	}
 }

@@ -1,10 +1,15 @@
 package outputs
 
 import (
+	"bytes"
 	"context"
+	"image"
+	"image/png"
 	"io"
 	"testing"
 
+	"kerrscope/render/internal/figure"
+	"kerrscope/render/maps"
 	"kerrscope/render/pixels"
 	"kerrscope/scene"
 )
@@ -61,6 +66,56 @@ func BenchmarkWrite2048(b *testing.B) {
 	for b.Loop() {
 		if err := Write(context.Background(), arts, Job{Frame: f, Version: "bench"}, put); err != nil {
 			b.Fatal(err)
+		}
+	}
+}
+
+// BenchmarkEncodePNG compares PNG encoders on the images of a 2048² run:
+// the pixel-exact redshift map (smooth colours), the order map (a few
+// flat colours) and the decorated redshift figure. "ours" is
+// figure.EncodePNG; the others are image/png at its compression levels.
+// It reports the file size.
+//
+//	go test ./render/outputs -run X -bench EncodePNG -benchtime 3x
+func BenchmarkEncodePNG(b *testing.B) {
+	r := benchScene(b, 2048)
+	f, err := pixels.Render(context.Background(), r, nil)
+	if err != nil {
+		b.Fatal(err)
+	}
+	sc := maps.Scales{}.Fill(f)
+	red, _ := maps.Lookup("redshift")
+	ord, _ := maps.Lookup("order")
+	fig, err := figure.DrawPanel(red.Panel(f, sc), 0)
+	if err != nil {
+		b.Fatal(err)
+	}
+	images := []struct {
+		name string
+		img  image.Image
+	}{{"redshift-bare", red.Image(f, sc)}, {"order-bare", ord.Image(f, sc)}, {"redshift-figure", fig}}
+	encoders := []struct {
+		name string
+		enc  func(io.Writer, image.Image) error
+	}{
+		{"ours", figure.EncodePNG},
+		{"png-BestSpeed", (&png.Encoder{CompressionLevel: png.BestSpeed}).Encode},
+		{"png-Default", (&png.Encoder{CompressionLevel: png.DefaultCompression}).Encode},
+		{"png-Best", (&png.Encoder{CompressionLevel: png.BestCompression}).Encode},
+	}
+	for _, im := range images {
+		for _, e := range encoders {
+			b.Run(im.name+"/"+e.name, func(b *testing.B) {
+				var size int
+				for b.Loop() {
+					var buf bytes.Buffer
+					if err := e.enc(&buf, im.img); err != nil {
+						b.Fatal(err)
+					}
+					size = buf.Len()
+				}
+				b.ReportMetric(float64(size)/1024, "KB")
+			})
 		}
 	}
 }
