@@ -55,13 +55,20 @@ func BenchmarkRun2048Spectrum(b *testing.B) { benchRun(b, benchScene(b, 2048, "c
 // default 2048² run, from a frame rendered once, written to io.Discard.
 //
 //	go test ./render/outputs -run X -bench Write2048 -benchtime 3x -cpuprofile cpu.out
-func BenchmarkWrite2048(b *testing.B) {
-	r := benchScene(b, 2048)
+func BenchmarkWrite2048(b *testing.B) { benchWrite(b, 2048, Set{Manifest: true}) }
+
+// BenchmarkWriteFrame512 is the output stage of one 512² sweep frame:
+// every map as figure, pixel-exact and palette PNG, FITS, spectrum CSV
+// and figure.
+func BenchmarkWriteFrame512(b *testing.B) { benchWrite(b, 512, Set{Prefix: "frame-0000-", Indexed: true}) }
+
+func benchWrite(b *testing.B, n int, set Set) {
+	r := benchScene(b, n)
 	f, err := pixels.Render(context.Background(), r, nil)
 	if err != nil {
 		b.Fatal(err)
 	}
-	arts := Artifacts(r.Output, Set{Manifest: true})
+	arts := Artifacts(r.Output, set)
 	put := func(_ string, write func(io.Writer) error) error { return write(io.Discard) }
 	for b.Loop() {
 		if err := Write(context.Background(), arts, Job{Frame: f, Version: "bench"}, put); err != nil {

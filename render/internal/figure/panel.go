@@ -210,10 +210,12 @@ func drawPanel(p Panel, zoom float64) (*image.RGBA, image.Rectangle, error) {
 	if mw > maxSide || mh > maxSide {
 		return nil, image.Rectangle{}, fmt.Errorf("figure: map of %v×%v pixels is too large", mw, mh)
 	}
-	st, err := newStyles(0.022 * math.Max(mw, mh))
+	em := 0.022 * math.Max(mw, mh)
+	st, err := getStyles(em)
 	if err != nil {
 		return nil, image.Rectangle{}, err
 	}
+	defer putStyles(em, st)
 
 	ax := &axes{st: st, w: mw, h: mh}
 	bottom := fitScale(st, mw, true, func(n int) scale {
