@@ -60,7 +60,9 @@ func BenchmarkWrite2048(b *testing.B) { benchWrite(b, 2048, Set{Manifest: true})
 // BenchmarkWriteFrame512 is the output stage of one 512² sweep frame:
 // every map as figure, pixel-exact and palette PNG, FITS, spectrum CSV
 // and figure.
-func BenchmarkWriteFrame512(b *testing.B) { benchWrite(b, 512, Set{Prefix: "frame-0000-", Indexed: true}) }
+func BenchmarkWriteFrame512(b *testing.B) {
+	benchWrite(b, 512, Set{Prefix: "frame-0000-", Indexed: true})
+}
 
 func benchWrite(b *testing.B, n int, set Set) {
 	r := benchScene(b, n)
