@@ -225,9 +225,9 @@ const (
 )
 
 // BytesPerPixel estimates the renderer's peak memory per pixel for n
-// orders: the records (2 + 16n bytes), the FITS images built for writing
-// (4 bytes for each of 6 + 3n maps) and colour images (about 24 bytes).
-func BytesPerPixel(orders int) int64 { return int64(2 + 16*orders + 4*(6+3*orders) + 24) }
+// orders with every output: the records (2 + 16n bytes) and the output
+// stage's images (about 18 bytes), as measured (README, "Speed").
+func BytesPerPixel(orders int) int64 { return int64(20 + 16*orders) }
 
 // Resolve validates the scene and computes its derived quantities. The
 // messages name the scene key (its flag is the same key after the dot, as
