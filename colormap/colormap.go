@@ -285,7 +285,18 @@ func toRGBA(col colorful.Color) color.RGBA {
 	return color.RGBA{R: r, G: g, B: b, A: 255}
 }
 
-// clamp01 limits v to [0, 1].
+// clamp01 limits v to [0, 1]: v ≤ 0 (either zero, -Inf) gives +0, v ≥ 1
+// gives 1, NaN stays NaN; the same as math.Max(0, math.Min(1, v)), in
+// plain comparisons that the compiler inlines (it runs for every pixel).
 func clamp01(v float64) float64 {
-	return math.Max(0, math.Min(1, v))
+	switch {
+	case v > 0:
+		if v < 1 {
+			return v
+		}
+		return 1
+	case v <= 0:
+		return 0
+	}
+	return v // NaN
 }

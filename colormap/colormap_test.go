@@ -547,3 +547,33 @@ func TestStripsPNG(t *testing.T) {
 		}
 	})
 }
+
+// LogScale is Log with the bounds' logarithms taken once: the same bits
+// for every value, bound and special case.
+func TestLogScaleEqualsLog(t *testing.T) {
+	bounds := [][2]float64{{1, 30}, {30, 1}, {2.3e-5, 0.23}, {1, 1}, {0, 1}, {-1, 2}, {1, math.Inf(1)}, {math.NaN(), 1}}
+	vals := []float64{0, -1, 1e-300, 1e-5, 0.5, 1, 2.3e-5, 0.23, 3, 30, 31, 1e300, math.Inf(1), math.Inf(-1), math.NaN()}
+	for v := 1e-6; v < 100; v *= 1.0137 {
+		vals = append(vals, v)
+	}
+	for _, b := range bounds {
+		f := LogScale(b[0], b[1])
+		for _, v := range vals {
+			want, got := Log(v, b[0], b[1]), f(v)
+			if math.Float64bits(want) != math.Float64bits(got) && !(math.IsNaN(want) && math.IsNaN(got)) {
+				t.Errorf("LogScale(%v, %v)(%v) = %v, Log gives %v", b[0], b[1], v, got, want)
+			}
+		}
+	}
+}
+
+// clamp01 is math.Max(0, math.Min(1, v)) bit for bit, signed zeros,
+// infinities and NaN included.
+func TestClamp01(t *testing.T) {
+	for _, v := range []float64{math.NaN(), math.Inf(-1), -2, -1e-300, math.Copysign(0, -1), 0, 5e-324, 0.3, 1 - 1e-16, 1, 1 + 1e-15, 7, math.Inf(1)} {
+		want := math.Max(0, math.Min(1, v))
+		if got := clamp01(v); math.Float64bits(got) != math.Float64bits(want) && !(math.IsNaN(got) && math.IsNaN(want)) {
+			t.Errorf("clamp01(%v) = %v, want %v", v, got, want)
+		}
+	}
+}

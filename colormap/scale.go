@@ -33,6 +33,33 @@ func Log(v, lo, hi float64) float64 {
 	return clamp01((math.Log(v) - math.Log(lo)) / (math.Log(hi) - math.Log(lo)))
 }
 
+// LogScale returns Log with fixed bounds: LogScale(lo, hi)(v) equals
+// Log(v, lo, hi) for every v, bit for bit, with the logarithms of the
+// bounds taken once (for per-pixel use).
+func LogScale(lo, hi float64) func(v float64) float64 {
+	if !finite(lo) || !finite(hi) || lo <= 0 || hi <= 0 {
+		return func(float64) float64 { return math.NaN() }
+	}
+	if lo == hi {
+		return func(v float64) float64 {
+			if math.IsNaN(v) {
+				return math.NaN()
+			}
+			return 0.5
+		}
+	}
+	llo, lhi := math.Log(lo), math.Log(hi)
+	return func(v float64) float64 {
+		if math.IsNaN(v) {
+			return math.NaN()
+		}
+		if v <= 0 {
+			v = 0
+		}
+		return clamp01((math.Log(v) - llo) / (lhi - llo))
+	}
+}
+
 // LogRatio maps a positive ratio g centred on 1, such as a redshift factor,
 // to t = 0.5 + 0.5·ln g / ln gmax clamped to [0, 1]: g = 1 maps to 0.5,
 // g = gmax to 1 and g = 1/gmax to 0, so that a ratio and its reciprocal lie

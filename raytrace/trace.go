@@ -323,6 +323,8 @@ type radial struct {
 	scale, x0, m float64 // X = scale τ - x0; parameter m
 	mc           float64 // 1 - m
 	c0, r21      float64 // case II: cn X0 = (A' - B')/(A' + B'), r2 - r1
+	// sn, cn, dn of X0 (case I: of F0), set once for at.
+	sn0, cn0, dn0 float64
 }
 
 // newRadialI sets up case I, four real roots (Gralla & Lupsasca 2020,
@@ -339,7 +341,8 @@ func newRadialI(q quartic, rh float64, escapes bool) radial {
 	f0 := ellipFsc(r31/r41, q.r43/r41, mc)
 	scale := math.Sqrt(r31*r42) / 2
 	rd := radial{cs: FourReal, r3: q.r3, r4: q.r4, r31: r31, r41: r41, r42: r42, r43: q.r43,
-		scale: scale, x0: f0, m: m, mc: mc, turn: math.Inf(1)}
+		scale: scale, x0: f0, m: m, mc: mc, turn: math.Inf(1),
+		sn0: math.Sqrt(r31 / r41), cn0: math.Sqrt(q.r43 / r41), dn0: math.Sqrt(q.r43 / r42)}
 	if escapes {
 		rd.turn = f0 / scale
 		rd.total = 2 * f0 / scale
@@ -385,6 +388,8 @@ func newRadialII(q quartic, rh float64) radial {
 		den0: bp - ap, den1: bp + ap,
 		scale: scale, x0: x0, m: m, mc: mc, turn: math.Inf(1),
 		c0: (ap - bp) / (ap + bp), r21: r21}
+	rd.sn0 = math.Sqrt((1 - rd.c0) * (1 + rd.c0))
+	rd.dn0 = math.Sqrt(1 - m*rd.sn0*rd.sn0)
 	cnh := (rd.num0 - rh*rd.den0) / (rh*rd.den1 - rd.num1)
 	rd.total = (x0 - ellipFcos(cnh, mc)) / scale
 	return rd
@@ -409,9 +414,7 @@ func (rd radial) at(tau float64) float64 {
 		}
 		sd, cd, dd := jacobi(d, rd.m, rd.mc)
 		// sn F0 = sqrt(r31/r41), cn F0 = sqrt(r43/r41), dn F0 = sqrt(r43/r42).
-		s0 := math.Sqrt(rd.r31 / rd.r41)
-		c0 := math.Sqrt(rd.r43 / rd.r41)
-		d0 := math.Sqrt(rd.r43 / rd.r42)
+		s0, c0, d0 := rd.sn0, rd.cn0, rd.dn0
 		den := 1 - rd.m*s0*s0*sd*sd
 		snx := (sd*c0*d0 - s0*cd*dd) / den
 		// 1 - cd dd = sd²(1 + m - m sd²)/(1 + cd dd), δ ≤ K.
@@ -421,9 +424,7 @@ func (rd radial) at(tau float64) float64 {
 	}
 	d := rd.scale * tau
 	sd, cd, dd := jacobi(d, rd.m, rd.mc)
-	c0 := rd.c0
-	s0 := math.Sqrt((1 - c0) * (1 + c0))
-	d0 := math.Sqrt(1 - rd.m*s0*s0)
+	c0, s0, d0 := rd.c0, rd.sn0, rd.dn0
 	cm1 := cd - 1
 	if cd > 0 {
 		cm1 = -sd * sd / (1 + cd)

@@ -28,6 +28,18 @@ func delayValues(f *pixels.Frame) []float32 {
 	return f.FirstSeen(f.T)
 }
 
+// delayRow gives the first-seen delays along row j (NaN where none is
+// seen, or everywhere if the frame has no timing).
+func delayRow(f *pixels.Frame, j int, row []float32) {
+	if f.T == nil {
+		for i := range row {
+			row[i] = float32(math.NaN())
+		}
+		return
+	}
+	firstSeenRow(func(f *pixels.Frame) [][]float32 { return f.T })(f, j, row)
+}
+
 // delayRange returns the smallest and largest first-seen delay of the
 // frame (0, 0 if none).
 func delayRange(f *pixels.Frame) (lo, hi float64) {

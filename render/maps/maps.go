@@ -42,9 +42,16 @@ type Map struct {
 	Title string       // figure title
 	Scale colormap.Map // continuous colour scale; the zero Map for categorical maps
 
-	// classify sets class[k] and t[k] for every pixel of the frame, with
-	// the scales already completed from the frame.
-	classify func(f *pixels.Frame, sc Scales, class []Class, t []float64)
+	// needs is the set of per-order records the map reads.
+	needs pixels.Keep
+	// pixel returns the function that places pixel k of the frame on the
+	// map (its class and, for OnScale and Category, t), with the scales
+	// already completed from the frame.
+	pixel func(f *pixels.Frame, sc Scales) func(k int) (Class, float64)
+	// scale, for a map of one quantity on a continuous scale, gives that
+	// quantity row by row and its position on the scale (Draw's fast
+	// path; pixel is made from it).
+	scale *onScaleMap
 	// palette is the colour table of the map's 8-bit images, laid out
 	// for indexOf.
 	palette func() color.Palette
@@ -56,45 +63,51 @@ type Map struct {
 // table lists every map, in the order of scene.MapNames.
 var table = []Map{
 	{
-		Name: "redshift", Title: "redshift factor g", Scale: colormap.Redshift,
-		classify: onScale(func(f *pixels.Frame) []float32 { return f.FirstSeen(f.G) },
-			func(f *pixels.Frame, sc Scales) func(float64) float64 { return sc.GPosition }),
+		Name: "redshift", Title: "redshift factor g", Scale: colormap.Redshift, needs: pixels.KeepG,
+		scale: &onScaleMap{value: firstSeenRow(func(f *pixels.Frame) [][]float32 { return f.G }),
+			position: func(f *pixels.Frame, sc Scales) func(float64) float64 { return sc.gPositioner() }},
 		palette:  scalePalette(colormap.Redshift),
 		decorate: redshiftBar,
 	},
 	{
-		Name: "intensity", Title: "observed line intensity", Scale: colormap.Sequential,
-		classify: onScale(func(f *pixels.Frame) []float32 { return f.Total(f.Line) }, intensityPosition),
+		Name: "intensity", Title: "observed line intensity", Scale: colormap.Sequential, needs: pixels.KeepLine,
+		scale:    &onScaleMap{value: totalRow(func(f *pixels.Frame) [][]float32 { return f.Line }), position: intensityPosition},
 		palette:  scalePalette(colormap.Sequential),
 		decorate: intensityBar,
 	},
 	{
-		Name: "radius", Title: "source radius", Scale: colormap.Sequential,
-		classify: onScale(func(f *pixels.Frame) []float32 { return f.FirstSeen(f.R) },
-			func(f *pixels.Frame, sc Scales) func(float64) float64 {
-				return func(x float64) float64 { return colormap.Log(x, sc.RMin, sc.RMax) }
-			}),
+		Name: "radius", Title: "source radius", Scale: colormap.Sequential, needs: pixels.KeepR,
+		scale: &onScaleMap{value: firstSeenRow(func(f *pixels.Frame) [][]float32 { return f.R }),
+			position: func(f *pixels.Frame, sc Scales) func(float64) float64 { return colormap.LogScale(sc.RMin, sc.RMax) }},
 		palette:  scalePalette(colormap.Sequential),
 		decorate: radiusDecoration,
 	},
 	{
 		Name: "order", Title: "image order seen first",
-		classify: classifyOrder,
+		pixel:    orderPixel,
 		palette:  orderPalette,
 		decorate: orderBar,
 	},
 	{
 		Name: "shadow", Title: "shadow: captured photons and the critical curve",
-		classify: classifyShadow,
+		pixel:    shadowPixel,
 		palette:  func() color.Palette { return color.Palette{colormap.NoHit, colormap.Shadow, EscapedColor, EdgeColor} },
 		decorate: shadowDecoration,
 	},
 	{
 		Name: "delay", Title: "arrival-time delay of the first image seen", Scale: colormap.Sequential,
-		classify: onScale(delayValues, delayPosition),
+		scale:    &onScaleMap{value: delayRow, position: delayPosition},
 		palette:  scalePalette(colormap.Sequential),
 		decorate: delayBar,
 	},
+}
+
+func init() {
+	for i := range table {
+		if o := table[i].scale; o != nil {
+			table[i].pixel = o.pixel
+		}
+	}
 }
 
 // Names returns the names of every map, in table order.
@@ -116,6 +129,10 @@ func Lookup(name string) (Map, error) {
 	return Map{}, fmt.Errorf("no map named %q (maps: %v)", name, Names())
 }
 
+// Needs returns the per-order records of a frame that the map reads
+// (pixels.Keep); its images and figure need a frame that has them.
+func (m Map) Needs() pixels.Keep { return m.needs }
+
 // Classify places every pixel of the frame on the map with the scales sc
 // (completed from the frame where zero): for OnScale pixels t is the
 // position on the colour scale in [0, 1], for Category pixels the image
@@ -123,7 +140,10 @@ func Lookup(name string) (Map, error) {
 func (m Map) Classify(f *pixels.Frame, sc Scales) (class []Class, t []float64) {
 	class = make([]Class, f.W*f.H)
 	t = make([]float64, f.W*f.H)
-	m.classify(f, sc.Fill(f), class, t)
+	at := m.pixel(f, sc.Fill(f))
+	for k := range class {
+		class[k], t[k] = at(k)
+	}
 	return class, t
 }
 
@@ -172,12 +192,46 @@ func (m Map) Palette() color.Palette { return m.palette() }
 
 // Image returns the pixel-exact colour image of the map (row 0 at the top).
 func (m Map) Image(f *pixels.Frame, sc Scales) *image.RGBA {
-	class, t := m.Classify(f, sc)
 	img := image.NewRGBA(image.Rect(0, 0, f.W, f.H))
-	for k, c := range class {
-		img.SetRGBA(k%f.W, k/f.W, m.colour(c, t[k]))
-	}
+	m.Draw(img, f, sc)
 	return img
+}
+
+// Draw draws the map's Image into img, which must be f.W × f.H pixels
+// with its origin at (0, 0) (a buffer reused from frame to frame).
+func (m Map) Draw(img *image.RGBA, f *pixels.Frame, sc Scales) {
+	if img.Rect != image.Rect(0, 0, f.W, f.H) {
+		panic(fmt.Sprintf("maps: Draw into a %v image for a %d×%d frame", img.Rect, f.W, f.H))
+	}
+	sc = sc.Fill(f)
+	set := func(k int, c color.RGBA) {
+		p := img.Pix[4*k : 4*k+4 : 4*k+4] // row stride = 4 f.W
+		p[0], p[1], p[2], p[3] = c.R, c.G, c.B, c.A
+	}
+	if o := m.scale; o != nil {
+		// The colours of pixel and colour, a row at a time.
+		pos := o.position(f, sc)
+		row := make([]float32, f.W)
+		for j := 0; j < f.H; j++ {
+			o.value(f, j, row)
+			for i, v := range row {
+				k := j*f.W + i
+				switch x := float64(v); {
+				case !math.IsNaN(x):
+					set(k, m.Scale.At(pos(x)))
+				case f.Fate[k] == raytrace.Captured:
+					set(k, colormap.Shadow)
+				default:
+					set(k, colormap.NoHit)
+				}
+			}
+		}
+		return
+	}
+	at := m.pixel(f, sc)
+	for k := 0; k < f.W*f.H; k++ {
+		set(k, m.colour(at(k)))
+	}
 }
 
 // Indexed returns the map as an 8-bit palette image (Palette): every
@@ -185,25 +239,52 @@ func (m Map) Image(f *pixels.Frame, sc Scales) *image.RGBA {
 // is ever quantised from RGB. It is the source of the sweep's GIFs.
 func (m Map) Indexed(f *pixels.Frame, sc Scales) *image.Paletted {
 	img := image.NewPaletted(image.Rect(0, 0, f.W, f.H), m.Palette())
-	class, t := m.Classify(f, sc)
-	for k, c := range class {
-		img.Pix[k] = indexOf(c, t[k]) // row stride = f.W
+	at := m.pixel(f, sc.Fill(f))
+	for k := range img.Pix {
+		img.Pix[k] = indexOf(at(k)) // row stride = f.W
 	}
 	return img
 }
 
-// onScale classifies a map that shows one quantity on a continuous scale:
+// onScaleMap is a map that shows one quantity on a continuous scale:
 // pixels with a value are OnScale at position(value); others are NoDisk
 // or Horizon by the photon's fate.
-func onScale(value func(*pixels.Frame) []float32, position func(*pixels.Frame, Scales) func(float64) float64) func(*pixels.Frame, Scales, []Class, []float64) {
-	return func(f *pixels.Frame, sc Scales, class []Class, t []float64) {
-		v := value(f)
-		pos := position(f, sc)
-		for k := range class {
-			class[k] = fateClass(f, k)
-			if x := float64(v[k]); !math.IsNaN(x) {
-				class[k], t[k] = OnScale, pos(x)
-			}
+type onScaleMap struct {
+	value    func(f *pixels.Frame, j int, row []float32) // the quantity along row j (NaN: no value)
+	position func(*pixels.Frame, Scales) func(float64) float64
+}
+
+func (o *onScaleMap) pixel(f *pixels.Frame, sc Scales) func(int) (Class, float64) {
+	pos := o.position(f, sc)
+	row, j := make([]float32, f.W), -1
+	return func(k int) (Class, float64) {
+		if k/f.W != j {
+			j = k / f.W
+			o.value(f, j, row)
+		}
+		if x := float64(row[k%f.W]); !math.IsNaN(x) {
+			return OnScale, pos(x)
+		}
+		return fateClass(f, k), 0
+	}
+}
+
+// firstSeenRow gives the record q (f.R or f.G) of the first order seen.
+func firstSeenRow(q func(*pixels.Frame) [][]float32) func(*pixels.Frame, int, []float32) {
+	return func(f *pixels.Frame, j int, row []float32) {
+		v, k0 := q(f), j*f.W
+		for i := range row {
+			row[i] = f.FirstSeenAt(v, k0+i)
+		}
+	}
+}
+
+// totalRow gives the record q (f.Line) summed over the orders seen.
+func totalRow(q func(*pixels.Frame) [][]float32) func(*pixels.Frame, int, []float32) {
+	return func(f *pixels.Frame, j int, row []float32) {
+		v, k0 := q(f), j*f.W
+		for i := range row {
+			row[i] = f.TotalAt(v, k0+i)
 		}
 	}
 }
@@ -214,8 +295,7 @@ func intensityPosition(f *pixels.Frame, sc Scales) func(float64) float64 {
 	if f.Res.Output.IntensityScale == "linear" {
 		return func(x float64) float64 { return colormap.Linear(x, 0, sc.IMax) }
 	}
-	lo := sc.IMax * math.Pow(10, -sc.IDecades)
-	return func(x float64) float64 { return colormap.Log(x, lo, sc.IMax) }
+	return colormap.LogScale(sc.IMax*math.Pow(10, -sc.IDecades), sc.IMax)
 }
 
 func fateClass(f *pixels.Frame, k int) Class {
@@ -225,24 +305,24 @@ func fateClass(f *pixels.Frame, k int) Class {
 	return NoDisk
 }
 
-func classifyOrder(f *pixels.Frame, _ Scales, class []Class, t []float64) {
-	for k := range class {
-		class[k] = fateClass(f, k)
+func orderPixel(f *pixels.Frame, _ Scales) func(int) (Class, float64) {
+	return func(k int) (Class, float64) {
 		if o := f.First[k]; o >= 0 {
-			class[k], t[k] = Category, float64(o)
+			return Category, float64(o)
 		}
+		return fateClass(f, k), 0
 	}
 }
 
-func classifyShadow(f *pixels.Frame, _ Scales, class []Class, _ []float64) {
-	for k := range class {
-		class[k] = Escaped
-		if f.Fate[k] == raytrace.Captured {
-			class[k] = Horizon
-			if onEdge(f, k) {
-				class[k] = Edge
-			}
+func shadowPixel(f *pixels.Frame, _ Scales) func(int) (Class, float64) {
+	return func(k int) (Class, float64) {
+		if f.Fate[k] != raytrace.Captured {
+			return Escaped, 0
 		}
+		if onEdge(f, k) {
+			return Edge, 0
+		}
+		return Horizon, 0
 	}
 }
 

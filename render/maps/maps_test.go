@@ -2,10 +2,12 @@ package maps
 
 import (
 	"context"
+	"math"
 	"slices"
 	"testing"
 
 	"kerrscope/colormap"
+	"kerrscope/render/internal/figure"
 	"kerrscope/render/pixels"
 	"kerrscope/scene"
 )
@@ -85,4 +87,57 @@ func absDiff(a, b uint32) uint32 {
 		return a - b
 	}
 	return b - a
+}
+
+// gPositioner is GPosition with the logarithms of the bounds taken once:
+// the same bits for every g.
+func TestGPositionerEqualsGPosition(t *testing.T) {
+	for _, sc := range []Scales{{GMin: 0.3, GMax: 1.7}, {GMin: 0.95, GMax: 1.05}, {GMin: 1 / 1.5, GMax: 1.5}} {
+		pos := sc.gPositioner()
+		for g := 0.01; g < 5; g *= 1.0071 {
+			if a, b := sc.GPosition(g), pos(g); math.Float64bits(a) != math.Float64bits(b) {
+				t.Fatalf("%+v: g = %v: gPositioner %v, GPosition %v", sc, g, b, a)
+			}
+		}
+	}
+}
+
+// A map reads only the records it says it needs: from a frame that keeps
+// only those, its image and figure are the same as from a frame that
+// keeps every record.
+func TestMapNeedsAreEnough(t *testing.T) {
+	s := scene.Default()
+	s.Screen.Width, s.Screen.Height = 40, 36
+	r, err := s.Resolve()
+	if err != nil {
+		t.Fatal(err)
+	}
+	full, err := pixels.Render(context.Background(), r, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, name := range scene.MapNames {
+		m, _ := Lookup(name)
+		part, err := pixels.Render(context.Background(), r, nil, m.Needs())
+		if err != nil {
+			t.Fatal(err)
+		}
+		if part.Has(pixels.KeepAll) {
+			t.Fatalf("%s: the frame kept every record although only %b was asked for", name, m.Needs())
+		}
+		if a, b := m.Image(full, Scales{}), m.Image(part, Scales{}); !slices.Equal(a.Pix, b.Pix) {
+			t.Errorf("%s: images differ", name)
+		}
+		a, err := figure.DrawPanel(m.Panel(full, Scales{}), 0)
+		if err != nil {
+			t.Fatal(err)
+		}
+		b, err := figure.DrawPanel(m.Panel(part, Scales{}), 0)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !slices.Equal(a.Pix, b.Pix) {
+			t.Errorf("%s: figures differ", name)
+		}
+	}
 }

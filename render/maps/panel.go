@@ -2,6 +2,7 @@ package maps
 
 import (
 	"fmt"
+	"image"
 	"image/color"
 	"math"
 	"strconv"
@@ -16,9 +17,16 @@ import (
 // title, the scene's caption and the map's colour bar and overlays.
 func (m Map) Panel(f *pixels.Frame, sc Scales) figure.Panel {
 	sc = sc.Fill(f)
+	return m.Decorate(f, sc, m.Image(f, sc))
+}
+
+// Decorate returns the map's figure (as Panel) around img, the map's own
+// Image with the same scales or another image of the frame's window.
+func (m Map) Decorate(f *pixels.Frame, sc Scales, img image.Image) figure.Panel {
+	sc = sc.Fill(f)
 	a0, a1, b0, b1 := f.Window()
 	p := figure.Panel{
-		Image:    m.Image(f, sc),
+		Image:    img,
 		X:        figure.Axis{Min: a0, Max: a1, Label: "α [M]"},
 		Y:        figure.Axis{Min: b0, Max: b1, Label: "β [M]"},
 		Title:    m.Title,
@@ -64,10 +72,7 @@ func radiusDecoration(f *pixels.Frame, sc Scales, p *figure.Panel) {
 		bar.Ticks = append(bar.Ticks, figure.Tick{T: colormap.Log(v, sc.RMin, sc.RMax), Label: strconv.FormatFloat(v, 'g', 3, 64)})
 	}
 	p.Bar = bar
-	field := make([]float64, f.W*f.H)
-	for k, v := range f.FirstSeen(f.R) {
-		field[k] = float64(v)
-	}
+	field := f.FirstSeen(f.R)
 	levels := []struct {
 		r     float64
 		label string

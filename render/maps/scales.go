@@ -23,13 +23,15 @@ type Scales struct {
 	TMin, TMax float64
 }
 
-// AutoScales returns the scales the frame would choose for itself.
+// AutoScales returns the scales the frame would choose for itself. A
+// frame without redshift (or line) records gets the defaults for g (or
+// intensity).
 func AutoScales(f *pixels.Frame) Scales {
 	r := f.Res
 	sc := Scales{IDecades: 4, RMin: r.Inner, RMax: r.Disk.OuterRadius}
 	gmin, gmax := math.Inf(1), math.Inf(-1)
-	for _, g := range f.FirstSeen(f.G) {
-		if v := float64(g); !math.IsNaN(v) {
+	for k := 0; f.G != nil && k < f.W*f.H; k++ {
+		if v := float64(f.FirstSeenAt(f.G, k)); !math.IsNaN(v) {
 			gmin, gmax = math.Min(gmin, v), math.Max(gmax, v)
 		}
 	}
@@ -37,8 +39,8 @@ func AutoScales(f *pixels.Frame) Scales {
 	if gmax > 0 {
 		sc.GMin, sc.GMax = math.Min(0.95, gmin), math.Max(1.05, gmax)
 	}
-	for _, v := range f.Total(f.Line) {
-		if x := float64(v); x > sc.IMax {
+	for k := 0; f.Line != nil && k < f.W*f.H; k++ {
+		if x := float64(f.TotalAt(f.Line, k)); x > sc.IMax {
 			sc.IMax = x
 		}
 	}
@@ -52,8 +54,16 @@ func AutoScales(f *pixels.Frame) Scales {
 	return sc
 }
 
+// complete reports whether Fill would keep every field of s.
+func (s Scales) complete() bool {
+	return s.GMax > 1 && s.GMin > 0 && s.GMin < 1 && s.IMax > 0 && s.IDecades > 0 && s.RMin > 0 && s.RMax > s.RMin
+}
+
 // Fill completes s with the frame's own choices where s is zero.
 func (s Scales) Fill(f *pixels.Frame) Scales {
+	if s.complete() {
+		return s
+	}
 	auto := AutoScales(f)
 	if !(s.GMax > 1) || !(s.GMin > 0 && s.GMin < 1) {
 		s.GMin, s.GMax = auto.GMin, auto.GMax
@@ -81,6 +91,18 @@ func (s Scales) GPosition(g float64) float64 {
 		return math.Max(0, 0.5*(1-math.Log(g)/math.Log(s.GMin)))
 	}
 	return math.Min(1, 0.5*(1+math.Log(g)/math.Log(s.GMax)))
+}
+
+// gPositioner returns GPosition with the logarithms of GMin and GMax
+// taken once: the same values, for per-pixel use.
+func (s Scales) gPositioner() func(g float64) float64 {
+	lmin, lmax := math.Log(s.GMin), math.Log(s.GMax)
+	return func(g float64) float64 {
+		if g < 1 {
+			return math.Max(0, 0.5*(1-math.Log(g)/lmin))
+		}
+		return math.Min(1, 0.5*(1+math.Log(g)/lmax))
+	}
 }
 
 // niceRatios returns tick values of g between GMin and GMax, at least

@@ -3,9 +3,12 @@ package outputs
 import (
 	"bytes"
 	"context"
+	"errors"
 	"fmt"
 	"image"
 	"io"
+	"slices"
+	"strings"
 
 	"kerrscope/render/internal/figure"
 	"kerrscope/render/internal/workers"
@@ -129,53 +132,174 @@ type Band struct {
 // Put stores one file, produced by write; Outputs.Write is one.
 type Put func(name string, write func(io.Writer) error) error
 
+// Needs returns the per-order records (pixels.Keep) a frame must hold for
+// Write to make arts: all of them for FITS, g and the line intensity for
+// the spectrum, r, g and the line intensity for the band, and what each
+// map reads (maps.Map.Needs).
+func Needs(arts []Artifact) pixels.Keep {
+	var k pixels.Keep
+	for _, a := range arts {
+		switch a.Kind {
+		case FITSMaps:
+			k |= pixels.KeepAll
+		case SpectrumCSV, SpectrumFigure:
+			k |= pixels.KeepG | pixels.KeepLine
+		case MapFigure, MapBare, MapIndexed:
+			if m, err := maps.Lookup(a.Map); err == nil {
+				k |= m.Needs()
+			}
+		case BandJSON, BandText, BandFITS, BandBare, BandFigure, BandRedshift:
+			k |= pixels.KeepR | pixels.KeepG | pixels.KeepLine
+		}
+	}
+	return k
+}
+
+// task is one piece of Write's work done on the worker pool; done is
+// closed when it has run.
+type task struct {
+	run  func(s *scratch)
+	done chan struct{}
+}
+
+// scratch is one worker's map image, reused from map to map.
+type scratch struct{ img *image.RGBA }
+
+// image returns the worker's w × h image.
+func (s *scratch) image(w, h int) *image.RGBA {
+	if s.img == nil || s.img.Rect != image.Rect(0, 0, w, h) {
+		s.img = image.NewRGBA(image.Rect(0, 0, w, h))
+	}
+	return s.img
+}
+
 // Write produces every artifact of the job and hands each to put, in the
-// order of arts. Images (figures, pixel-exact and palette PNGs) are drawn
-// and encoded on all cores at once; tables (FITS, CSV, reports) are
-// streamed. It stops with ctx.Err() once ctx is cancelled.
+// order of arts. The images (figures, pixel-exact and palette PNGs; one
+// task per map, which draws the map once for all its files) and the
+// spectrum are made on all cores while the tables (FITS, CSV, reports)
+// are streamed to put, FITS row by row without copies of the maps. It
+// stops with ctx.Err() once ctx is cancelled, and returns only when all
+// its work has stopped.
 func Write(ctx context.Context, arts []Artifact, job Job, put Put) error {
 	f := job.Frame
+	if need := Needs(arts); !f.Has(need) {
+		return fmt.Errorf("outputs: the frame does not hold the per-pixel records these outputs need (render it keeping %s)", keepNames(need))
+	}
+	ctx, cancel := context.WithCancel(ctx)
+	var tasks []*task
+	add := func(run func(*scratch)) *task {
+		t := &task{run: run, done: make(chan struct{})}
+		tasks = append(tasks, t)
+		return t
+	}
+
 	var spec pixels.Spectrum
+	var specTask *task
 	for _, a := range arts {
 		if a.Kind == SpectrumCSV || a.Kind == SpectrumFigure {
-			spec = f.Spectrum()
+			specTask = add(func(*scratch) { spec = f.Spectrum() })
 			break
 		}
 	}
-	// Draw and encode every image at once.
 	encoded := make([][]byte, len(arts))
 	errs := make([]error, len(arts))
-	var images []int
-	for i, a := range arts {
-		if isImage(a.Kind) {
-			images = append(images, i)
-		}
-	}
-	workers.Each(ctx, len(images), func() struct{} { return struct{}{} }, func(n int, _ struct{}) {
-		i := images[n]
-		img, err := drawImage(arts[i], job, &spec)
+	producer := make([]*task, len(arts))
+	encode := func(i int, img image.Image, err error) {
 		if err == nil {
 			var b bytes.Buffer
 			err = figure.EncodePNG(&b, img)
 			encoded[i] = b.Bytes()
 		}
 		errs[i] = err
-	})
-	if err := ctx.Err(); err != nil {
-		return err
 	}
+	// One task per map, in the order the maps first appear.
+	byMap := map[string][]int{}
+	var order []string
+	for i, a := range arts {
+		if a.Kind == MapFigure || a.Kind == MapBare || a.Kind == MapIndexed {
+			if byMap[a.Map] == nil {
+				order = append(order, a.Map)
+			}
+			byMap[a.Map] = append(byMap[a.Map], i)
+		}
+	}
+	for _, k := range []Kind{MapFigure, MapBare, MapIndexed} {
+		if slices.ContainsFunc(arts, func(a Artifact) bool { return a.Kind == k }) {
+			job.Scales = job.Scales.Fill(f) // once for every map
+			break
+		}
+	}
+	for _, name := range order {
+		idx := byMap[name]
+		t := add(func(s *scratch) { mapImages(arts, idx, job, s, encode) })
+		for _, i := range idx {
+			producer[i] = t
+		}
+	}
+	for i, a := range arts {
+		if isImage(a.Kind) && producer[i] == nil {
+			producer[i] = add(func(*scratch) {
+				if a.Kind == SpectrumFigure {
+					<-specTask.done // an earlier task: already running or done
+				}
+				img, err := drawImage(a, job, &spec)
+				encode(i, img, err)
+			})
+		}
+	}
+
+	pool := make(chan struct{})
+	go func() {
+		defer close(pool)
+		workers.Each(ctx, len(tasks), func() *scratch { return &scratch{} }, func(n int, s *scratch) {
+			tasks[n].run(s)
+			close(tasks[n].done)
+		})
+	}()
+	defer func() {
+		cancel()
+		<-pool
+	}()
+	// wait returns once t has run, or ctx.Err() if the pool stopped first.
+	wait := func(t *task) error {
+		select {
+		case <-t.done:
+			return nil
+		case <-pool:
+			select {
+			case <-t.done:
+				return nil
+			default:
+				if err := ctx.Err(); err != nil {
+					return err
+				}
+				return errors.New("outputs: a task did not run")
+			}
+		}
+	}
+
 	for i, a := range arts {
 		if err := ctx.Err(); err != nil {
 			return err
 		}
-		if errs[i] != nil {
-			return errs[i]
-		}
 		var write func(io.Writer) error
-		if isImage(a.Kind) {
+		switch {
+		case isImage(a.Kind):
+			if err := wait(producer[i]); err != nil {
+				return err
+			}
+			if errs[i] != nil {
+				return errs[i]
+			}
 			data := encoded[i]
+			encoded[i] = nil // put holds the only reference
 			write = func(w io.Writer) error { _, err := w.Write(data); return err }
-		} else {
+		case a.Kind == SpectrumCSV:
+			if err := wait(specTask); err != nil {
+				return err
+			}
+			fallthrough
+		default:
 			write = tableWriter(a, job, &spec)
 		}
 		if err := put(a.Name, write); err != nil {
@@ -183,6 +307,54 @@ func Write(ctx context.Context, arts []Artifact, job Job, put Put) error {
 		}
 	}
 	return nil
+}
+
+// mapImages draws one map once and makes its artifacts arts[i], i in idx
+// (all of the same map), with job.Scales complete.
+func mapImages(arts []Artifact, idx []int, job Job, s *scratch, encode func(int, image.Image, error)) {
+	f := job.Frame
+	m, err := maps.Lookup(arts[idx[0]].Map)
+	if err != nil {
+		for _, i := range idx {
+			encode(i, nil, err)
+		}
+		return
+	}
+	var img *image.RGBA
+	for _, i := range idx {
+		a := arts[i]
+		if a.Kind == MapIndexed {
+			encode(i, m.Indexed(f, job.Scales), nil)
+			continue
+		}
+		if img == nil {
+			img = s.image(f.W, f.H)
+			m.Draw(img, f, job.Scales)
+		}
+		if a.Kind == MapBare {
+			encode(i, img, nil)
+			continue
+		}
+		fig, err := figure.DrawPanel(m.Decorate(f, job.Scales, img), 0)
+		if err != nil {
+			err = fmt.Errorf("%s figure: %w", a.Map, err)
+		}
+		encode(i, fig, err)
+	}
+}
+
+// keepNames lists the records of k by their Frame field names.
+func keepNames(k pixels.Keep) string {
+	var out []string
+	for _, c := range [...]struct {
+		k    pixels.Keep
+		name string
+	}{{pixels.KeepR, "R"}, {pixels.KeepG, "G"}, {pixels.KeepLine, "Line"}, {pixels.KeepBol, "Bol"}} {
+		if k&c.k != 0 {
+			out = append(out, c.name)
+		}
+	}
+	return strings.Join(out, ", ")
 }
 
 func isImage(k Kind) bool {
@@ -193,26 +365,11 @@ func isImage(k Kind) bool {
 	return false
 }
 
-// drawImage makes the image of an image artifact.
+// drawImage makes the image of an image artifact other than a map's
+// (mapImages).
 func drawImage(a Artifact, job Job, spec *pixels.Spectrum) (image.Image, error) {
 	f := job.Frame
 	switch a.Kind {
-	case MapFigure, MapBare, MapIndexed:
-		m, err := maps.Lookup(a.Map)
-		if err != nil {
-			return nil, err
-		}
-		switch a.Kind {
-		case MapFigure:
-			img, err := figure.DrawPanel(m.Panel(f, job.Scales), 0)
-			if err != nil {
-				return nil, fmt.Errorf("%s figure: %w", a.Map, err)
-			}
-			return img, nil
-		case MapBare:
-			return m.Image(f, job.Scales), nil
-		}
-		return m.Indexed(f, job.Scales), nil
 	case SpectrumFigure:
 		title := job.SpectrumTitle
 		if title == "" {

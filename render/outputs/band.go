@@ -76,13 +76,13 @@ func writeBandFITS(w io.Writer, f *pixels.Frame, b *Band, version string) error 
 	axes := fitsAxes(f)
 	var ims []fits.Image
 	for ord, m := range b.Mask {
-		v := make([]float32, len(m))
-		for k, in := range m {
-			if in {
-				v[k] = 1
+		rows := fitsRows(f, func(k int) float32 {
+			if m[k] {
+				return 1
 			}
-		}
-		ims = append(ims, fits.Image{Name: fmt.Sprintf("BAND_ORD%d", ord), Width: f.W, Height: f.H, Data: flipRows(v, f.W, f.H), Axes: axes,
+			return 0
+		})
+		ims = append(ims, fits.Image{Name: fmt.Sprintf("BAND_ORD%d", ord), Width: f.W, Height: f.H, Rows: rows, Axes: axes,
 			Cards: []fits.Card{{Key: "RBANDMIN", Value: b.Report.RMin, Comment: "band inner radius [M]"}, {Key: "RBANDMAX", Value: b.Report.RMax, Comment: "band outer radius [M]"},
 				{Key: "COMMENT", Value: fmt.Sprintf("1 = image order %d of this pixel comes from the band", ord)}}})
 	}
@@ -104,8 +104,7 @@ func bandImage(k Kind, f *pixels.Frame, b *Band) (image.Image, error) {
 		if err != nil {
 			return nil, err
 		}
-		p := shadow.Panel(f, maps.Scales{})
-		p.Image = bandOrders(f, b.Mask)
+		p := shadow.Decorate(f, maps.Scales{}, bandOrders(f, b.Mask))
 		p.Title = fmt.Sprintf("where source radii %.6g–%.6g M land", rep.RMin, rep.RMax)
 		_, key := maps.CriticalOverlay(f)
 		p.Legend = []figure.LegendEntry{key}
@@ -125,8 +124,8 @@ func bandImage(k Kind, f *pixels.Frame, b *Band) (image.Image, error) {
 	if rep.GMin != nil {
 		sc = maps.Scales{GMin: math.Min(0.95, *rep.GMin), GMax: math.Max(1.05, *rep.GMax)}
 	}
-	p := redshift.Panel(f, sc)
-	p.Image = bandRedshift(f, b.Mask, sc.Fill(f))
+	sc = sc.Fill(f)
+	p := redshift.Decorate(f, sc, bandRedshift(f, b.Mask, sc))
 	p.Title = fmt.Sprintf("redshift factor g of the light from r = %.6g–%.6g M", rep.RMin, rep.RMax)
 	line, key := maps.CriticalOverlay(f)
 	p.Lines, p.Legend = []figure.Polyline{line}, []figure.LegendEntry{key}

@@ -9,13 +9,24 @@ import (
 	"kerrscope/render/pixels"
 )
 
-// flipRows turns a top-row-first map into FITS order (first row at the bottom).
-func flipRows(v []float32, w, h int) []float32 {
-	out := make([]float32, len(v))
-	for j := 0; j < h; j++ {
-		copy(out[(h-1-j)*w:(h-j)*w], v[j*w:(j+1)*w])
+// fitsRows returns the Rows function of a FITS image of the frame whose
+// pixel k (top row first) is value(k): FITS puts its first row at the
+// bottom, so FITS row j is the frame's row H-1-j.
+func fitsRows(f *pixels.Frame, value func(k int) float32) func(j int, row []float32) {
+	return func(j int, row []float32) {
+		base := (f.H - 1 - j) * f.W
+		for i := range row {
+			row[i] = value(base + i)
+		}
 	}
-	return out
+}
+
+// fitsCopyRows is fitsRows for a map stored whole (one order's record).
+func fitsCopyRows(f *pixels.Frame, v []float32) func(j int, row []float32) {
+	return func(j int, row []float32) {
+		base := (f.H - 1 - j) * f.W
+		copy(row, v[base:base+f.W])
+	}
 }
 
 // fitsAxes gives the linear WCS of the screen: world = α, β (in M) of
@@ -28,31 +39,32 @@ func fitsAxes(f *pixels.Frame) [2]fits.Axis {
 	}
 }
 
-// fitsImages returns the maps as FITS image extensions.
+// fitsImages returns the maps as FITS image extensions, each computed
+// row by row as it is written.
 func fitsImages(f *pixels.Frame) []fits.Image {
 	axes := fitsAxes(f)
-	mk := func(name, unit, comment string, v []float32) fits.Image {
-		return fits.Image{Name: name, Unit: unit, Width: f.W, Height: f.H, Data: flipRows(v, f.W, f.H), Axes: axes,
+	mk := func(name, unit, comment string, rows func(int, []float32)) fits.Image {
+		return fits.Image{Name: name, Unit: unit, Width: f.W, Height: f.H, Rows: rows, Axes: axes,
 			Cards: []fits.Card{{Key: "COMMENT", Value: comment}, {Key: "COMMENT", Value: "axis 1 is alpha, axis 2 is beta, both in M (GM/c^2); NaN = no disk seen"}}}
 	}
-	fate := make([]float32, f.W*f.H)
-	order := make([]float32, f.W*f.H)
-	for k := range fate {
-		if f.Fate[k] == raytrace.Captured {
-			fate[k] = 1
-		}
-		order[k] = float32(f.First[k])
-		if f.First[k] < 0 {
-			order[k] = float32(math.NaN())
-		}
-	}
+	nan := float32(math.NaN())
 	ims := []fits.Image{
-		mk("REDSHIFT", "", "redshift factor g = E_obs/E_emit of the first image order seen", f.FirstSeen(f.G)),
-		mk("INTENSITY", "", "line intensity g^3 eps(r) limb, summed over the orders seen", f.Total(f.Line)),
-		mk("BOLOMETRIC", "", "bolometric intensity g^4 eps(r) limb, summed over the orders seen", f.Total(f.Bol)),
-		mk("RADIUS", "", "Boyer-Lindquist source radius in M of the first image order seen", f.FirstSeen(f.R)),
-		mk("ORDER", "", "first image order seen (0 = direct image)", order),
-		mk("CAPTURED", "", "1 = the photon comes from the horizon (shadow), 0 = from infinity", fate),
+		mk("REDSHIFT", "", "redshift factor g = E_obs/E_emit of the first image order seen", fitsRows(f, func(k int) float32 { return f.FirstSeenAt(f.G, k) })),
+		mk("INTENSITY", "", "line intensity g^3 eps(r) limb, summed over the orders seen", fitsRows(f, func(k int) float32 { return f.TotalAt(f.Line, k) })),
+		mk("BOLOMETRIC", "", "bolometric intensity g^4 eps(r) limb, summed over the orders seen", fitsRows(f, func(k int) float32 { return f.TotalAt(f.Bol, k) })),
+		mk("RADIUS", "", "Boyer-Lindquist source radius in M of the first image order seen", fitsRows(f, func(k int) float32 { return f.FirstSeenAt(f.R, k) })),
+		mk("ORDER", "", "first image order seen (0 = direct image)", fitsRows(f, func(k int) float32 {
+			if f.First[k] < 0 {
+				return nan
+			}
+			return float32(f.First[k])
+		})),
+		mk("CAPTURED", "", "1 = the photon comes from the horizon (shadow), 0 = from infinity", fitsRows(f, func(k int) float32 {
+			if f.Fate[k] == raytrace.Captured {
+				return 1
+			}
+			return 0
+		})),
 	}
 	for o := 0; o < f.Orders; o++ {
 		suffix := string(rune('0' + o%10))
@@ -60,9 +72,9 @@ func fitsImages(f *pixels.Frame) []fits.Image {
 			suffix = string(rune('0'+o/10)) + suffix
 		}
 		ims = append(ims,
-			mk("G_ORD"+suffix, "", "redshift factor g of image order "+suffix, f.G[o]),
-			mk("R_ORD"+suffix, "", "source radius in M of image order "+suffix, f.R[o]),
-			mk("I_ORD"+suffix, "", "line intensity g^3 eps limb of image order "+suffix, f.Line[o]))
+			mk("G_ORD"+suffix, "", "redshift factor g of image order "+suffix, fitsCopyRows(f, f.G[o])),
+			mk("R_ORD"+suffix, "", "source radius in M of image order "+suffix, fitsCopyRows(f, f.R[o])),
+			mk("I_ORD"+suffix, "", "line intensity g^3 eps limb of image order "+suffix, fitsCopyRows(f, f.Line[o])))
 	}
 	return append(ims, timingImages(f, mk)...)
 }

@@ -13,7 +13,7 @@ import (
 // (azimuth); and per pair of successive orders, DT_ORDn, the delay of the
 // order-n image behind the order-(n−1) image of the same disk point
 // (pixels.Frame.SubimageDelay).
-func timingImages(f *pixels.Frame, mk func(name, unit, comment string, v []float32) fits.Image) []fits.Image {
+func timingImages(f *pixels.Frame, mk func(name, unit, comment string, rows func(int, []float32)) fits.Image) []fits.Image {
 	if f.T == nil {
 		return nil
 	}
@@ -25,14 +25,14 @@ func timingImages(f *pixels.Frame, mk func(name, unit, comment string, v []float
 			fits.Card{Key: "COMMENT", Value: "only differences of delays are physical"})
 		return im
 	}
-	ims := []fits.Image{note(mk("DELAY", "M", "time delay t_obs - t_emit [M] of the first order seen", f.FirstSeen(f.T)))}
+	ims := []fits.Image{note(mk("DELAY", "M", "time delay t_obs - t_emit [M] of the first order seen", fitsRows(f, func(k int) float32 { return f.FirstSeenAt(f.T, k) })))}
 	for o := 0; o < f.Orders; o++ {
 		n := strconv.Itoa(o)
 		ims = append(ims,
-			note(mk("T_ORD"+n, "M", "time delay t_obs - t_emit [M] of image order "+n, f.T[o])),
-			mk("PHI_ORD"+n, "rad", "azimuth phi_emit - phi_obs [rad] of image order "+n+" (not mod 2pi)", f.Phi[o]))
+			note(mk("T_ORD"+n, "M", "time delay t_obs - t_emit [M] of image order "+n, fitsCopyRows(f, f.T[o]))),
+			mk("PHI_ORD"+n, "rad", "azimuth phi_emit - phi_obs [rad] of image order "+n+" (not mod 2pi)", fitsCopyRows(f, f.Phi[o])))
 		if o > 0 {
-			ims = append(ims, mk("DT_ORD"+n, "M", "delay of order "+n+" behind order "+strconv.Itoa(o-1)+", same disk point", f.SubimageDelay(o)))
+			ims = append(ims, mk("DT_ORD"+n, "M", "delay of order "+n+" behind order "+strconv.Itoa(o-1)+", same disk point", fitsCopyRows(f, f.SubimageDelay(o))))
 		}
 	}
 	return ims

@@ -34,7 +34,8 @@ type BandReport struct {
 
 // LocateBand marks, per image order, the pixels whose seen crossing comes
 // from r in [rmin, rmax] and summarises them. mask[o][k] is true for pixel
-// k of order o.
+// k of order o. The frame must hold R, G and Line (KeepR, KeepG,
+// KeepLine).
 func (f *Frame) LocateBand(rmin, rmax float64) (BandReport, [][]bool) {
 	r := f.Res
 	rep := BandReport{Spin: r.Hole.Spin, InclinationDeg: r.Observer.InclinationDeg, RMin: rmin, RMax: rmax,

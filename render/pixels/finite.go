@@ -39,12 +39,24 @@ func (e *NonFiniteError) Error() string {
 // seen, all four must be finite, and so must their sums over the orders
 // as float32. Every bin of the spectrum, per order and in total, and the
 // flux outside its range must be finite.
+//
+// Records the frame did not keep (Keep) are not checked, nor is the
+// spectrum unless the frame keeps what it is made of (g and the line
+// intensity, or the refined samples).
 func CheckFinite(f *Frame) error {
-	records := []struct {
+	var records []struct {
 		name string
 		q    [][]float32
-	}{{"source radius", f.R}, {"redshift factor g", f.G}, {"line intensity", f.Line}, {"bolometric intensity", f.Bol}}
-	for k := 0; k < f.W*f.H; k++ {
+	}
+	for _, rec := range []struct {
+		name string
+		q    [][]float32
+	}{{"source radius", f.R}, {"redshift factor g", f.G}, {"line intensity", f.Line}, {"bolometric intensity", f.Bol}} {
+		if rec.q != nil {
+			records = append(records, rec)
+		}
+	}
+	for k := 0; k < f.W*f.H && len(records) > 0; k++ {
 		var line, bol float64
 		for o := 0; o < f.Orders; o++ {
 			nan := 0
@@ -61,8 +73,12 @@ func CheckFinite(f *Frame) error {
 					return &NonFiniteError{Quantity: rec.name, Order: o, Pixel: [2]int{k % f.W, k / f.W}, Bin: -1, Value: v}
 				}
 			}
-			line += float64(f.Line[o][k])
-			bol += float64(f.Bol[o][k])
+			if f.Line != nil {
+				line += float64(f.Line[o][k])
+			}
+			if f.Bol != nil {
+				bol += float64(f.Bol[o][k])
+			}
 		}
 		for _, t := range []struct {
 			name string
@@ -72,6 +88,9 @@ func CheckFinite(f *Frame) error {
 				return &NonFiniteError{Quantity: t.name, Order: -1, Pixel: [2]int{k % f.W, k / f.W}, Bin: -1, Value: v}
 			}
 		}
+	}
+	if f.refined == nil && !f.Has(KeepG|KeepLine) {
+		return nil
 	}
 	s := f.Spectrum()
 	bad := func(v float64) bool { return math.IsNaN(v) || math.IsInf(v, 0) }

@@ -25,6 +25,7 @@ type Frame struct {
 	// T and Phi are the time delay (M, regularised as in raytrace.Timing)
 	// and azimuth φ − φ_o (radians) per order; nil unless Model.Timing.
 	T, Phi [][]float32
+	// R, G, Line and Bol are nil when the render did not keep them (Keep).
 	// Photons is the number of photons traced to make the frame.
 	Photons int64
 	// refined is the spectrum collapsed from the refined samples, if any.
@@ -41,27 +42,82 @@ func PixelBeta(r scene.Resolved, j int) float64 {
 	return r.Screen.CenterBeta + (float64(r.Screen.Height)/2-float64(j)-0.5)*r.PixelSize
 }
 
+// Keep is a set of the per-order records of a frame (Frame.R, G, Line,
+// Bol). Each costs 4 bytes per pixel and image order; Fate and First,
+// 2 bytes per pixel, are always kept.
+type Keep uint8
+
+const (
+	KeepR    Keep = 1 << iota // source radius (maps: radius; FITS; bands)
+	KeepG                     // redshift factor (maps: redshift; spectrum; FITS; bands)
+	KeepLine                  // line intensity (maps: intensity; spectrum; FITS; bands)
+	KeepBol                   // bolometric intensity (FITS)
+	KeepAll  = KeepR | KeepG | KeepLine | KeepBol
+)
+
+// keepTiming marks the timing records, kept whenever the model traces
+// time delays (Model.Timing).
+const keepTiming Keep = 1 << 7
+
+// keepOf is the set a render's optional argument asks for: all records
+// unless one is given.
+func keepOf(keep []Keep) Keep {
+	if len(keep) == 0 {
+		return KeepAll
+	}
+	return keep[0] & KeepAll
+}
+
+// BytesPerPixel is the memory of the records a frame with these records
+// and image orders holds per pixel: 2 bytes for Fate and First and 4 per
+// kept record and order.
+func (k Keep) BytesPerPixel(orders int) int64 {
+	n := int64(0)
+	for b := k & KeepAll; b != 0; b &= b - 1 {
+		n++
+	}
+	return 2 + 4*n*int64(orders)
+}
+
+// Has reports whether the frame holds all the records in k.
+func (f *Frame) Has(k Keep) bool {
+	for _, c := range [...]struct {
+		k Keep
+		q [][]float32
+	}{{KeepR, f.R}, {KeepG, f.G}, {KeepLine, f.Line}, {KeepBol, f.Bol}} {
+		if k&c.k != 0 && c.q == nil {
+			return false
+		}
+	}
+	return true
+}
+
 // RenderScene renders the scene's frame: one photon per pixel centre, or with
-// adaptive refinement when the scene asks for it.
-func RenderScene(ctx context.Context, r scene.Resolved, progress func(rows int)) (*Frame, error) {
+// adaptive refinement when the scene asks for it. keep, if given, chooses
+// the records the frame keeps, as for Render.
+func RenderScene(ctx context.Context, r scene.Resolved, progress func(rows int), keep ...Keep) (*Frame, error) {
 	if r.Refine.Depth > 0 {
-		f, _, _, err := RenderRefined(ctx, r, Refinement{Depth: r.Refine.Depth, TolR: r.Refine.TolR, TolG: r.Refine.TolG}, true, progress)
+		f, _, _, err := renderRefined(ctx, r, Refinement{Depth: r.Refine.Depth, TolR: r.Refine.TolR, TolG: r.Refine.TolG}, keepOf(keep), true, progress)
 		return f, err
 	}
-	return Render(ctx, r, progress)
+	return Render(ctx, r, progress, keep...)
 }
 
 // Render traces one photon through the centre of every pixel, on all
 // cores; the result does not depend on scheduling. progress, if not nil,
 // is called with the number of finished rows (from one goroutine at a
 // time). It stops early, returning ctx.Err(), when ctx is cancelled.
-func Render(ctx context.Context, r scene.Resolved, progress func(rows int)) (*Frame, error) {
+//
+// keep, if given, is the set of per-order records the frame keeps; the
+// others are left nil, which saves their memory (Keep.BytesPerPixel).
+// Without it every record is kept.
+func Render(ctx context.Context, r scene.Resolved, progress func(rows int), keep ...Keep) (*Frame, error) {
 	m, err := NewModel(r)
 	if err != nil {
 		return nil, err
 	}
 	w, h, n := r.Screen.Width, r.Screen.Height, r.Disk.Orders
-	f := newFrame(r, m)
+	f := newFrame(r, m, keepOf(keep))
 	var mu sync.Mutex
 	done := 0
 	parallel(ctx, h, n, func(j int, p *raytrace.Path, s *Sample) {
@@ -92,21 +148,24 @@ func Render(ctx context.Context, r scene.Resolved, progress func(rows int)) (*Fr
 	return f, nil
 }
 
-// newFrame allocates the records of the scene's frame.
-func newFrame(r scene.Resolved, m Model) *Frame {
+// newFrame allocates the records of the scene's frame that keep names.
+func newFrame(r scene.Resolved, m Model, keep Keep) *Frame {
 	w, h, n := r.Screen.Width, r.Screen.Height, r.Disk.Orders
 	f := &Frame{Res: r, Model: m, W: w, H: h, Orders: n,
 		Fate: make([]raytrace.Fate, w*h), First: make([]int8, w*h)}
-	alloc := func() [][]float32 {
+	alloc := func(k Keep) [][]float32 {
+		if keep&k == 0 && k != keepTiming {
+			return nil
+		}
 		out := make([][]float32, n)
-		for k := range out {
-			out[k] = make([]float32, w*h)
+		for o := range out {
+			out[o] = make([]float32, w*h)
 		}
 		return out
 	}
-	f.R, f.G, f.Line, f.Bol = alloc(), alloc(), alloc(), alloc()
+	f.R, f.G, f.Line, f.Bol = alloc(KeepR), alloc(KeepG), alloc(KeepLine), alloc(KeepBol)
 	if m.Timing {
-		f.T, f.Phi = alloc(), alloc()
+		f.T, f.Phi = alloc(keepTiming), alloc(keepTiming)
 	}
 	return f
 }
@@ -131,13 +190,12 @@ func (f *Frame) store(k int, s *Sample) {
 	f.First[k] = int8(s.First)
 	nan := float32(math.NaN())
 	for o := 0; o < f.Orders; o++ {
-		hit := s.Hits[o]
-		if !hit.Seen {
-			f.R[o][k], f.G[o][k], f.Line[o][k], f.Bol[o][k] = nan, nan, nan, nan
-			continue
+		hit := &s.Hits[o]
+		r, g, l, b := nan, nan, nan, nan
+		if hit.Seen {
+			r, g, l, b = float32(hit.R), float32(hit.G), float32(hit.Line), float32(hit.Bol)
 		}
-		f.R[o][k], f.G[o][k] = float32(hit.R), float32(hit.G)
-		f.Line[o][k], f.Bol[o][k] = float32(hit.Line), float32(hit.Bol)
+		f.put(o, k, r, g, l, b)
 	}
 	if f.T != nil {
 		for o := 0; o < f.Orders; o++ {
@@ -146,38 +204,70 @@ func (f *Frame) store(k int, s *Sample) {
 	}
 }
 
+// put stores the records of order o at pixel k, those the frame keeps.
+func (f *Frame) put(o, k int, r, g, l, b float32) {
+	if f.R != nil {
+		f.R[o][k] = r
+	}
+	if f.G != nil {
+		f.G[o][k] = g
+	}
+	if f.Line != nil {
+		f.Line[o][k] = l
+	}
+	if f.Bol != nil {
+		f.Bol[o][k] = b
+	}
+}
+
 // FirstSeen returns, per pixel, a quantity of the first order seen (NaN
-// where no order is seen): pass f.R or f.G.
+// where no order is seen): pass f.R or f.G. A record the frame did not
+// keep (nil) gives nil.
 func (f *Frame) FirstSeen(q [][]float32) []float32 {
+	if q == nil {
+		return nil
+	}
 	out := make([]float32, f.W*f.H)
 	for k := range out {
-		if o := f.First[k]; o >= 0 {
-			out[k] = q[o][k]
-		} else {
-			out[k] = float32(math.NaN())
-		}
+		out[k] = f.FirstSeenAt(q, k)
 	}
 	return out
 }
 
+// FirstSeenAt is FirstSeen(q)[k], without building the whole map.
+func (f *Frame) FirstSeenAt(q [][]float32, k int) float32 {
+	if o := f.First[k]; o >= 0 {
+		return q[o][k]
+	}
+	return float32(math.NaN())
+}
+
 // Total returns, per pixel, the sum over seen orders of q (NaN where none
-// is seen): pass f.Line or f.Bol.
+// is seen): pass f.Line or f.Bol. A record the frame did not keep (nil)
+// gives nil.
 func (f *Frame) Total(q [][]float32) []float32 {
+	if q == nil {
+		return nil
+	}
 	out := make([]float32, f.W*f.H)
 	for k := range out {
-		if f.First[k] < 0 {
-			out[k] = float32(math.NaN())
-			continue
-		}
-		var s float64
-		for o := 0; o < f.Orders; o++ {
-			if v := q[o][k]; !math.IsNaN(float64(v)) {
-				s += float64(v)
-			}
-		}
-		out[k] = float32(s)
+		out[k] = f.TotalAt(q, k)
 	}
 	return out
+}
+
+// TotalAt is Total(q)[k], without building the whole map.
+func (f *Frame) TotalAt(q [][]float32, k int) float32 {
+	if f.First[k] < 0 {
+		return float32(math.NaN())
+	}
+	var s float64
+	for o := 0; o < f.Orders; o++ {
+		if v := q[o][k]; !math.IsNaN(float64(v)) {
+			s += float64(v)
+		}
+	}
+	return float32(s)
 }
 
 // Window returns the screen window's pixel-edge ranges in M.

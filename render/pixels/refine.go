@@ -166,6 +166,11 @@ type RefineStats struct {
 // collapsed from the samples with their areas (before any instrument
 // broadening) and the photon count. Deterministic: rows are summed in order.
 func RenderRefined(ctx context.Context, r scene.Resolved, ref Refinement, keepMaps bool, progress func(rows int)) (*Frame, Spectrum, RefineStats, error) {
+	return renderRefined(ctx, r, ref, KeepAll, keepMaps, progress)
+}
+
+// renderRefined is RenderRefined keeping the records in keep.
+func renderRefined(ctx context.Context, r scene.Resolved, ref Refinement, keep Keep, keepMaps bool, progress func(rows int)) (*Frame, Spectrum, RefineStats, error) {
 	m, err := NewModel(r)
 	if err != nil {
 		return nil, Spectrum{}, RefineStats{}, err
@@ -176,7 +181,7 @@ func RenderRefined(ctx context.Context, r scene.Resolved, ref Refinement, keepMa
 	total := NewSpectrum(r.MinKeV, r.MaxKeV, r.Emission.LineKeV, r.Spectrum.Bins, n)
 	var f *Frame
 	if keepMaps {
-		f = newFrame(r, m)
+		f = newFrame(r, m, keep)
 	}
 	const chunk = 32
 	corners := make([][]point, chunk+1)
@@ -257,12 +262,9 @@ func (f *Frame) storeAcc(k int, a *pixelAcc) {
 	f.First[k] = int8(best)
 	for o := 0; o < f.Orders; o++ {
 		if a.w[o] == 0 {
-			f.R[o][k], f.G[o][k], f.Line[o][k], f.Bol[o][k] = nan, nan, nan, nan
+			f.put(o, k, nan, nan, nan, nan)
 			continue
 		}
-		f.R[o][k] = float32(a.r[o] / a.w[o])
-		f.G[o][k] = float32(a.g[o] / a.w[o])
-		f.Line[o][k] = float32(a.line[o] / a.area)
-		f.Bol[o][k] = float32(a.bol[o] / a.area)
+		f.put(o, k, float32(a.r[o]/a.w[o]), float32(a.g[o]/a.w[o]), float32(a.line[o]/a.area), float32(a.bol[o]/a.area))
 	}
 }

@@ -146,7 +146,8 @@ func trapezoidCDF(x, a, b float64) float64 {
 // pixels of the same image order.
 //
 // For a frame made by RenderRefined it is the spectrum of the refined
-// samples, weighted by their areas.
+// samples, weighted by their areas. Otherwise the frame must hold G and
+// Line (KeepG, KeepLine).
 func (f *Frame) Spectrum() Spectrum {
 	r := f.Res
 	if f.refined != nil {

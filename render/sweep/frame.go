@@ -21,7 +21,7 @@ var hookStaged func(index int, name string)
 // an error or a cancelled ctx leaves none of them behind. It returns
 // their records, sorted by name.
 func (p *Plan) writeFrame(ctx context.Context, lk *outputs.DirLock, pt Point, sc maps.Scales, version string) ([]fileRecord, error) {
-	f, err := pixels.RenderScene(ctx, pt.Scene, nil)
+	f, err := pixels.RenderScene(ctx, pt.Scene, nil, outputs.Needs(p.artifacts(pt.Index)))
 	if err == nil {
 		err = pixels.CheckFinite(f)
 	}

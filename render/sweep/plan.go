@@ -206,7 +206,7 @@ func (p *Plan) chooseScales(ctx context.Context) (maps.Scales, error) {
 				return sc, err
 			}
 		}
-		f, err := pixels.RenderScene(ctx, r, nil)
+		f, err := pixels.RenderScene(ctx, r, nil, pixels.KeepG|pixels.KeepLine)
 		if err != nil {
 			return sc, err
 		}

@@ -19,17 +19,28 @@ type segment struct {
 // corner is skipped. Crossings are placed by linear interpolation along
 // the cell edges, and a saddle cell is resolved by the mean of its four
 // corners. A corner equal to the level counts as above it.
-func contourSegments(field []float64, w, h int, level float64) []segment {
+func contourSegments(field []float32, w, h int, level float64) []segment {
 	var segs []segment
-	at := func(i, j int) float64 { return field[j*w+i] }
 	hEdge := func(i, j int) int { return 2 * (j*w + i) } // (i, j)–(i+1, j)
 	vEdge := func(i, j int) int { return 2*(j*w+i) + 1 } // (i, j)–(i, j+1)
 	for j := 0; j+1 < h; j++ {
+		top, bot := field[j*w:(j+1)*w], field[(j+1)*w:(j+2)*w]
 		for i := 0; i+1 < w; i++ {
 			// Corners clockwise from the top left.
-			v := [4]float64{at(i, j), at(i+1, j), at(i+1, j+1), at(i, j+1)}
+			v := [4]float64{float64(top[i]), float64(top[i+1]), float64(bot[i+1]), float64(bot[i])}
 			if math.IsNaN(v[0]) || math.IsNaN(v[1]) || math.IsNaN(v[2]) || math.IsNaN(v[3]) {
 				continue
+			}
+			var above [4]bool
+			n := 0
+			for k := range v {
+				above[k] = v[k] >= level
+				if above[k] {
+					n++
+				}
+			}
+			if n == 0 || n == 4 {
+				continue // the level does not pass through this cell
 			}
 			c := [4]point{
 				{float64(i) + 0.5, float64(j) + 0.5},
@@ -53,17 +64,15 @@ func contourSegments(field []float64, w, h int, level float64) []segment {
 			join := func(k, l int) {
 				segs = append(segs, segment{a: cross(k), b: cross(l), ea: ids[k], eb: ids[l]})
 			}
-			var above [4]bool
-			for k := range v {
-				above[k] = v[k] >= level
-			}
-			var crossed []int
+			var crossed [4]int
+			nc := 0
 			for k := range 4 {
 				if above[k] != above[(k+1)%4] {
-					crossed = append(crossed, k)
+					crossed[nc] = k
+					nc++
 				}
 			}
-			switch len(crossed) {
+			switch nc {
 			case 2:
 				join(crossed[0], crossed[1])
 			case 4:

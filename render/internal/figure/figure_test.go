@@ -133,10 +133,10 @@ func TestOffsetNotation(t *testing.T) {
 func TestMarchingSquaresCircle(t *testing.T) {
 	const n = 41
 	const cx, cy, radius = 20.3, 19.7, 10.0
-	field := make([]float64, n*n)
+	field := make([]float32, n*n)
 	for j := range n {
 		for i := range n {
-			field[j*n+i] = math.Hypot(float64(i)+0.5-cx, float64(j)+0.5-cy)
+			field[j*n+i] = float32(math.Hypot(float64(i)+0.5-cx, float64(j)+0.5-cy))
 		}
 	}
 	segs := contourSegments(field, n, n, radius)
@@ -161,7 +161,7 @@ func TestMarchingSquaresCircle(t *testing.T) {
 	// NaN cells are skipped: blank out the right half.
 	for j := range n {
 		for i := n / 2; i < n; i++ {
-			field[j*n+i] = math.NaN()
+			field[j*n+i] = float32(math.NaN())
 		}
 	}
 	for _, s := range contourSegments(field, n, n, radius) {
@@ -175,12 +175,12 @@ func TestMarchingSquaresSaddle(t *testing.T) {
 	// Diagonal corners above the level; the mean of the corners decides
 	// which pair the contour separates from the rest.
 	for _, c := range []struct {
-		field    []float64 // top left, top right, bottom left, bottom right
+		field    []float32 // top left, top right, bottom left, bottom right
 		isolated [2]point  // the corners cut off by the two segments
 	}{
-		{[]float64{1, 0, 0, 1}, [2]point{{1.5, 0.5}, {0.5, 1.5}}},      // mean 0.5 counts as above
-		{[]float64{1, 0.2, -0.5, 1}, [2]point{{0.5, 0.5}, {1.5, 1.5}}}, // mean below
-		{[]float64{0, 1, 1, 0}, [2]point{{0.5, 0.5}, {1.5, 1.5}}},
+		{[]float32{1, 0, 0, 1}, [2]point{{1.5, 0.5}, {0.5, 1.5}}},      // mean 0.5 counts as above
+		{[]float32{1, 0.2, -0.5, 1}, [2]point{{0.5, 0.5}, {1.5, 1.5}}}, // mean below
+		{[]float32{0, 1, 1, 0}, [2]point{{0.5, 0.5}, {1.5, 1.5}}},
 	} {
 		segs := contourSegments(c.field, 2, 2, 0.5)
 		if len(segs) != 2 {
@@ -212,13 +212,13 @@ func testMap(w, h int) *image.RGBA {
 // fullPanel is a panel that uses every decoration.
 func fullPanel() Panel {
 	const n = 40
-	field := make([]float64, n*n)
+	field := make([]float32, n*n)
 	for j := range n {
 		for i := range n {
-			field[j*n+i] = math.Hypot(float64(i)-19.5, float64(j)-19.5)
+			field[j*n+i] = float32(math.Hypot(float64(i)-19.5, float64(j)-19.5))
 		}
 	}
-	field[5] = math.NaN()
+	field[5] = float32(math.NaN())
 	var circle [][2]float64
 	for k := range 64 {
 		phi := 2 * math.Pi * float64(k) / 64
@@ -415,9 +415,9 @@ func TestBadInput(t *testing.T) {
 		{"too narrow", func(p *Panel) { p.X.Min, p.X.Max = 1, 1+1e-15 }, 1},
 		{"zero factor", func(p *Panel) { p.X.Secondary = &SecondaryScale{} }, 1},
 		{"NaN factor", func(p *Panel) { p.Y.Secondary = &SecondaryScale{Factor: nan} }, 1},
-		{"short contour field", func(p *Panel) { p.Contours = []Contour{{Field: make([]float64, 63), W: 8, H: 8}} }, 1},
+		{"short contour field", func(p *Panel) { p.Contours = []Contour{{Field: make([]float32, 63), W: 8, H: 8}} }, 1},
 		{"zero contour width", func(p *Panel) { p.Contours = []Contour{{W: 0, H: 8}} }, 1},
-		{"NaN contour level", func(p *Panel) { p.Contours = []Contour{{Field: make([]float64, 64), W: 8, H: 8, Level: nan}} }, 1},
+		{"NaN contour level", func(p *Panel) { p.Contours = []Contour{{Field: make([]float32, 64), W: 8, H: 8, Level: nan}} }, 1},
 		{"empty bar", func(p *Panel) { p.Bar = &ColorBar{} }, 1},
 		{"bar tick outside", func(p *Panel) { p.Bar = &ColorBar{Colors: []color.RGBA{white}, Ticks: []Tick{{T: 1.5}}} }, 1},
 		{"bar tick NaN", func(p *Panel) { p.Bar = &ColorBar{Colors: []color.RGBA{white}, Ticks: []Tick{{T: nan}}} }, 1},

@@ -77,7 +77,7 @@ type Polyline struct {
 // it spans the same window as the map (usually W and H are the map's
 // size). NaN values mark missing data. A zero Color is black.
 type Contour struct {
-	Field []float64
+	Field []float32
 	W, H  int
 	Level float64
 	// Label is written once, on the longest piece of the contour.
@@ -210,10 +210,12 @@ func drawPanel(p Panel, zoom float64) (*image.RGBA, image.Rectangle, error) {
 	if mw > maxSide || mh > maxSide {
 		return nil, image.Rectangle{}, fmt.Errorf("figure: map of %v×%v pixels is too large", mw, mh)
 	}
-	st, err := newStyles(0.022 * math.Max(mw, mh))
+	em := 0.022 * math.Max(mw, mh)
+	st, err := getStyles(em)
 	if err != nil {
 		return nil, image.Rectangle{}, err
 	}
+	defer putStyles(em, st)
 
 	ax := &axes{st: st, w: mw, h: mh}
 	bottom := fitScale(st, mw, true, func(n int) scale {
@@ -276,15 +278,17 @@ func drawPanel(p Panel, zoom float64) (*image.RGBA, image.Rectangle, error) {
 	toFig := func(x, y float64) (float64, float64) {
 		return ax.x0 + (x-p.X.Min)/(p.X.Max-p.X.Min)*mw, ax.y0 + (p.Y.Max-y)/(p.Y.Max-p.Y.Min)*mh
 	}
-	for _, c := range p.Contours {
-		drawContourLines(dc, st, c, ax)
+	paths := make([][][]point, len(p.Contours))
+	for i, c := range p.Contours {
+		paths[i] = contourPaths(c, ax)
+		drawContourLines(dc, st, c, paths[i])
 	}
 	win := [4]float64{p.X.Min, p.X.Max, p.Y.Min, p.Y.Max}
 	for _, l := range p.Lines {
 		drawPolyline(dc, st, l, win, toFig)
 	}
-	for _, c := range p.Contours {
-		drawContourLabel(dc, st, c, ax)
+	for i, c := range p.Contours {
+		drawContourLabel(dc, st, c, paths[i])
 	}
 	dc.ResetClip()
 	if len(p.Legend) > 0 {
@@ -485,12 +489,12 @@ func contourPaths(c Contour, ax *axes) [][]point {
 	return out
 }
 
-// drawContourLines strokes the pieces of c.
-func drawContourLines(dc *gg.Context, st *styles, c Contour, ax *axes) {
+// drawContourLines strokes the pieces of c (its contourPaths).
+func drawContourLines(dc *gg.Context, st *styles, c Contour, paths [][]point) {
 	setStroke(dc, orBlack(c.Color), math.Max(1, math.Round(0.09*st.em*2)/2), false)
 	dc.SetLineCapRound()
 	dc.SetLineJoinRound()
-	for _, pts := range contourPaths(c, ax) {
+	for _, pts := range paths {
 		for i, q := range pts {
 			if i == 0 {
 				dc.MoveTo(q.x, q.y)
@@ -503,14 +507,15 @@ func drawContourLines(dc *gg.Context, st *styles, c Contour, ax *axes) {
 }
 
 // drawContourLabel writes c.Label at the middle (by length) of the longest
-// piece of c, on a small background that contrasts with the label colour.
-func drawContourLabel(dc *gg.Context, st *styles, c Contour, ax *axes) {
+// piece of c (of its contourPaths), on a small background that contrasts
+// with the label colour.
+func drawContourLabel(dc *gg.Context, st *styles, c Contour, paths [][]point) {
 	if c.Label == "" {
 		return
 	}
 	var best []point
 	bestLen := 0.0
-	for _, pts := range contourPaths(c, ax) {
+	for _, pts := range paths {
 		if l := pathLength(pts); l > bestLen {
 			best, bestLen = pts, l
 		}

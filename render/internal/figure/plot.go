@@ -168,10 +168,12 @@ func DrawPlot(p Plot) (*image.RGBA, error) {
 	if err != nil {
 		return nil, err
 	}
-	st, err := newStyles(0.028 * float64(min(fw, fh)))
+	em := 0.028 * float64(min(fw, fh))
+	st, err := getStyles(em)
 	if err != nil {
 		return nil, err
 	}
+	defer putStyles(em, st)
 	ax := &axes{st: st}
 	var box barBox
 	barGap := math.Round(1.2 * st.em)

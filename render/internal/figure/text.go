@@ -12,6 +12,7 @@ import (
 	"golang.org/x/image/font"
 	"golang.org/x/image/font/gofont/gobold"
 	"golang.org/x/image/font/gofont/goregular"
+	"golang.org/x/image/math/fixed"
 )
 
 // The Go fonts are parsed once; faces are made per figure because a
@@ -53,7 +54,8 @@ func (t textStyle) height() float64 { return t.ascent + t.descent }
 
 // newStyle makes a face of f at size pixels.
 func newStyle(f *truetype.Font, size float64, c color.RGBA) textStyle {
-	face := truetype.NewFace(f, &truetype.Options{Size: size, DPI: 72, Hinting: font.HintingFull})
+	face := &metricCache{Face: truetype.NewFace(f, &truetype.Options{Size: size, DPI: 72, Hinting: font.HintingFull}),
+		advance: map[rune]advance{}, bounds: map[rune]glyphBounds{}}
 	ink, _ := font.BoundString(face, "([|bdfghjklpqy0189µ°⁹αβθ")
 	digit, _ := font.BoundString(face, "0")
 	return textStyle{
@@ -62,6 +64,76 @@ func newStyle(f *truetype.Font, size float64, c color.RGBA) textStyle {
 		descent: float64(ink.Max.Y) / 64,
 		capH:    float64(-digit.Min.Y) / 64,
 		color:   c,
+	}
+}
+
+// metricCache is a face that remembers the advance and bounds of every
+// glyph it has measured: a truetype face loads and hints the glyph again
+// for each measurement, and a figure measures the same few characters
+// hundreds of times. Like the face, it is for one goroutine at a time.
+type metricCache struct {
+	font.Face
+	advance map[rune]advance
+	bounds  map[rune]glyphBounds
+}
+
+type advance struct {
+	w  fixed.Int26_6
+	ok bool
+}
+
+type glyphBounds struct {
+	b  fixed.Rectangle26_6
+	w  fixed.Int26_6
+	ok bool
+}
+
+func (m *metricCache) GlyphAdvance(r rune) (fixed.Int26_6, bool) {
+	a, hit := m.advance[r]
+	if !hit {
+		a.w, a.ok = m.Face.GlyphAdvance(r)
+		m.advance[r] = a
+	}
+	return a.w, a.ok
+}
+
+func (m *metricCache) GlyphBounds(r rune) (fixed.Rectangle26_6, fixed.Int26_6, bool) {
+	g, hit := m.bounds[r]
+	if !hit {
+		g.b, g.w, g.ok = m.Face.GlyphBounds(r)
+		m.bounds[r] = g
+	}
+	return g.b, g.w, g.ok
+}
+
+// stylePool keeps the styles of finished figures by base size, so that a
+// run's figures (all of one size in a sweep) reuse faces whose glyphs
+// are already loaded: getStyles hands each set to one figure at a time.
+var stylePool = struct {
+	sync.Mutex
+	free map[float64][]*styles
+}{free: map[float64][]*styles{}}
+
+// getStyles returns newStyles(em), reused when a figure has put it back.
+func getStyles(em float64) (*styles, error) {
+	stylePool.Lock()
+	list := stylePool.free[em]
+	if n := len(list); n > 0 {
+		st := list[n-1]
+		stylePool.free[em] = list[:n-1]
+		stylePool.Unlock()
+		return st, nil
+	}
+	stylePool.Unlock()
+	return newStyles(em)
+}
+
+// putStyles gives st back for later figures of the same size.
+func putStyles(em float64, st *styles) {
+	stylePool.Lock()
+	defer stylePool.Unlock()
+	if len(stylePool.free[em]) < 8 {
+		stylePool.free[em] = append(stylePool.free[em], st)
 	}
 }
 

@@ -81,8 +81,15 @@ type Image struct {
 	Unit          string    // BUNIT; "" = omit
 	Width, Height int       // NAXIS1 and NAXIS2, both ≥ 1
 	Data          []float32 // len Width*Height, row-major: Data[(j-1)*Width+(i-1)] is FITS pixel (i, j); Data[0] is pixel (1, 1), bottom-left when displayed
-	Axes          [2]Axis   // WCS of axis 1 (x) and axis 2 (y); both Type "" = no WCS
-	Cards         []Card    // extra cards, written after the structural and WCS ones
+	// Rows, if not nil, gives the pixels instead of Data (which must then
+	// be nil), one row at a time while Encode writes them: Rows(j, row)
+	// fills row (Width values) with FITS row j+1, the values Data[j*Width:
+	// (j+1)*Width] would hold; j = 0 is the bottom row. It is called once
+	// per row, in increasing j, so an image never needs a copy of its own
+	// in memory.
+	Rows  func(j int, row []float32)
+	Axes  [2]Axis // WCS of axis 1 (x) and axis 2 (y); both Type "" = no WCS
+	Cards []Card  // extra cards, written after the structural and WCS ones
 }
 
 // Encode writes a complete FITS file to w: a primary HDU (NAXIS = 0,
@@ -125,11 +132,32 @@ func Encode(w io.Writer, primary []Card, images []Image) error {
 	if _, err := bw.Write(headers[0]); err != nil {
 		return fmt.Errorf("fits: writing primary header: %w", err)
 	}
+	var row []float32 // one row of a Rows image, reused
 	for i := range images {
+		im := &images[i]
 		if _, err := bw.Write(headers[i+1]); err != nil {
 			return fmt.Errorf("fits: writing header of image %d: %w", i, err)
 		}
-		if err := writeData(bw, images[i].Data); err != nil {
+		var err error
+		if im.Rows == nil {
+			err = writeData(bw, im.Data)
+			if err == nil {
+				err = padData(bw, len(im.Data))
+			}
+		} else {
+			if cap(row) < im.Width {
+				row = make([]float32, im.Width)
+			}
+			row = row[:im.Width]
+			for j := 0; j < im.Height && err == nil; j++ {
+				im.Rows(j, row)
+				err = writeData(bw, row)
+			}
+			if err == nil {
+				err = padData(bw, im.Width*im.Height)
+			}
+		}
+		if err != nil {
 			return fmt.Errorf("fits: writing data of image %d: %w", i, err)
 		}
 	}
@@ -164,7 +192,11 @@ func imageHeader(im *Image) ([]byte, error) {
 	if im.Width > math.MaxInt/4/im.Height {
 		return nil, fmt.Errorf("size %d×%d too large", im.Width, im.Height)
 	}
-	if n := im.Width * im.Height; len(im.Data) != n {
+	if im.Rows != nil {
+		if im.Data != nil {
+			return nil, errors.New("both Data and Rows given: give one")
+		}
+	} else if n := im.Width * im.Height; len(im.Data) != n {
 		return nil, fmt.Errorf("len(Data) = %d, want Width*Height = %d", len(im.Data), n)
 	}
 	h := newHeader(len(im.Cards) + 20)
@@ -234,12 +266,10 @@ func addWCS(h *header, axes [2]Axis) error {
 	return h.err
 }
 
-// writeData writes the pixels as big-endian IEEE-754 float32 (Standard 4.0,
-// sec. 5.3), unchanged (NaN payloads and signed zeros included), then zero
-// bytes up to the end of the last block. It encodes straight into the
-// buffer's free space, so it allocates nothing.
+// writeData writes pixels as big-endian IEEE-754 float32 (Standard 4.0,
+// sec. 5.3), unchanged (NaN payloads and signed zeros included). It
+// encodes straight into the buffer's free space, so it allocates nothing.
 func writeData(bw *bufio.Writer, data []float32) error {
-	n := 4 * len(data)
 	for len(data) > 0 {
 		if bw.Available() < 4 {
 			if err := bw.Flush(); err != nil {
@@ -256,10 +286,15 @@ func writeData(bw *bufio.Writer, data []float32) error {
 		}
 		data = data[k:]
 	}
-	if pad := (blockSize - n%blockSize) % blockSize; pad > 0 {
-		if _, err := bw.Write(zeroBlock[:pad]); err != nil {
-			return err
-		}
+	return nil
+}
+
+// padData writes the zero bytes that fill the last data block of an image of
+// n pixels (Standard 4.0, sec. 3.3.2).
+func padData(bw *bufio.Writer, n int) error {
+	if p := (blockSize - 4*n%blockSize) % blockSize; p > 0 {
+		_, err := bw.Write(zeroBlock[:p])
+		return err
 	}
 	return nil
 }

@@ -265,6 +265,50 @@ func TestDataBigEndianExact(t *testing.T) {
 	}
 }
 
+// An image given by Rows is written like the same pixels given as Data:
+// row j of the callback is FITS row j+1, axis 1 fastest (Standard 4.0,
+// sec. 3.3.2), each row asked for once and in order, and the last block
+// is filled with zeros (sec. 3.3.2).
+func TestRowsStreamTheSamePixels(t *testing.T) {
+	w, h := 700, 5 // rows of 2800 bytes: rows and blocks do not line up
+	want := ramp(w, h)
+	next := 0
+	rows := func(j int, row []float32) {
+		if j != next || len(row) != w {
+			t.Fatalf("Rows(%d, len %d) called after row %d", j, len(row), next-1)
+		}
+		next++
+		for i := range row {
+			row[i] = float32(j*w+i) * 0.25 // the values of ramp
+		}
+	}
+	b := encode(t, nil, []Image{{Name: "S", Width: w, Height: h, Rows: rows}, {Name: "T", Width: 2, Height: 1, Data: []float32{1, 2}}})
+	if next != h {
+		t.Fatalf("Rows called for %d rows, want %d", next, h)
+	}
+	hdus := splitHDUs(t, b)
+	if len(hdus) != 3 {
+		t.Fatalf("%d HDUs, want 3", len(hdus))
+	}
+	d := hdus[1].data
+	if len(d)%blockSize != 0 || len(d) < 4*w*h {
+		t.Fatalf("data of %d bytes", len(d))
+	}
+	for k, v := range want {
+		if got := binary.BigEndian.Uint32(d[4*k:]); got != math.Float32bits(v) {
+			t.Fatalf("pixel %d: bits %#08x, want %#08x", k, got, math.Float32bits(v))
+		}
+	}
+	for k := 4 * w * h; k < len(d); k++ {
+		if d[k] != 0 {
+			t.Fatalf("fill byte %d is %#02x, want 0", k, d[k])
+		}
+	}
+	if !bytes.Equal(b, encode(t, nil, []Image{{Name: "S", Width: w, Height: h, Data: want}, {Name: "T", Width: 2, Height: 1, Data: []float32{1, 2}}})) {
+		t.Error("Rows and Data give different files")
+	}
+}
+
 // FITS Standard 4.0, sec. 4.2.1.1 (strings: quote in column 11, embedded
 // quotes doubled, at least 8 characters so the closing quote is at column 20
 // or later), 4.2.2 (logical T/F in column 30), 4.2.3 (integers right-justified
@@ -587,6 +631,7 @@ func TestValidationErrors(t *testing.T) {
 		{"short data", nil, withImage(func(im *Image) { im.Data = im.Data[:3] }), "len(Data)"},
 		{"long data", nil, withImage(func(im *Image) { im.Data = make([]float32, 5) }), "len(Data)"},
 		{"nil data", nil, withImage(func(im *Image) { im.Data = nil }), "len(Data)"},
+		{"data and rows", nil, withImage(func(im *Image) { im.Rows = func(int, []float32) {} }), "Rows"},
 		{"overflowing size", nil, withImage(func(im *Image) { im.Width, im.Height = math.MaxInt/2, 3 }), "too large"},
 		// Image strings.
 		{"name too long", nil, withImage(func(im *Image) { im.Name = strings.Repeat("n", 69) }), `"EXTNAME"`},
