@@ -216,7 +216,7 @@ func TestLoadSizeCap(t *testing.T) {
 
 // TestResolveIsMachineIndependent checks that the largest scene Resolve
 // accepts does not depend on the memory of the machine: memory is checked
-// by the command, against MemoryEstimate.
+// by the command, against outputs.MemoryEstimate.
 func TestResolveIsMachineIndependent(t *testing.T) {
 	s := Default()
 	s.Screen.Width, s.Screen.Height, s.Disk.Orders = MaxPixels, MaxPixels, MaxOrders

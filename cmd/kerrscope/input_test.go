@@ -6,9 +6,11 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+	"runtime"
 	"strings"
 	"testing"
 
+	"kerrscope/render/outputs"
 	"kerrscope/scene"
 )
 
@@ -123,7 +125,7 @@ func TestMemoryCheckInCommand(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	need := scene.MemoryEstimate(r)
+	need := outputs.MemoryEstimate(r, outputs.Set{Manifest: true}, runtime.GOMAXPROCS(0))
 	memoryLimit = func() (int64, string, bool) { return need - 1, "a test limit", true }
 	for _, cmd := range [][]string{{"render"}, {"locate"}, {"sweep", "--vary", "spin=0.1:0.2:2"}} {
 		args := append(cmd, "--width", "64", "--height", "64", "--out", filepath.Join(dir, "out"), "--quiet", "--formats", "csv")
@@ -137,7 +139,7 @@ func TestMemoryCheckInCommand(t *testing.T) {
 		t.Errorf("at the limit: exit %d, %s", code, stderr)
 	}
 	memoryLimit = func() (int64, string, bool) { return 0, "", false }
-	if err := checkMemory(r); err != nil {
+	if err := checkMemory(r, outputs.Set{Manifest: true}); err != nil {
 		t.Errorf("no known limit: %v", err)
 	}
 }

@@ -5,9 +5,11 @@ import (
 	"bytes"
 	"fmt"
 	"os"
+	"runtime"
 	"strconv"
 	"strings"
 
+	"kerrscope/render/outputs"
 	"kerrscope/scene"
 )
 
@@ -98,14 +100,15 @@ func readCgroupLimit(path string) (int64, bool) {
 	return v, true
 }
 
-// checkMemory refuses a render whose estimated peak memory
-// (scene.MemoryEstimate) exceeds what the process may use.
-func checkMemory(r scene.Resolved) error {
+// checkMemory refuses a run whose estimated peak memory
+// (outputs.MemoryEstimate for the artifacts of set) exceeds what the
+// process may use.
+func checkMemory(r scene.Resolved, set outputs.Set) error {
 	limit, source, ok := memoryLimit()
 	if !ok {
 		return nil
 	}
-	need := scene.MemoryEstimate(r)
+	need := outputs.MemoryEstimate(r, set, runtime.GOMAXPROCS(0))
 	if need <= limit {
 		return nil
 	}

@@ -84,7 +84,7 @@ func loadScene(path string, base scene.Scene, vals []pending) (scene.Scene, erro
 	return s, nil
 }
 
-// buildScene is loadScene followed by validation and the memory check.
+// buildScene is loadScene followed by validation.
 func buildScene(path string, base scene.Scene, vals []pending) (scene.Resolved, error) {
 	s, err := loadScene(path, base, vals)
 	if err != nil {
@@ -94,7 +94,7 @@ func buildScene(path string, base scene.Scene, vals []pending) (scene.Resolved, 
 	if err != nil {
 		return r, usagef("%w", err)
 	}
-	return r, checkMemory(r)
+	return r, nil
 }
 
 func progressWriter(quiet bool, stderr io.Writer) io.Writer {
@@ -157,6 +157,9 @@ func runDemo(ctx context.Context, args []string, stdout, stderr io.Writer) error
 }
 
 func renderAndReport(ctx context.Context, r scene.Resolved, band, quiet bool, stdout, stderr io.Writer) error {
+	if err := checkMemory(r, outputs.Set{Band: band, Manifest: true}); err != nil {
+		return err
+	}
 	bar := newProgress(progressWriter(quiet, stderr), "tracing rows")
 	rows := r.Screen.Height
 	sum, err := outputs.Run(ctx, r, outputs.Options{Version: version, Progress: func(n int) { bar.set(n, rows) }, Band: band})

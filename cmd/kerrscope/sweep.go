@@ -6,9 +6,11 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"runtime"
 	"strings"
 
 	"kerrscope/render/maps"
+	"kerrscope/render/outputs"
 	"kerrscope/render/sweep"
 	"kerrscope/scene"
 )
@@ -80,13 +82,15 @@ func runSweep(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	case err != nil:
 		return usagef("%w", err)
 	}
+	frame := outputs.Set{Indexed: true}
+	estimate := func(r scene.Resolved) int64 { return outputs.MemoryEstimate(r, frame, runtime.GOMAXPROCS(0)) }
 	biggest := plan.Points[0].Scene
 	for _, pt := range plan.Points {
-		if scene.MemoryEstimate(pt.Scene) > scene.MemoryEstimate(biggest) {
+		if estimate(pt.Scene) > estimate(biggest) {
 			biggest = pt.Scene
 		}
 	}
-	if err := checkMemory(biggest); err != nil {
+	if err := checkMemory(biggest, frame); err != nil {
 		return err
 	}
 	if sh == (sweep.Shard{}) {

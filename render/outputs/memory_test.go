@@ -5,15 +5,14 @@ import (
 	"testing"
 
 	"kerrscope/render/pixels"
-
 	"kerrscope/scene"
 )
 
-// TestMemoryEstimateCoversLiveData checks scene.MemoryEstimate against the
+// TestMemoryEstimateCoversLiveData checks MemoryEstimate against the
 // renderer's own allocations: from a one-pixel image to a larger one, the
-// estimate must grow by at least the bytes held at once while the FITS
-// file is encoded, the frame's records plus every image fitsImages
-// builds, counted from the slices themselves.
+// estimate must grow by at least the bytes of the frame's records, counted
+// from the slices themselves, plus any pixel data the FITS images hold
+// (none: they are streamed row by row).
 func TestMemoryEstimateCoversLiveData(t *testing.T) {
 	live := func(w, h, n int) (int64, int64) {
 		r := resolve(t, func(s *scene.Scene) {
@@ -31,7 +30,7 @@ func TestMemoryEstimateCoversLiveData(t *testing.T) {
 		for _, im := range fitsImages(f) {
 			b += 4 * int64(len(im.Data))
 		}
-		return b, scene.MemoryEstimate(r)
+		return b, MemoryEstimate(r, Set{Manifest: true}, 2)
 	}
 	for _, c := range [][3]int{{40, 30, 1}, {64, 64, 3}, {33, 17, 8}, {16, 16, scene.MaxOrders}} {
 		l0, e0 := live(1, 1, c[2])

@@ -49,7 +49,7 @@ func Run(ctx context.Context, r scene.Resolved, opt Options) (Summary, error) {
 		return Summary{}, err
 	}
 	defer lk.Unlock()
-	f, err := pixels.RenderScene(ctx, r, opt.Progress)
+	f, err := pixels.RenderScene(ctx, r, opt.Progress, Needs(Artifacts(r.Output, Set{Band: opt.Band, Manifest: true})))
 	if err == nil {
 		err = pixels.CheckFinite(f)
 	}
