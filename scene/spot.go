@@ -45,8 +45,6 @@ const (
 	SpotAnnulus
 )
 
-var spotProfileNames = []string{"", "gaussian", "annulus"}
-
 // Limits of a spot movie.
 const (
 	MaxSpotFrames  = 4096
@@ -84,7 +82,8 @@ func (s SpotEmission) Azimuth(t float64) float64 { return s.Phase + s.Omega*t }
 //
 //	ε_s = contrast ε_disk(r_s) exp(−d²/2σ²),  d² = r² + r_s² − 2 r r_s cos(dphi),
 //
-// d being the distance on the equatorial plane in Boyer–Lindquist r, φ
+// cut to 0 beyond d = 6σ (below 2e-16 of the peak), d being the distance
+// on the equatorial plane in Boyer–Lindquist r, φ
 // taken as flat polar coordinates (common practice for hot-spot models).
 // Annulus: contrast ε_disk(r) where |r − r_s| ≤ size/2 and
 // |dphi mod 2π| ≤ arc/2, else 0. Domain: r > 0, finite dphi.
@@ -94,8 +93,11 @@ func (s SpotEmission) At(r, dphi float64) float64 {
 	}
 	switch s.Profile {
 	case SpotGaussian:
-		d2 := r*r + s.Radius*s.Radius - 2*r*s.Radius*math.Cos(dphi)
-		return s.Peak * math.Exp(-d2/(2*s.Size*s.Size))
+		x := (r*r + s.Radius*s.Radius - 2*r*s.Radius*math.Cos(dphi)) / (2 * s.Size * s.Size)
+		if x > 36 {
+			return 0 // beyond 6σ: below e^-36 = 2e-16 of the peak
+		}
+		return s.Peak * math.Exp(-x)
 	case SpotAnnulus:
 		if math.Abs(math.Remainder(dphi, 2*math.Pi)) <= s.HalfArc {
 			return s.Contrast * s.Disk.At(r)

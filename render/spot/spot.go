@@ -37,12 +37,17 @@ type Table struct {
 	W, H int
 	// Fate is each pixel's photon fate; Lit says whether any of its
 	// crossings can shine.
-	Fate    []raytrace.Fate
-	Lit     []bool
-	cross   []crossing // by pixel, then order
-	alpha   []float64  // α of each column
-	beta    []float64  // β of each row
-	Photons int64
+	Fate  []raytrace.Fate
+	Lit   []bool
+	cross []crossing // every crossing, by pixel, then order
+	spot  []crossing // the crossings within the spot's radii
+	// static holds the steady disk's light: its image, and its sums
+	// (Flux, Bol, and the centroid moments in Alpha, Beta).
+	static    Snapshot
+	staticImg []float64
+	alpha     []float64 // α of each column
+	beta      []float64 // β of each row
+	Photons   int64
 }
 
 // Trace traces the photon of every pixel centre once, with timing, on all
@@ -111,6 +116,18 @@ func Trace(ctx context.Context, r scene.Resolved, sp scene.SpotEmission, progres
 	for _, row := range rows {
 		t.cross = append(t.cross, row...)
 	}
+	t.staticImg = make([]float64, w*h)
+	da := t.PixelArea()
+	for _, c := range t.cross {
+		if c.r >= sp.Inner && c.r <= sp.Outer {
+			t.spot = append(t.spot, c)
+		}
+		t.staticImg[c.pix] += c.disk
+		t.static.Flux += c.disk * da
+		t.static.Bol += c.disk * c.g * da
+		t.static.Alpha += c.disk * da * t.alpha[int(c.pix)%w]
+		t.static.Beta += c.disk * da * t.beta[int(c.pix)/w]
+	}
 	return t, nil
 }
 
@@ -143,34 +160,36 @@ type Snapshot struct {
 // Sums run in a fixed order, so the result is reproducible to the bit.
 func (t *Table) At(tobs float64, img []float64, spec *pixels.Spectrum, spotOnly bool) Snapshot {
 	if img != nil {
-		for k := range img {
-			img[k] = 0
-		}
+		copy(img, t.staticImg)
 	}
 	sp := t.Spot
-	s := Snapshot{T: tobs}
-	var sa, sb float64
 	da := t.PixelArea()
-	for _, c := range t.cross {
+	if spec != nil && !spotOnly && !sp.Alone {
+		for _, c := range t.cross {
+			spec.Add(int(c.order), c.g, c.disk*da)
+		}
+	}
+	s := t.static
+	s.T = tobs
+	sa, sb := s.Alpha, s.Beta
+	for _, c := range t.spot {
 		dphi := c.phi - sp.Azimuth(tobs-c.delay)
 		spot := c.w * sp.At(c.r, dphi)
-		line := spot + c.disk
+		if spot == 0 {
+			continue
+		}
 		if img != nil {
-			img[c.pix] += line
+			img[c.pix] += spot
 		}
 		if spec != nil {
-			if spotOnly {
-				spec.Add(int(c.order), c.g, spot*da)
-			} else {
-				spec.Add(int(c.order), c.g, line*da)
-			}
+			spec.Add(int(c.order), c.g, spot*da)
 		}
-		s.Flux += line * da
+		s.Flux += spot * da
 		s.SpotFlux += spot * da
-		s.Bol += line * c.g * da
+		s.Bol += spot * c.g * da
 		i, j := int(c.pix)%t.W, int(c.pix)/t.W
-		sa += line * da * t.alpha[i]
-		sb += line * da * t.beta[j]
+		sa += spot * da * t.alpha[i]
+		sb += spot * da * t.beta[j]
 	}
 	s.Alpha, s.Beta = math.NaN(), math.NaN()
 	if s.Flux > 0 {
