@@ -28,6 +28,7 @@ type Scene struct {
 	Spectrum Spectrum `toml:"spectrum"`
 	Refine   Refine   `toml:"refine"`
 	Band     Band     `toml:"band"`
+	Spot     Spot     `toml:"spot"`
 	Output   Output   `toml:"output"`
 
 	// given holds the keys set by the user (scene file or flags); see
@@ -153,6 +154,7 @@ func Default() Scene {
 		Spectrum: Spectrum{Bins: 240},
 		Refine:   Refine{Depth: 0, TolR: 0.05, TolG: 0.01},
 		Band:     Band{RMin: "isco", RMax: "isco*1.1"},
+		Spot:     DefaultSpot(),
 		Output: Output{Directory: "kerrscope-out", Maps: append([]string(nil), defaultMaps...),
 			Formats: append([]string(nil), FormatNames...), IntensityScale: "log"},
 	}

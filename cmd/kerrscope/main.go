@@ -41,6 +41,7 @@ func commands() []command {
 		{"lensing", "widths of the lensing bands of each image order along screen directions", runLensing},
 		{"sweep", "render a scene over a range of spins, inclinations, ... (resumable, shardable)", runSweep},
 		{"sweep-merge", "merge a finished sweep: animated GIFs, all spectra in one plot", runSweepMerge},
+		{"spot", "movie of an orbiting hot spot in observer time: frames, GIF, light curve, centroid, line profile vs time", runSpot},
 		{"probe", "trace the photon of one screen point and list its disk crossings", runProbe},
 		{"version", "print the program version", func(_ context.Context, _ []string, stdout, _ io.Writer) error {
 			_, err := fmt.Fprintln(stdout, "kerrscope", version)

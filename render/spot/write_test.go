@@ -1,0 +1,50 @@
+package spot
+
+import (
+	"bytes"
+	"context"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"kerrscope/scene"
+)
+
+// Two runs of one scene write the same files, byte for byte, and the
+// tables carry their units.
+func TestRunReproducible(t *testing.T) {
+	dir := filepath.Join(t.TempDir(), "movie")
+	var runs []map[string][]byte
+	for range 2 {
+		r, sp := movieScene(t, 0.9, 60, func(s *scene.Scene) {
+			s.Screen.Width, s.Screen.Height, s.Spot.Frames = 32, 32, 8
+			s.Output.Directory = dir
+		})
+		sum, err := Run(context.Background(), r, sp, Options{Version: "test"})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if len(sum.Files) != 8+8 {
+			t.Fatalf("%d files, want 16: %v", len(sum.Files), sum.Files)
+		}
+		files := map[string][]byte{}
+		for _, n := range sum.Files {
+			b, err := os.ReadFile(n)
+			if err != nil {
+				t.Fatal(err)
+			}
+			files[filepath.Base(n)] = b
+		}
+		runs = append(runs, files)
+	}
+	for n, a := range runs[0] {
+		if !bytes.Equal(a, runs[1][n]) {
+			t.Errorf("%s differs between runs", n)
+		}
+	}
+	lc := string(runs[0]["spot-lightcurve.csv"])
+	if !strings.Contains(lc, "t_obs_m,orbits,flux,flux_spot,flux_bol\n") || !strings.Contains(lc, "M^2") {
+		t.Errorf("light curve header lacks columns or units:\n%s", lc)
+	}
+}
