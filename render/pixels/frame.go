@@ -3,7 +3,6 @@ package pixels
 import (
 	"context"
 	"math"
-	"sync"
 
 	"kerrscope/raytrace"
 	"kerrscope/render/internal/workers"
@@ -118,8 +117,7 @@ func Render(ctx context.Context, r scene.Resolved, progress func(rows int), keep
 	}
 	w, h, n := r.Screen.Width, r.Screen.Height, r.Disk.Orders
 	f := newFrame(r, m, keepOf(keep))
-	var mu sync.Mutex
-	done := 0
+	finished := workers.Counter(progress)
 	parallel(ctx, h, n, func(j int, p *raytrace.Path, s *Sample) {
 		beta := PixelBeta(r, j)
 		var tp raytrace.TimedPath
@@ -134,12 +132,7 @@ func Render(ctx context.Context, r scene.Resolved, progress func(rows int), keep
 			}
 			f.store(j*w+i, s)
 		}
-		if progress != nil {
-			mu.Lock()
-			done++
-			progress(done)
-			mu.Unlock()
-		}
+		finished()
 	})
 	if err := ctx.Err(); err != nil {
 		return nil, err

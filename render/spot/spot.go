@@ -9,7 +9,6 @@ package spot
 import (
 	"context"
 	"math"
-	"sync"
 
 	"kerrscope/raytrace"
 	"kerrscope/render/internal/workers"
@@ -78,8 +77,7 @@ func Trace(ctx context.Context, r scene.Resolved, sp scene.SpotEmission, progres
 		tp raytrace.TimedPath
 		s  pixels.Sample
 	}
-	done := 0
-	var mu sync.Mutex
+	finished := workers.Counter(progress)
 	workers.Each(ctx, h, func() *scratch {
 		return &scratch{tp: raytrace.TimedPath{Path: raytrace.Path{Crossings: make([]raytrace.Crossing, 0, n)}, Times: make([]raytrace.Timing, 0, n)}}
 	}, func(j int, sc *scratch) {
@@ -103,12 +101,7 @@ func Trace(ctx context.Context, r scene.Resolved, sp scene.SpotEmission, progres
 			}
 		}
 		rows[j] = row
-		if progress != nil {
-			mu.Lock()
-			done++
-			progress(done)
-			mu.Unlock()
-		}
+		finished()
 	})
 	if err := ctx.Err(); err != nil {
 		return nil, err

@@ -35,3 +35,21 @@ func Each[S any](ctx context.Context, n int, scratch func() S, job func(i int, s
 	}
 	wg.Wait()
 }
+
+// Counter returns a function that jobs call when they finish: it counts
+// them and passes the count to report, from one goroutine at a time, so
+// that report (a progress bar) needs no locking. A nil report gives a
+// function that does nothing.
+func Counter(report func(done int)) func() {
+	if report == nil {
+		return func() {}
+	}
+	var mu sync.Mutex
+	done := 0
+	return func() {
+		mu.Lock()
+		done++
+		report(done)
+		mu.Unlock()
+	}
+}

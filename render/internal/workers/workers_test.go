@@ -38,3 +38,18 @@ func TestEachStopsWhenCancelled(t *testing.T) {
 		t.Errorf("ran %d jobs after cancelling at the 10th", n)
 	}
 }
+
+func TestCounterReportsEveryJobInOrder(t *testing.T) {
+	var got []int
+	finished := Counter(func(done int) { got = append(got, done) })
+	Each(context.Background(), 500, func() struct{} { return struct{}{} }, func(int, struct{}) { finished() })
+	if len(got) != 500 {
+		t.Fatalf("%d reports for 500 jobs", len(got))
+	}
+	for i, d := range got {
+		if d != i+1 {
+			t.Fatalf("report %d said %d", i, d)
+		}
+	}
+	Counter(nil)() // no report: does nothing
+}
