@@ -44,7 +44,11 @@ type MergeOptions struct {
 // of the second axis), if the sweep wrote spectra, and sweep-frames.csv,
 // the frame numbers with their swept values. It returns the paths
 // written; on error, or when ctx is done, nothing is written. The files of
-// the last merge that this one does not write again are removed.
+// the last merge that this one does not write again are removed. For a
+// hot-spot movie (NewSpotPlan) it writes, in place of the GIFs and the
+// plot of spectra, what spot.Run writes besides the frames (spot-movie.gif,
+// the light curve, the centroid track, the line profile against time,
+// spot.toml), from one trace of the screen, and the frame table.
 func Merge(ctx context.Context, dir string, opt MergeOptions) ([]string, error) {
 	delay := opt.DelayMS
 	if delay == 0 {
@@ -80,6 +84,17 @@ func Merge(ctx context.Context, dir string, opt MergeOptions) ([]string, error) 
 	}
 	if err := p.checkComplete(ms); err != nil {
 		return nil, err
+	}
+	if p.spot != nil {
+		out, err := outputs.NewOutputs(ctx, lk, "merge")
+		if err != nil {
+			return nil, err
+		}
+		if err := p.mergeSpot(ctx, out, sc, ms[0].Program); err != nil {
+			out.Abort()
+			return nil, err
+		}
+		return out.Commit()
 	}
 	maps := opt.GIFs
 	if maps == nil {
