@@ -86,6 +86,9 @@ func Merge(ctx context.Context, dir string, opt MergeOptions) ([]string, error) 
 		return nil, err
 	}
 	if p.spot != nil {
+		if opt.GIFs != nil {
+			return nil, errors.New("a spot movie has one GIF, spot-movie.gif, of its palette frames; the maps to animate cannot be chosen")
+		}
 		out, err := outputs.NewOutputs(ctx, lk, "merge")
 		if err != nil {
 			return nil, err
