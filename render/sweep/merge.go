@@ -371,7 +371,11 @@ func (p *Plan) writeTable(w io.Writer) error {
 	}
 	fmt.Fprintln(w)
 	for _, pt := range p.Points {
-		fmt.Fprintf(w, "%d,%s", pt.Index, p.framePrefix(pt.Index))
+		prefix := p.framePrefix(pt.Index)
+		if p.spot != nil {
+			prefix = strings.TrimSuffix(p.spotFrameName(pt.Index), ".png")
+		}
+		fmt.Fprintf(w, "%d,%s", pt.Index, prefix)
 		for _, v := range pt.Values {
 			fmt.Fprintf(w, ",%s", formatValue(v))
 		}

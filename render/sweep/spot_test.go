@@ -113,6 +113,10 @@ func TestSpotShardsMatchOneProcess(t *testing.T) {
 	if len(files) != 9 {
 		t.Errorf("merge wrote %d files, want 9 (8 of the movie and the frame table): %v", len(files), files)
 	}
+	table := string(dirFiles(t, sharded, "sweep-frames.csv")["sweep-frames.csv"])
+	if !strings.Contains(table, "\nframe,prefix,spot.time\n0,spot-frame-0000,0\n1,spot-frame-0001,") {
+		t.Errorf("frame table does not list the spot frames and their times:\n%s", table)
+	}
 	got := dirFiles(t, sharded, "spot")
 	// The effective scene names its output directory.
 	want["spot.toml"] = bytes.ReplaceAll(want["spot.toml"], []byte(ref), []byte(sharded))
