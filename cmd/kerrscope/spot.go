@@ -2,28 +2,54 @@ package main
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"io"
 
+	"kerrscope/render/maps"
 	"kerrscope/render/spot"
+	"kerrscope/render/sweep"
 	"kerrscope/scene"
 )
 
 // runSpot traces the scene once and writes the movie of its orbiting
 // spot: frames, GIF, light curve, centroid track, line profile vs time.
+// With --shard or --restart the frames go through the sweep machinery
+// (manifest, resume, shards) and sweep-merge writes the rest.
 func runSpot(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 	f := newFlags("spot", stdout)
 	path, quiet, vals := sceneFlags(f)
+	var sh sweep.Shard
+	f.fs.Var(shardFlag{&sh}, "shard", "render only the frames with index mod N = K−1, resumably, recorded in a sweep manifest; when every share is done, kerrscope sweep-merge --out DIR writes the GIF, light curve, centroid and line profile (1/1: one resumable process)")
+	restart := f.fs.Bool("restart", false, "with --shard: start over, removing the files the output directory's sweep manifests record (unchanged ones only) and the manifests")
+	var sc maps.Scales
+	f.float(&sc.IMax, "intensity-max", 0, "with --shard: intensity colour scale maximum, > 0 (default: the brightest pixel of any frame)")
 	if err := f.parse(args); err != nil {
 		return err
 	}
-	r, err := buildScene(*path, scene.Default(), *vals)
+	if err := checkScaleFlags(f, sc); err != nil {
+		return err
+	}
+	sharded := f.given("shard")
+	for _, name := range []string{"restart", "intensity-max"} {
+		if f.given(name) && !sharded {
+			return usagef("--%s applies to a movie made in shares: give --shard K/N (1/1 for one resumable process)", name)
+		}
+	}
+	s, err := loadScene(*path, scene.Default(), *vals)
 	if err != nil {
 		return err
+	}
+	r, err := s.Resolve()
+	if err != nil {
+		return usagef("%w", err)
 	}
 	sp, err := scene.ResolveSpot(r)
 	if err != nil {
 		return usagef("%w", err)
+	}
+	if sharded {
+		return runSpotShard(ctx, s, sh, *restart, sc, *quiet, stdout, stderr)
 	}
 	bar := newProgress(progressWriter(*quiet, stderr), "tracing rows")
 	rows := r.Screen.Height
@@ -34,5 +60,35 @@ func runSpot(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	}
 	fmt.Fprintf(stdout, "spot orbit period %.6g M; flux from %.6g to %.6g\n", sum.Period, sum.FluxMin, sum.FluxMax)
 	fmt.Fprintf(stdout, "traced %d photons once for %d frames; wrote %d files in %s\n", sum.Photons, r.Spot.Frames, len(sum.Files), r.Output.Directory)
+	return nil
+}
+
+// runSpotShard renders the frames of share sh of the movie through
+// sweep.Run.
+func runSpotShard(ctx context.Context, s scene.Scene, sh sweep.Shard, restart bool, sc maps.Scales, quiet bool, stdout, stderr io.Writer) error {
+	plan, err := sweep.NewSpotPlan(s, sc)
+	if err != nil {
+		return usagef("%w", err)
+	}
+	bar := newProgress(progressWriter(quiet, stderr), fmt.Sprintf("spot %s: frames", sh))
+	rep, err := sweep.Run(ctx, plan, sweep.Options{Shard: sh, Restart: restart, Version: version, Progress: bar.set})
+	bar.done()
+	for _, p := range rep.SetAside {
+		fmt.Fprintf(stderr, "kerrscope spot: set aside an unreadable manifest as %s\n", p)
+	}
+	switch {
+	case errors.Is(err, sweep.ErrDefinitionChanged):
+		return usagef("--out %s: %v", plan.Dir(), err)
+	case errors.Is(err, context.Canceled):
+		return interrupted(ctx, err, fmt.Sprintf("%d frames rendered and recorded in %s; run the same command again to finish", len(rep.Rendered), rep.Manifest))
+	case err != nil:
+		return err
+	}
+	fmt.Fprintf(stdout, "spot movie of %d frames in %s, intensity max %g\n", len(plan.Points), plan.Dir(), rep.Scales.IMax)
+	if restart {
+		fmt.Fprintf(stdout, "restart: removed %d files that the old run wrote and recorded\n", rep.Removed)
+	}
+	fmt.Fprintf(stdout, "shard %s: %d frames, %d already finished, %d rendered now\n", rep.Shard, rep.Frames, rep.Skipped, len(rep.Rendered))
+	fmt.Fprintf(stdout, "manifest: %s\nwhen every shard is done: kerrscope sweep-merge --out %s\n", rep.Manifest, plan.Dir())
 	return nil
 }

@@ -191,11 +191,15 @@ func (t *Table) At(tobs float64, img []float64, spec *pixels.Spectrum, spotOnly 
 	return s
 }
 
-// Times returns the frame times: n frames over periods orbital periods,
+// Times returns the frame times of the scene (FrameTimes).
+func (t *Table) Times() []float64 { return FrameTimes(t.Res, t.Spot) }
+
+// FrameTimes returns the observer times of the frames of a movie of
+// scene r: spot.frames frames over spot.periods orbital periods,
 // t_k = k P periods / n, so that one period in n frames loops.
-func (t *Table) Times() []float64 {
-	n := t.Res.Spot.Frames
-	dt := t.Spot.Period() * t.Res.Spot.Periods / float64(n)
+func FrameTimes(r scene.Resolved, sp scene.SpotEmission) []float64 {
+	n := r.Spot.Frames
+	dt := sp.Period() * r.Spot.Periods / float64(n)
 	out := make([]float64, n)
 	for k := range out {
 		out[k] = float64(k) * dt

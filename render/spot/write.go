@@ -75,7 +75,7 @@ func Run(ctx context.Context, r scene.Resolved, sp scene.SpotEmission, opt Optio
 	if err != nil {
 		return Summary{}, err
 	}
-	if err := mv.write(out.Write, opt.Version); err != nil {
+	if err := mv.WriteFiles(out.Write, opt.Version, true); err != nil {
 		out.Abort()
 		return Summary{}, err
 	}
@@ -95,11 +95,13 @@ type Movie struct {
 	IMax    float64           // brightest pixel of any frame
 }
 
-// Movie samples every frame time (Times), on all cores: the snapshot,
+// Movie samples every frame time (Times); see MovieAt.
+func (t *Table) Movie(ctx context.Context) *Movie { return t.MovieAt(ctx, t.Times()) }
+
+// MovieAt samples the observer times given, on all cores: the snapshot,
 // the spot's spectrum and the brightest pixel of each frame. Each frame is
 // summed on one goroutine, so the result does not depend on scheduling.
-func (t *Table) Movie(ctx context.Context) *Movie {
-	times := t.Times()
+func (t *Table) MovieAt(ctx context.Context, times []float64) *Movie {
 	r := t.Res
 	mv := &Movie{Table: t, Snap: make([]Snapshot, len(times)), Spectra: make([]pixels.Spectrum, len(times))}
 	imax := make([]float64, len(times))
@@ -150,8 +152,36 @@ func (mv *Movie) indexed(img []float64, pal color.Palette) *image.Paletted {
 	return p
 }
 
-// write stages every file of the movie through put.
-func (mv *Movie) write(put outputs.Put, version string) error {
+// FrameName returns the file name of frame k, spot-frame-NNNN.png.
+func (mv *Movie) FrameName(k int) string {
+	return fmt.Sprintf("spot-frame-%0*d.png", max(4, len(strconv.Itoa(len(mv.Snap)-1))), k)
+}
+
+// frame returns the intensities of frame k in img (W×H values) and its
+// palette image on the movie's scale (IMax).
+func (mv *Movie) frame(k int, img []float64, pal color.Palette) *image.Paletted {
+	mv.Table.At(mv.Snap[k].T, img, nil, false)
+	return mv.indexed(img, pal)
+}
+
+// WriteFrame writes frame k as the palette PNG that WriteFiles writes
+// under FrameName(k), byte for byte.
+func (mv *Movie) WriteFrame(k int, w io.Writer) error {
+	if k < 0 || k >= len(mv.Snap) {
+		return fmt.Errorf("frame %d of a movie of %d frames", k, len(mv.Snap))
+	}
+	im, err := maps.Lookup("intensity")
+	if err != nil {
+		return err
+	}
+	t := mv.Table
+	return figure.EncodePNG(w, mv.frame(k, make([]float64, t.W*t.H), im.Palette()))
+}
+
+// WriteFiles stages the files of the movie through put: the frames (only
+// if frames is set), the GIF made of them, the light curve, the centroid
+// track, the line profile against time and spot.toml.
+func (mv *Movie) WriteFiles(put outputs.Put, version string, frames bool) error {
 	t := mv.Table
 	r := t.Res
 	im, err := maps.Lookup("intensity")
@@ -159,19 +189,18 @@ func (mv *Movie) write(put outputs.Put, version string) error {
 		return err
 	}
 	pal := im.Palette()
-	times := t.Times()
 	img := make([]float64, t.W*t.H)
 	mean := make([]float64, t.W*t.H)
 	anim := &gif.GIF{Config: image.Config{ColorModel: pal, Width: t.W, Height: t.H}}
-	digits := max(4, len(strconv.Itoa(len(times)-1)))
-	for k, x := range times {
-		t.At(x, img, nil, false)
+	for k := range mv.Snap {
+		p := mv.frame(k, img, pal)
 		for i, v := range img {
-			mean[i] += v / float64(len(times))
+			mean[i] += v / float64(len(mv.Snap))
 		}
-		p := mv.indexed(img, pal)
-		if err := put(fmt.Sprintf("spot-frame-%0*d.png", digits, k), func(w io.Writer) error { return figure.EncodePNG(w, p) }); err != nil {
-			return err
+		if frames {
+			if err := put(mv.FrameName(k), func(w io.Writer) error { return figure.EncodePNG(w, p) }); err != nil {
+				return err
+			}
 		}
 		anim.Image = append(anim.Image, p)
 		anim.Delay = append(anim.Delay, gifDelay)

@@ -137,8 +137,10 @@ func (a Axis) String() string {
 // 1 to MaxFrames, finite distinct ends (equal ends exactly when the count
 // is 1) and ends that its spacing allows.
 func (a Axis) Validate() error {
-	if _, err := numericField(a.Key); err != nil {
-		return err
+	if a.Key != SpotTime { // observer time, made by NewSpotPlan
+		if _, err := numericField(a.Key); err != nil {
+			return err
+		}
 	}
 	if a.Count < 1 || a.Count > MaxFrames {
 		return fmt.Errorf("%s: count %d must be between 1 and %d", a.Key, a.Count, MaxFrames)

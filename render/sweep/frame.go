@@ -21,6 +21,9 @@ var hookStaged func(index int, name string)
 // an error or a cancelled ctx leaves none of them behind. It returns
 // their records, sorted by name.
 func (p *Plan) writeFrame(ctx context.Context, lk *outputs.DirLock, pt Point, sc maps.Scales, version string) ([]fileRecord, error) {
+	if p.spot != nil {
+		return p.writeSpotFrame(ctx, lk, pt, sc)
+	}
 	f, err := pixels.RenderScene(ctx, pt.Scene, nil, outputs.Needs(p.artifacts(pt.Index)))
 	if err == nil {
 		err = pixels.CheckFinite(f)
@@ -28,6 +31,17 @@ func (p *Plan) writeFrame(ctx context.Context, lk *outputs.DirLock, pt Point, sc
 	if err != nil {
 		return nil, err
 	}
+	job := outputs.Job{Frame: f, Scales: sc, Version: version,
+		SpectrumTitle: fmt.Sprintf("line profile collapsed from the image, frame %d of %d", pt.Index, len(p.Points))}
+	return p.commitFrame(ctx, lk, pt.Index, func(put outputs.Put) error {
+		return outputs.Write(ctx, p.artifacts(pt.Index), job, put)
+	})
+}
+
+// commitFrame stages the files of frame index that write puts, hashing
+// each, and commits them together; an error or a cancelled ctx leaves
+// none of them behind. It returns their records, sorted by name.
+func (p *Plan) commitFrame(ctx context.Context, lk *outputs.DirLock, index int, write func(outputs.Put) error) ([]fileRecord, error) {
 	out, err := outputs.NewOutputs(ctx, lk, "")
 	if err != nil {
 		return nil, err
@@ -47,13 +61,11 @@ func (p *Plan) writeFrame(ctx context.Context, lk *outputs.DirLock, pt Point, sc
 		}
 		recs = append(recs, hw.record(name))
 		if hookStaged != nil {
-			hookStaged(pt.Index, name)
+			hookStaged(index, name)
 		}
 		return nil
 	}
-	job := outputs.Job{Frame: f, Scales: sc, Version: version,
-		SpectrumTitle: fmt.Sprintf("line profile collapsed from the image, frame %d of %d", pt.Index, len(p.Points))}
-	if err := outputs.Write(ctx, p.artifacts(pt.Index), job, put); err != nil {
+	if err := write(put); err != nil {
 		out.Abort()
 		return nil, err
 	}

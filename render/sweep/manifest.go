@@ -133,6 +133,9 @@ func (p *Plan) definition() (definition, error) {
 	s := p.Base
 	s.Output.Directory = ""
 	for _, a := range p.Axes {
+		if a.Key == SpotTime {
+			continue
+		}
 		f, _ := numericField(a.Key)
 		if err := f.Set(&s, formatValue(a.From)); err != nil {
 			return definition{}, err

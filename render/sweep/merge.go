@@ -44,7 +44,11 @@ type MergeOptions struct {
 // of the second axis), if the sweep wrote spectra, and sweep-frames.csv,
 // the frame numbers with their swept values. It returns the paths
 // written; on error, or when ctx is done, nothing is written. The files of
-// the last merge that this one does not write again are removed.
+// the last merge that this one does not write again are removed. For a
+// hot-spot movie (NewSpotPlan) it writes, in place of the GIFs and the
+// plot of spectra, what spot.Run writes besides the frames (spot-movie.gif,
+// the light curve, the centroid track, the line profile against time,
+// spot.toml), from one trace of the screen, and the frame table.
 func Merge(ctx context.Context, dir string, opt MergeOptions) ([]string, error) {
 	delay := opt.DelayMS
 	if delay == 0 {
@@ -80,6 +84,20 @@ func Merge(ctx context.Context, dir string, opt MergeOptions) ([]string, error) 
 	}
 	if err := p.checkComplete(ms); err != nil {
 		return nil, err
+	}
+	if p.spot != nil {
+		if opt.GIFs != nil {
+			return nil, errors.New("a spot movie has one GIF, spot-movie.gif, of its palette frames; the maps to animate cannot be chosen")
+		}
+		out, err := outputs.NewOutputs(ctx, lk, "merge")
+		if err != nil {
+			return nil, err
+		}
+		if err := p.mergeSpot(ctx, out, sc, ms[0].Program); err != nil {
+			out.Abort()
+			return nil, err
+		}
+		return out.Commit()
 	}
 	maps := opt.GIFs
 	if maps == nil {
@@ -353,7 +371,11 @@ func (p *Plan) writeTable(w io.Writer) error {
 	}
 	fmt.Fprintln(w)
 	for _, pt := range p.Points {
-		fmt.Fprintf(w, "%d,%s", pt.Index, p.framePrefix(pt.Index))
+		prefix := p.framePrefix(pt.Index)
+		if p.spot != nil {
+			prefix = strings.TrimSuffix(p.spotFrameName(pt.Index), ".png")
+		}
+		fmt.Fprintf(w, "%d,%s", pt.Index, prefix)
 		for _, v := range pt.Values {
 			fmt.Fprintf(w, ",%s", formatValue(v))
 		}

@@ -24,6 +24,8 @@ type Plan struct {
 	Axes   []Axis
 	Fixed  maps.Scales // zero fields are chosen by a low-resolution pre-pass
 	Points []Point
+
+	spot *spotMovie // a hot-spot movie in observer time (NewSpotPlan)
 }
 
 // Point is one frame of a plan.
@@ -54,6 +56,11 @@ func (e *PointError) Unwrap() error { return e.Err }
 func NewPlan(base scene.Scene, axes []Axis, fixed maps.Scales) (*Plan, error) {
 	if len(axes) < 1 || len(axes) > MaxAxes {
 		return nil, fmt.Errorf("a sweep varies 1 or %d scene values, not %d", MaxAxes, len(axes))
+	}
+	for _, a := range axes {
+		if a.Key == SpotTime {
+			return newSpotPlan(base, axes, fixed)
+		}
 	}
 	if len(axes) == 2 && axes[0].Key == axes[1].Key {
 		return nil, fmt.Errorf("%s is varied twice", axes[0].Key)
@@ -136,6 +143,9 @@ func (p *Plan) artifacts(k int) []outputs.Artifact {
 
 // fileNames returns the names of the files of frame k, sorted.
 func (p *Plan) fileNames(k int) []string {
+	if p.spot != nil {
+		return []string{p.spotFrameName(k)}
+	}
 	out := outputs.Names(p.artifacts(k))
 	slices.Sort(out)
 	return out
@@ -173,6 +183,9 @@ const (
 // to two significant digits, so that every process of a sweep computes
 // the same values.
 func (p *Plan) chooseScales(ctx context.Context) (maps.Scales, error) {
+	if p.spot != nil {
+		return p.spotScales(ctx)
+	}
 	sc := p.Fixed
 	if sc.IDecades == 0 {
 		sc.IDecades = 4
