@@ -72,7 +72,11 @@ func (o Observer) TraceTimed(alpha, beta float64, orders int, tp *TimedPath) {
 	rt := newRadialTimer(in.q, in.rad, a, lambda, o.horizon)
 	ang := o.newAngularTimer(&in, alpha, beta, lambda)
 	for n, c := range tp.Crossings {
-		it, iphi := rt.at(c.Mino, c.R)
+		var jac *pathJacobi
+		if n < len(in.jac) {
+			jac = &in.jac[n]
+		}
+		it, iphi := rt.at(c.Mino, c.R, jac)
 		gt, lgphi := ang.at(n)
 		tp.Times = append(tp.Times, Timing{Delay: it + a*a*gt, DeltaPhi: -(iphi + lgphi)})
 	}
@@ -88,6 +92,8 @@ type timingInput struct {
 	beta0     bool    // β = 0: the observer sits at a turning point
 	sgn, gobs float64 // s and G_o of the crossing times (β ≠ 0)
 	s2, c2    float64 // sin², cos² of the observer's amplitude (β ≠ 0)
+	// The Jacobi functions of the first crossings, from trace's r(τ).
+	jac [4]pathJacobi
 }
 
 func (tm *timingInput) set(q quartic, rad radial, w, up, mc, sw, gq float64, beta0 bool) {
@@ -508,19 +514,26 @@ func (rt *radialTimer) jII(y, sn, cn, dn float64, onegc [3]float64, reg bool) [5
 }
 
 // at returns I_t (regularised) and I_φ from infinity to Mino time tau,
-// where the photon is at radius r.
-func (rt *radialTimer) at(tau, r float64) (it, iphi float64) {
+// where the photon is at radius r. jac, if not nil, holds the Jacobi
+// functions of the point as trace computed them (radial.eval); else they
+// are computed here.
+func (rt *radialTimer) at(tau, r float64, jac *pathJacobi) (it, iphi float64) {
 	var j [5]float64
 	var sgn, bnd float64
 	switch rt.cs {
 	case FourReal:
-		xs := rt.scale*tau - rt.x0
-		y := math.Abs(xs)
-		sgn = 1
-		if xs < 0 {
-			sgn = -1
+		var y, sn, cn, dn float64
+		if jac != nil {
+			y, sn, cn, dn, sgn = jac.y, jac.sn, jac.cn, jac.dn, jac.sgn
+		} else {
+			xs := rt.scale*tau - rt.x0
+			y = math.Abs(xs)
+			sgn = 1
+			if xs < 0 {
+				sgn = -1
+			}
+			sn, cn, dn = jacobi(y, rt.m, rt.mc)
 		}
-		sn, cn, dn := jacobi(y, rt.m, rt.mc)
 		s2, c2 := sn*sn, cn*cn
 		// 1 − n s² = r43/(r − r3). Near a double root r3 ≈ r4 (the
 		// critical curve) the roots themselves are uncertain by about
@@ -538,9 +551,14 @@ func (rt *radialTimer) at(tau, r float64) (it, iphi float64) {
 		// sqrt(R)/(r − r3) with (r − r4)/(r − r3) = n s².
 		bnd = math.Sqrt((r-rt.r1)*(r-rt.r2)*rt.n) * sn
 	default:
-		y := rt.x0 - rt.scale*tau
+		var y, sn, cn, dn float64
+		if jac != nil {
+			y, sn, cn, dn = jac.y, jac.sn, jac.cn, jac.dn
+		} else {
+			y = rt.x0 - rt.scale*tau
+			sn, cn, dn = jacobi(y, rt.m, rt.mc)
+		}
 		sgn = -1
-		sn, cn, dn := jacobi(y, rt.m, rt.mc)
 		var onegc [3]float64
 		// b0 + b1 cn = (2A'B'r21/b1)/(r − a1/b1).
 		bb := 2 * rt.apr * rt.bpr * rt.r21 / (rt.b1 * (r - rt.a1/rt.b1))
