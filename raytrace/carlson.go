@@ -8,17 +8,23 @@ import "math"
 // duplication loop so that a caller needing R_D and several R_J with the
 // same x, y, z pays for the square roots of x, y, z once.
 
-// carlsonTol is the r of Carlson (1995): the duplication stops when the
-// truncated series is accurate to about r^{1/6}·... ; 1e-16 gives full
-// double precision with the seventh-order series used below.
+// carlsonTol is the r of Carlson (1995) for R_F: the duplication stops
+// when the truncated series is accurate to about r; 1e-16 gives full
+// double precision.
 const carlsonTol = 1e-16
 
-// carlsonQF and carlsonQJ are Carlson's (1995) factors (3r)^{-1/6} (R_F)
-// and (r/4)^{-1/6} (R_D, R_J) for r = carlsonTol, worked out once.
-var (
-	carlsonQF = math.Pow(3*carlsonTol, -1.0/6)
-	carlsonQJ = math.Pow(carlsonTol/4, -1.0/6)
-)
+// carlsonQF is Carlson's (1995) factor (3r)^{-1/6} of R_F for
+// r = carlsonTol, worked out once.
+var carlsonQF = math.Pow(3*carlsonTol, -1.0/6)
+
+// carlsonQJ is the stopping factor of R_D and R_J: the duplication stops
+// once the deviations from the mean are below 1/carlsonQJ of it. With the
+// seventh-order series (carlsonSeriesJ) the remainder is of order
+// (1/100)^8 = 1e-16 times a coefficient below one; Carlson's (1995)
+// fifth-order rule would need (r/4)^{-1/6} ≈ 584, about 1.3 duplications
+// more. carlson_test.go checks the result against quadrature and
+// published values.
+const carlsonQJ = 100.0
 
 // carlsonMaxIter bounds the duplication loop. The deviation from the mean
 // shrinks by 4 per step, so even arguments spread over 600 decades converge
@@ -270,7 +276,7 @@ func carlsonLoop(x, y, z float64, ps []float64, rj []float64) float64 {
 		e3 := (3*xy - 8*zz) * Z
 		e4 := 3 * (xy - zz) * zz
 		e5 := xy * Z * zz
-		sumD = fac*(1-3*e2/14+e3/6+9*e2*e2/88-3*e4/22-9*e2*e3/52+3*e5/26)/(ad*math.Sqrt(ad)) + 3*sumD
+		sumD = fac*carlsonSeriesJ(e2, e3, e4, e5)/(ad*math.Sqrt(ad)) + 3*sumD
 	}
 	for i := 0; i < n; i++ {
 		a := av[i]
@@ -285,9 +291,24 @@ func carlsonLoop(x, y, z float64, ps []float64, rj []float64) float64 {
 		e3 := xyz + 2*e2*P + 4*P2*P
 		e4 := (2*xyz + e2*P + 3*P2*P) * P
 		e5 := xyz * P2
-		rj[i] = fac*(1-3*e2/14+e3/6+9*e2*e2/88-3*e4/22-9*e2*e3/52+3*e5/26)/(a*math.Sqrt(a)) + 6*sum[i]
+		rj[i] = fac*carlsonSeriesJ(e2, e3, e4, e5)/(a*math.Sqrt(a)) + 6*sum[i]
 	}
 	return sumD
+}
+
+// carlsonSeriesJ is the Taylor series of R_J (and R_D) about the mean to
+// seventh order in the deviations, in the elementary symmetric functions
+// E2…E5 of (X, Y, Z, P, P) (DLMF 19.36.2; Carlson 1995, eq. 2.39 to fifth
+// order):
+//
+//	1 − 3E2/14 + E3/6 + 9E2²/88 − 3E4/22 − 9E2E3/52 + 3E5/26
+//	  − E2³/16 + 3E3²/40 + 3E2E4/20 + 45E2²E3/272 − 9(E3E4 + E2E5)/68
+//
+// Its error is of eighth order, which lets the duplication stop at
+// deviations of carlsonStopJ instead of (r/4)^{1/6} (Carlson 1995).
+func carlsonSeriesJ(e2, e3, e4, e5 float64) float64 {
+	return 1 - 3*e2/14 + e3/6 + 9*e2*e2/88 - 3*e4/22 - 9*e2*e3/52 + 3*e5/26 -
+		e2*e2*e2/16 + 3*e3*e3/40 + 3*e2*e4/20 + 45*e2*e2*e3/272 - 9*(e3*e4+e2*e5)/68
 }
 
 // rc1 returns R_C(1, 1 + e) for e > −1: arctan(√e)/√e for e > 0,
