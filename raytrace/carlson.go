@@ -307,8 +307,14 @@ func carlsonLoop(x, y, z float64, ps []float64, rj []float64) float64 {
 // Its error is of eighth order, which lets the duplication stop at
 // deviations of carlsonStopJ instead of (r/4)^{1/6} (Carlson 1995).
 func carlsonSeriesJ(e2, e3, e4, e5 float64) float64 {
-	return 1 - 3*e2/14 + e3/6 + 9*e2*e2/88 - 3*e4/22 - 9*e2*e3/52 + 3*e5/26 -
-		e2*e2*e2/16 + 3*e3*e3/40 + 3*e2*e4/20 + 45*e2*e2*e3/272 - 9*(e3*e4+e2*e5)/68
+	// Coefficients as constants: a division by a constant is not turned
+	// into a multiplication by the compiler.
+	const (
+		k2, k3, k22, k4, k23, k5    = -3.0 / 14, 1.0 / 6, 9.0 / 88, -3.0 / 22, -9.0 / 52, 3.0 / 26
+		k222, k33, k24, k223, k3425 = -1.0 / 16, 3.0 / 40, 3.0 / 20, 45.0 / 272, -9.0 / 68
+	)
+	return 1 + e2*(k2+e2*(k22+e2*k222)) + e3*(k3+e3*k33) + e4*k4 + e5*k5 +
+		e2*(e3*(k23+e2*k223)+e4*k24) + (e3*e4+e2*e5)*k3425
 }
 
 // rc1 returns R_C(1, 1 + e) for e > −1: arctan(√e)/√e for e > 0,
