@@ -249,7 +249,7 @@ func carlsonLoop(x, y, z float64, ps []float64, rj []float64) float64 {
 			e := f3 * delta[i] * inv * inv
 			var rc float64
 			if e < 3e-4 && e > -3e-4 {
-				rc = 1 - e*(1.0/3-e*(1.0/5-e*(1.0/7-e/9))) // rc1's short series
+				rc = 1 - e*(1.0/3-e*(1.0/5-e*(1.0/7-e*(1.0/9)))) // rc1's short series
 			} else {
 				rc = rc1(e)
 			}
@@ -325,11 +325,11 @@ func rc1(e float64) float64 {
 	// Σ (−e)^k/(2k+1), cut where the next term is below 1e-17.
 	switch ae := math.Abs(e); {
 	case ae < 4e-6:
-		return 1 - e*(1.0/3-e/5)
+		return 1 - e*(1.0/3-e*(1.0/5))
 	case ae < 3e-4:
-		return 1 - e*(1.0/3-e*(1.0/5-e*(1.0/7-e/9)))
+		return 1 - e*(1.0/3-e*(1.0/5-e*(1.0/7-e*(1.0/9))))
 	case ae < 0.03:
-		return 1 - e*(1.0/3-e*(1.0/5-e*(1.0/7-e*(1.0/9-e*(1.0/11-e*(1.0/13-e*(1.0/15-e*(1.0/17-e*(1.0/19-e/21)))))))))
+		return 1 - e*(1.0/3-e*(1.0/5-e*(1.0/7-e*(1.0/9-e*(1.0/11-e*(1.0/13-e*(1.0/15-e*(1.0/17-e*(1.0/19-e*(1.0/21))))))))))
 	}
 	if e > 0 {
 		s := math.Sqrt(e)

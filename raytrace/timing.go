@@ -234,6 +234,11 @@ type radialTimer struct {
 	r32      float64
 	n, nu    float64 // case I: n = r41/r31, ν = m/n = r32/r42
 	d4p, d4m float64 // case I: r4 − r±
+	// case I, per photon: 1/d4±, n r43/(3 d4±²), ν/3, n/3, r31 r32/2,
+	// r43/r31, r43/r42
+	id4p, id4m, kp, km      float64
+	nu3, n3, k2, q431, q432 float64
+	iscale                  float64 // 1/scale
 	// case II
 	re, im       float64
 	apr, bpr     float64 // A', B'
@@ -250,7 +255,7 @@ type radialTimer struct {
 }
 
 func newRadialTimer(q quartic, rad radial, a, lambda, rh float64) radialTimer {
-	rt := radialTimer{cs: rad.cs, scale: rad.scale, x0: rad.x0, m: rad.m, mc: rad.mc}
+	rt := radialTimer{cs: rad.cs, scale: rad.scale, x0: rad.x0, m: rad.m, mc: rad.mc, iscale: 1 / rad.scale}
 	rt.rp = rh
 	rt.rm = a * a / rh // r₋ = a²/r₊ without cancellation
 	dr := 2 * math.Sqrt((1-a)*(1+a))
@@ -293,13 +298,22 @@ func (rt *radialTimer) setupI(q quartic, rad radial) {
 	rt.nu = rt.r32 / rt.r42
 	rt.d4p = rt.r4 - rt.rp
 	rt.d4m = rt.r4 - rt.rm
+	rt.id4p, rt.id4m = 1/rt.d4p, 1/rt.d4m
+	rt.kp = rt.n * rt.r43 * rt.id4p * rt.id4p / 3
+	rt.km = rt.n * rt.r43 * rt.id4m * rt.id4m / 3
+	rt.nu3, rt.n3 = rt.nu/3, rt.n/3
+	rt.k2 = rt.r31 * rt.r32 / 2
+	rt.q431, rt.q432 = rt.r43/rt.r31, rt.r43/rt.r42
 	// Infinity: s² = r31/r41, c² = r43/r41, d² = r43/r42.
 	s2 := rt.r31 / rt.r41
 	c2 := rt.r43 / rt.r41
 	d2 := rt.r43 / rt.r42
 	onu := rt.r43 * (rt.r31 + rt.r42) / (rt.r41 * rt.r42) // 1 − ν s²
-	// ln y = ln r43 + ln(1 − νs²) − ln(r − r3): keep the finite part.
-	rt.inf = rt.jI(rt.x0, s2, c2, d2, onu, rt.r43/rt.d4p, rt.r43/rt.d4m, math.Log(rt.r43)+math.Log(onu), true)
+	// ln y = ln r43 + ln(1 − νs²) − ln(r − r3): keep the finite part,
+	// R_C → [ln(2√x) − ½ ln(r43 (1 − νs²))]/√x = ½ ln(4x/(r43 (1 − νs²)))/√x
+	// with x = c²d² = r43²/(r41 r42) (rcRegular).
+	rcInf := 0.5 * math.Log(4*rt.r43/(rt.r41*rt.r42*onu)) / math.Sqrt(c2*d2)
+	rt.inf = rt.jI(rt.x0, s2, c2, d2, onu, rt.r43*rt.id4p, rt.r43*rt.id4m, rcInf, true)
 	// sqrt((r−r1)(r−r2)(r−r4)/(r−r3)) = r + (r3 − r1 − r2 − r4)/2 + O(1/r).
 	rt.breg = (rt.r3 - rt.r1 - rt.r2 - rt.r4) / 2
 }
@@ -307,7 +321,7 @@ func (rt *radialTimer) setupI(q quartic, rad radial) {
 // jI returns the case-I integrals ∫₀^Y of 1, r, r² (elliptic part), and
 // 1/(r − r±) over X, given s² = sn²Y, c², d², 1 − νs² and 1 − n±s², and
 // for the R_C either its second argument (1 − ns²)(1 − νs²) (reg = false)
-// or the regularised logarithm of that argument (reg = true, at infinity).
+// or its regularised value itself (reg = true, at infinity).
 func (rt *radialTimer) jI(y, s2, c2, d2, onu, onp, onm, yc float64, reg bool) [5]float64 {
 	var out [5]float64
 	out[0] = y
@@ -324,18 +338,16 @@ func (rt *radialTimer) jI(y, s2, c2, d2, onu, onp, onm, yc float64, reg bool) [5
 	var rj [3]float64
 	rd := carlsonDJ(c2, d2, 1, ps[:np], rj[:0])
 	x := c2 * d2
-	var rc float64
-	if reg {
-		rc = rcRegular(x) - 0.5*yc/math.Sqrt(x)
-	} else {
+	rc := yc
+	if !reg {
 		rc = carlsonRC(x, yc)
 	}
-	pin := s*rc - rt.nu/3*s3*rj[0] // Π(n; am Y | m)
+	pin := s*rc - rt.nu3*s3*rj[0] // Π(n; am Y | m)
 	out[1] = rt.r3*y + rt.r43*pin
-	out[2] = rt.r3*rt.r3*y - rt.r31*rt.r32/2*(y-rt.n*s3*rd/3)
-	out[3] = y/rt.d4p - rt.n*rt.r43/(rt.d4p*rt.d4p)*s3*rj[1]/3
+	out[2] = rt.r3*rt.r3*y - rt.k2*(y-rt.n3*s3*rd)
+	out[3] = y*rt.id4p - rt.kp*s3*rj[1]
 	if !rt.skipM {
-		out[4] = y/rt.d4m - rt.n*rt.r43/(rt.d4m*rt.d4m)*s3*rj[2]/3
+		out[4] = y*rt.id4m - rt.km*s3*rj[2]
 	}
 	return out
 }
@@ -540,13 +552,13 @@ func (rt *radialTimer) at(tau, r float64, jac *pathJacobi) (it, iphi float64) {
 		// sqrt(ε) of their size while r43 is not (radialRoots), so
 		// r − r3 is taken from the radius only far out; elsewhere from
 		// 1 − n s² = n c² − r43/r31, which then has no cancellation.
-		onn := rt.n*c2 - rt.r43/rt.r31
+		onn := rt.n*c2 - rt.q431
 		if r-rt.r3 > farRadius*(1+math.Abs(rt.r3)) {
 			onn = rt.r43 / (r - rt.r3)
 		}
-		onu := rt.r43/rt.r42 + rt.nu*c2
-		onp := (r - rt.rp) * onn / rt.d4p
-		onm := (r - rt.rm) * onn / rt.d4m
+		onu := rt.q432 + rt.nu*c2
+		onp := (r - rt.rp) * onn * rt.id4p
+		onm := (r - rt.rm) * onn * rt.id4m
 		j = rt.jI(y, s2, c2, dn*dn, onu, onp, onm, onn*onu, false)
 		// sqrt(R)/(r − r3) with (r − r4)/(r − r3) = n s².
 		bnd = math.Sqrt((r-rt.r1)*(r-rt.r2)*rt.n) * sn
@@ -571,7 +583,7 @@ func (rt *radialTimer) at(tau, r float64, jac *pathJacobi) (it, iphi float64) {
 	}
 	var iv [5]float64
 	for k := range iv {
-		iv[k] = (rt.inf[k] + sgn*j[k]) / rt.scale
+		iv[k] = (rt.inf[k] + sgn*j[k]) * rt.iscale
 	}
 	i2 := iv[2] + rt.breg + sgn*bnd
 	it = i2 + 2*iv[1] + 4*iv[0] + rt.cp*iv[3]
