@@ -207,10 +207,11 @@ func carlsonRF(x, y, z float64) float64 {
 // With A₀ = (x+y+z+2p)/5, δ = (p−x)(p−y)(p−z), each step n adds
 // 4^{-n} R_C(1, 1 + e_n)/d_n to the R_J sum, where
 // d_n = (√p+√x)(√p+√y)(√p+√z) and e_n = 4^{-3n} δ/d_n², and
-// 4^{-n}/(√z (z+λ)) to the R_D sum; at the end the fifth-order Taylor
+// 4^{-n}/(√z (z+λ)) to the R_D sum; at the end the seventh-order Taylor
 // series in the deviations from the mean is added (Carlson 1995, eqs.
-// 2.29–2.31 and 2.37–2.39). One loop serves all: the square roots of x,
-// y, z and the mean shifts λ are shared.
+// 2.29–2.31 and 2.37–2.39; DLMF 19.36.2; see carlsonSeriesJ). One loop
+// serves all: the square roots of x, y, z and the mean shifts λ are
+// shared.
 func carlsonLoop(x, y, z float64, ps []float64, rj []float64) float64 {
 	n := len(ps)
 	var pv, a0, av, delta, sum [4]float64
