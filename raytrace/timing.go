@@ -69,7 +69,8 @@ func (o Observer) TraceTimed(alpha, beta float64, orders int, tp *TimedPath) {
 		return
 	}
 	a := o.spin
-	rt := newRadialTimer(in.q, in.rad, a, lambda, o.horizon)
+	var rt radialTimer
+	rt.init(&in.q, &in.rad, a, lambda, o.horizon)
 	ang := o.newAngularTimer(&in, alpha, beta, lambda)
 	for n, c := range tp.Crossings {
 		var jac *pathJacobi
@@ -254,8 +255,10 @@ type radialTimer struct {
 	logInfFinite float64    // ln(2A'B'r21/(b0 b1)): finite part of ln(1 + γ∞ cn) at infinity
 }
 
-func newRadialTimer(q quartic, rad radial, a, lambda, rh float64) radialTimer {
-	rt := radialTimer{cs: rad.cs, scale: rad.scale, x0: rad.x0, m: rad.m, mc: rad.mc, iscale: 1 / rad.scale}
+// init sets up rt, a zero radialTimer, for the photon with radial roots
+// q and radial solution rad (read only).
+func (rt *radialTimer) init(q *quartic, rad *radial, a, lambda, rh float64) {
+	rt.cs, rt.scale, rt.x0, rt.m, rt.mc, rt.iscale = rad.cs, rad.scale, rad.x0, rad.m, rad.mc, 1/rad.scale
 	rt.rp = rh
 	rt.rm = a * a / rh // r₋ = a²/r₊ without cancellation
 	dr := 2 * math.Sqrt((1-a)*(1+a))
@@ -274,7 +277,6 @@ func newRadialTimer(q quartic, rad radial, a, lambda, rh float64) radialTimer {
 	} else {
 		rt.setupII(q, rad)
 	}
-	return rt
 }
 
 // Case I (four real roots, r ≥ r4): r = r3 + r43/(1 − n sn²X), n = r41/r31,
@@ -290,7 +292,7 @@ func newRadialTimer(q quartic, rad radial, a, lambda, rh float64) radialTimer {
 // ∫₀^Y dX/(r − c) = Y/d₄ − (n r43/d₄²)(s³/3) R_J(c², d², 1, 1 − n_c s²)
 // with d₄ = r4 − c, n_c = n (r3 − c)/d₄ (a principal value where r4 < c,
 // captured photons).
-func (rt *radialTimer) setupI(q quartic, rad radial) {
+func (rt *radialTimer) setupI(q *quartic, rad *radial) {
 	rt.r3, rt.r4 = q.r3, q.r4
 	rt.r31, rt.r41, rt.r42, rt.r43 = rad.r31, rad.r41, rad.r42, rad.r43
 	rt.r32 = q.r3 - q.r2
@@ -365,7 +367,7 @@ func (rt *radialTimer) jI(y, s2, c2, d2, onu, onp, onm, yc float64, reg bool) [5
 // with p0 = B'(r2 − c) + A'(c − r1), p1 = B'(r2 − c) − A'(c − r1); and
 // ∫₀^Y dY'/(1 + cn) = sn dn/(1 + cn) + m ∫₀^Y sn² (differentiate
 // sn dn/(1 + cn)).
-func (rt *radialTimer) setupII(q quartic, rad radial) {
+func (rt *radialTimer) setupII(q *quartic, rad *radial) {
 	rt.re, rt.im = q.re34, q.im34
 	rt.apr, rt.bpr = rad.ap, rad.bp
 	rt.a0, rt.a1 = rad.num0, rad.num1
