@@ -18,13 +18,13 @@ const carlsonTol = 1e-16
 var carlsonQF = math.Pow(3*carlsonTol, -1.0/6)
 
 // carlsonQJ is the stopping factor of R_D and R_J: the duplication stops
-// once the deviations from the mean are below 1/carlsonQJ of it. With the
-// seventh-order series (carlsonSeriesJ) the remainder is of order
-// (1/100)^8 = 1e-16 times a coefficient below one; Carlson's (1995)
-// fifth-order rule would need (r/4)^{-1/6} ≈ 584, about 1.3 duplications
-// more. carlson_test.go checks the result against quadrature and
-// published values.
-const carlsonQJ = 100.0
+// once the deviations from the mean are below 1/carlsonQJ of it.
+// Carlson's (1995) rule (r/4)^{-1/6} for his fifth-order series becomes
+// (r/4)^{-1/8} ≈ 119 for the seventh-order one (carlsonSeriesJ), whose
+// remainder is of eighth order: about 1.2 duplications fewer than the
+// 584 of the fifth-order rule. carlson_test.go checks the results against
+// quadrature and published values.
+var carlsonQJ = math.Pow(carlsonTol/4, -1.0/8)
 
 // carlsonMaxIter bounds the duplication loop. The deviation from the mean
 // shrinks by 4 per step, so even arguments spread over 600 decades converge
@@ -306,7 +306,7 @@ func carlsonLoop(x, y, z float64, ps []float64, rj []float64) float64 {
 //	  − E2³/16 + 3E3²/40 + 3E2E4/20 + 45E2²E3/272 − 9(E3E4 + E2E5)/68
 //
 // Its error is of eighth order, which lets the duplication stop at
-// deviations of carlsonStopJ instead of (r/4)^{1/6} (Carlson 1995).
+// deviations of 1/carlsonQJ = (r/4)^{1/8} instead of (r/4)^{1/6}.
 func carlsonSeriesJ(e2, e3, e4, e5 float64) float64 {
 	// Coefficients as constants: a division by a constant is not turned
 	// into a multiplication by the compiler.
