@@ -69,10 +69,15 @@ func (o Observer) TraceTimed(alpha, beta float64, orders int, tp *TimedPath) {
 		return
 	}
 	a := o.spin
-	rt := newRadialTimer(in.q, in.rad, a, lambda, o.horizon)
+	var rt radialTimer
+	rt.init(&in.q, &in.rad, a, lambda, o.horizon)
 	ang := o.newAngularTimer(&in, alpha, beta, lambda)
 	for n, c := range tp.Crossings {
-		it, iphi := rt.at(c.Mino, c.R)
+		var jac *pathJacobi
+		if n < len(in.jac) {
+			jac = &in.jac[n]
+		}
+		it, iphi := rt.at(c.Mino, c.R, jac)
 		gt, lgphi := ang.at(n)
 		tp.Times = append(tp.Times, Timing{Delay: it + a*a*gt, DeltaPhi: -(iphi + lgphi)})
 	}
@@ -88,6 +93,8 @@ type timingInput struct {
 	beta0     bool    // β = 0: the observer sits at a turning point
 	sgn, gobs float64 // s and G_o of the crossing times (β ≠ 0)
 	s2, c2    float64 // sin², cos² of the observer's amplitude (β ≠ 0)
+	// The Jacobi functions of the first crossings, from trace's r(τ).
+	jac [4]pathJacobi
 }
 
 func (tm *timingInput) set(q quartic, rad radial, w, up, mc, sw, gq float64, beta0 bool) {
@@ -228,6 +235,11 @@ type radialTimer struct {
 	r32      float64
 	n, nu    float64 // case I: n = r41/r31, ν = m/n = r32/r42
 	d4p, d4m float64 // case I: r4 − r±
+	// case I, per photon: 1/d4±, n r43/(3 d4±²), ν/3, n/3, r31 r32/2,
+	// r43/r31, r43/r42
+	id4p, id4m, kp, km      float64
+	nu3, n3, k2, q431, q432 float64
+	iscale                  float64 // 1/scale
 	// case II
 	re, im       float64
 	apr, bpr     float64 // A', B'
@@ -243,8 +255,10 @@ type radialTimer struct {
 	logInfFinite float64    // ln(2A'B'r21/(b0 b1)): finite part of ln(1 + γ∞ cn) at infinity
 }
 
-func newRadialTimer(q quartic, rad radial, a, lambda, rh float64) radialTimer {
-	rt := radialTimer{cs: rad.cs, scale: rad.scale, x0: rad.x0, m: rad.m, mc: rad.mc}
+// init sets up rt, a zero radialTimer, for the photon with radial roots
+// q and radial solution rad (read only).
+func (rt *radialTimer) init(q *quartic, rad *radial, a, lambda, rh float64) {
+	rt.cs, rt.scale, rt.x0, rt.m, rt.mc, rt.iscale = rad.cs, rad.scale, rad.x0, rad.m, rad.mc, 1/rad.scale
 	rt.rp = rh
 	rt.rm = a * a / rh // r₋ = a²/r₊ without cancellation
 	dr := 2 * math.Sqrt((1-a)*(1+a))
@@ -263,7 +277,6 @@ func newRadialTimer(q quartic, rad radial, a, lambda, rh float64) radialTimer {
 	} else {
 		rt.setupII(q, rad)
 	}
-	return rt
 }
 
 // Case I (four real roots, r ≥ r4): r = r3 + r43/(1 − n sn²X), n = r41/r31,
@@ -279,7 +292,7 @@ func newRadialTimer(q quartic, rad radial, a, lambda, rh float64) radialTimer {
 // ∫₀^Y dX/(r − c) = Y/d₄ − (n r43/d₄²)(s³/3) R_J(c², d², 1, 1 − n_c s²)
 // with d₄ = r4 − c, n_c = n (r3 − c)/d₄ (a principal value where r4 < c,
 // captured photons).
-func (rt *radialTimer) setupI(q quartic, rad radial) {
+func (rt *radialTimer) setupI(q *quartic, rad *radial) {
 	rt.r3, rt.r4 = q.r3, q.r4
 	rt.r31, rt.r41, rt.r42, rt.r43 = rad.r31, rad.r41, rad.r42, rad.r43
 	rt.r32 = q.r3 - q.r2
@@ -287,13 +300,22 @@ func (rt *radialTimer) setupI(q quartic, rad radial) {
 	rt.nu = rt.r32 / rt.r42
 	rt.d4p = rt.r4 - rt.rp
 	rt.d4m = rt.r4 - rt.rm
+	rt.id4p, rt.id4m = 1/rt.d4p, 1/rt.d4m
+	rt.kp = rt.n * rt.r43 * rt.id4p * rt.id4p / 3
+	rt.km = rt.n * rt.r43 * rt.id4m * rt.id4m / 3
+	rt.nu3, rt.n3 = rt.nu/3, rt.n/3
+	rt.k2 = rt.r31 * rt.r32 / 2
+	rt.q431, rt.q432 = rt.r43/rt.r31, rt.r43/rt.r42
 	// Infinity: s² = r31/r41, c² = r43/r41, d² = r43/r42.
 	s2 := rt.r31 / rt.r41
 	c2 := rt.r43 / rt.r41
 	d2 := rt.r43 / rt.r42
 	onu := rt.r43 * (rt.r31 + rt.r42) / (rt.r41 * rt.r42) // 1 − ν s²
-	// ln y = ln r43 + ln(1 − νs²) − ln(r − r3): keep the finite part.
-	rt.inf = rt.jI(rt.x0, s2, c2, d2, onu, rt.r43/rt.d4p, rt.r43/rt.d4m, math.Log(rt.r43)+math.Log(onu), true)
+	// ln y = ln r43 + ln(1 − νs²) − ln(r − r3): keep the finite part,
+	// R_C → [ln(2√x) − ½ ln(r43 (1 − νs²))]/√x = ½ ln(4x/(r43 (1 − νs²)))/√x
+	// with x = c²d² = r43²/(r41 r42) (rcRegular).
+	rcInf := 0.5 * math.Log(4*rt.r43/(rt.r41*rt.r42*onu)) / math.Sqrt(c2*d2)
+	rt.inf = rt.jI(rt.x0, s2, c2, d2, onu, rt.r43*rt.id4p, rt.r43*rt.id4m, rcInf, true)
 	// sqrt((r−r1)(r−r2)(r−r4)/(r−r3)) = r + (r3 − r1 − r2 − r4)/2 + O(1/r).
 	rt.breg = (rt.r3 - rt.r1 - rt.r2 - rt.r4) / 2
 }
@@ -301,7 +323,7 @@ func (rt *radialTimer) setupI(q quartic, rad radial) {
 // jI returns the case-I integrals ∫₀^Y of 1, r, r² (elliptic part), and
 // 1/(r − r±) over X, given s² = sn²Y, c², d², 1 − νs² and 1 − n±s², and
 // for the R_C either its second argument (1 − ns²)(1 − νs²) (reg = false)
-// or the regularised logarithm of that argument (reg = true, at infinity).
+// or its regularised value itself (reg = true, at infinity).
 func (rt *radialTimer) jI(y, s2, c2, d2, onu, onp, onm, yc float64, reg bool) [5]float64 {
 	var out [5]float64
 	out[0] = y
@@ -318,18 +340,16 @@ func (rt *radialTimer) jI(y, s2, c2, d2, onu, onp, onm, yc float64, reg bool) [5
 	var rj [3]float64
 	rd := carlsonDJ(c2, d2, 1, ps[:np], rj[:0])
 	x := c2 * d2
-	var rc float64
-	if reg {
-		rc = rcRegular(x) - 0.5*yc/math.Sqrt(x)
-	} else {
+	rc := yc
+	if !reg {
 		rc = carlsonRC(x, yc)
 	}
-	pin := s*rc - rt.nu/3*s3*rj[0] // Π(n; am Y | m)
+	pin := s*rc - rt.nu3*s3*rj[0] // Π(n; am Y | m)
 	out[1] = rt.r3*y + rt.r43*pin
-	out[2] = rt.r3*rt.r3*y - rt.r31*rt.r32/2*(y-rt.n*s3*rd/3)
-	out[3] = y/rt.d4p - rt.n*rt.r43/(rt.d4p*rt.d4p)*s3*rj[1]/3
+	out[2] = rt.r3*rt.r3*y - rt.k2*(y-rt.n3*s3*rd)
+	out[3] = y*rt.id4p - rt.kp*s3*rj[1]
 	if !rt.skipM {
-		out[4] = y/rt.d4m - rt.n*rt.r43/(rt.d4m*rt.d4m)*s3*rj[2]/3
+		out[4] = y*rt.id4m - rt.km*s3*rj[2]
 	}
 	return out
 }
@@ -347,7 +367,7 @@ func (rt *radialTimer) jI(y, s2, c2, d2, onu, onp, onm, yc float64, reg bool) [5
 // with p0 = B'(r2 − c) + A'(c − r1), p1 = B'(r2 − c) − A'(c − r1); and
 // ∫₀^Y dY'/(1 + cn) = sn dn/(1 + cn) + m ∫₀^Y sn² (differentiate
 // sn dn/(1 + cn)).
-func (rt *radialTimer) setupII(q quartic, rad radial) {
+func (rt *radialTimer) setupII(q *quartic, rad *radial) {
 	rt.re, rt.im = q.re34, q.im34
 	rt.apr, rt.bpr = rad.ap, rad.bp
 	rt.a0, rt.a1 = rad.num0, rad.num1
@@ -508,39 +528,51 @@ func (rt *radialTimer) jII(y, sn, cn, dn float64, onegc [3]float64, reg bool) [5
 }
 
 // at returns I_t (regularised) and I_φ from infinity to Mino time tau,
-// where the photon is at radius r.
-func (rt *radialTimer) at(tau, r float64) (it, iphi float64) {
+// where the photon is at radius r. jac, if not nil, holds the Jacobi
+// functions of the point as trace computed them (radial.eval); else they
+// are computed here.
+func (rt *radialTimer) at(tau, r float64, jac *pathJacobi) (it, iphi float64) {
 	var j [5]float64
 	var sgn, bnd float64
 	switch rt.cs {
 	case FourReal:
-		xs := rt.scale*tau - rt.x0
-		y := math.Abs(xs)
-		sgn = 1
-		if xs < 0 {
-			sgn = -1
+		var y, sn, cn, dn float64
+		if jac != nil {
+			y, sn, cn, dn, sgn = jac.y, jac.sn, jac.cn, jac.dn, jac.sgn
+		} else {
+			xs := rt.scale*tau - rt.x0
+			y = math.Abs(xs)
+			sgn = 1
+			if xs < 0 {
+				sgn = -1
+			}
+			sn, cn, dn = jacobi(y, rt.m, rt.mc)
 		}
-		sn, cn, dn := jacobi(y, rt.m, rt.mc)
 		s2, c2 := sn*sn, cn*cn
 		// 1 − n s² = r43/(r − r3). Near a double root r3 ≈ r4 (the
 		// critical curve) the roots themselves are uncertain by about
 		// sqrt(ε) of their size while r43 is not (radialRoots), so
 		// r − r3 is taken from the radius only far out; elsewhere from
 		// 1 − n s² = n c² − r43/r31, which then has no cancellation.
-		onn := rt.n*c2 - rt.r43/rt.r31
+		onn := rt.n*c2 - rt.q431
 		if r-rt.r3 > farRadius*(1+math.Abs(rt.r3)) {
 			onn = rt.r43 / (r - rt.r3)
 		}
-		onu := rt.r43/rt.r42 + rt.nu*c2
-		onp := (r - rt.rp) * onn / rt.d4p
-		onm := (r - rt.rm) * onn / rt.d4m
+		onu := rt.q432 + rt.nu*c2
+		onp := (r - rt.rp) * onn * rt.id4p
+		onm := (r - rt.rm) * onn * rt.id4m
 		j = rt.jI(y, s2, c2, dn*dn, onu, onp, onm, onn*onu, false)
 		// sqrt(R)/(r − r3) with (r − r4)/(r − r3) = n s².
 		bnd = math.Sqrt((r-rt.r1)*(r-rt.r2)*rt.n) * sn
 	default:
-		y := rt.x0 - rt.scale*tau
+		var y, sn, cn, dn float64
+		if jac != nil {
+			y, sn, cn, dn = jac.y, jac.sn, jac.cn, jac.dn
+		} else {
+			y = rt.x0 - rt.scale*tau
+			sn, cn, dn = jacobi(y, rt.m, rt.mc)
+		}
 		sgn = -1
-		sn, cn, dn := jacobi(y, rt.m, rt.mc)
 		var onegc [3]float64
 		// b0 + b1 cn = (2A'B'r21/b1)/(r − a1/b1).
 		bb := 2 * rt.apr * rt.bpr * rt.r21 / (rt.b1 * (r - rt.a1/rt.b1))
@@ -553,7 +585,7 @@ func (rt *radialTimer) at(tau, r float64) (it, iphi float64) {
 	}
 	var iv [5]float64
 	for k := range iv {
-		iv[k] = (rt.inf[k] + sgn*j[k]) / rt.scale
+		iv[k] = (rt.inf[k] + sgn*j[k]) * rt.iscale
 	}
 	i2 := iv[2] + rt.breg + sgn*bnd
 	it = i2 + 2*iv[1] + 4*iv[0] + rt.cp*iv[3]

@@ -300,7 +300,12 @@ func (o Observer) trace(lambda, eta, beta float64, orders int, p *Path, tm *timi
 		if !(tau < p.Mino) {
 			break
 		}
-		r := rad.at(tau)
+		var r float64
+		if tm != nil && n < len(tm.jac) {
+			r = rad.eval(tau, &tm.jac[n])
+		} else {
+			r = rad.at(tau)
+		}
 		if r < rh { // rounding at the very end of a capture
 			r = rh
 		}
@@ -405,7 +410,23 @@ func newRadialII(q quartic, rh float64) radial {
 //	case II: r = (B'r2 + A'r1)/(A'+B') + 2A'B'r21 / ((A'+B')² (cn X - cn X0))
 //
 // with s0 + sn X and cn X - cn X0 written through sn δ, cn δ, dn δ.
-func (rd radial) at(tau float64) float64 {
+func (rd radial) at(tau float64) float64 { return rd.eval(tau, nil) }
+
+// pathJacobi is what the timing (radialTimer.at) needs of a point of the
+// radial path: Y = |X| (case I) or X0 − scale·τ (case II), sn, cn, dn of
+// Y, and the sign s with which the integrals from infinity to the point
+// run (∫ = J(Y∞) + s J(Y)).
+type pathJacobi struct {
+	y, sn, cn, dn, sgn float64
+	den                float64 // D of the addition theorem (see eval)
+}
+
+// eval is at; if jac is not nil it also receives the pathJacobi of the
+// point, from the addition theorem (DLMF 22.8.1–3) with Y = X0 − δ
+// in both cases (δ folded in case I): sn Y = (s0 cd dd − sd c0 d0)/D,
+// cn Y = (c0 cd + s0 d0 sd dd)/D, dn Y = (d0 dd + m s0 c0 sd cd)/D,
+// D = 1 − m s0² sd² = dd² + m c0² sd².
+func (rd radial) eval(tau float64, jac *pathJacobi) float64 {
 	if rd.cs == FourReal {
 		// r(X) is even in X: fold the outgoing half onto the incoming one.
 		d := rd.scale * tau
@@ -417,6 +438,13 @@ func (rd radial) at(tau float64) float64 {
 		s0, c0, d0 := rd.sn0, rd.cn0, rd.dn0
 		den := 1 - rd.m*s0*s0*sd*sd
 		snx := (sd*c0*d0 - s0*cd*dd) / den
+		if jac != nil {
+			rd.pathJacobi(jac, d, sd, cd, dd)
+			jac.sn = math.Abs(sd*c0*d0-s0*cd*dd) / jac.den
+			if tau > rd.turn {
+				jac.sgn = 1
+			}
+		}
 		// 1 - cd dd = sd²(1 + m - m sd²)/(1 + cd dd), δ ≤ K.
 		omcd := sd * sd * (1 + rd.m - rd.m*sd*sd) / (1 + cd*dd)
 		plus := (s0*(omcd-rd.m*s0*s0*sd*sd) + sd*c0*d0) / den
@@ -431,7 +459,28 @@ func (rd radial) at(tau float64) float64 {
 	}
 	den := 1 - rd.m*s0*s0*sd*sd
 	diff := (c0*(cm1+rd.m*s0*s0*sd*sd) + s0*d0*sd*dd) / den
+	if jac != nil {
+		rd.pathJacobi(jac, d, sd, cd, dd)
+		jac.sn = math.Abs(s0*cd*dd-sd*c0*d0) / jac.den
+	}
 	return rd.num1/rd.den1 + 2*rd.ap*rd.bp*rd.r21/(rd.den1*rd.den1*diff)
+}
+
+// pathJacobi fills y, cn, dn, D and sgn = −1 of jac for the point δ of the
+// path (see eval); eval sets sn and, past the turning point, sgn.
+func (rd radial) pathJacobi(jac *pathJacobi, d, sd, cd, dd float64) {
+	s0, c0, d0 := rd.sn0, rd.cn0, rd.dn0
+	if rd.cs != FourReal {
+		c0 = rd.c0
+	}
+	// D = 1 − m s0² sd² = dd² + m c0² sd², without the cancellation of
+	// the first form near the critical curve (m → 1, sd, s0 → 1).
+	den := dd*dd + rd.m*c0*c0*sd*sd
+	jac.y = rd.x0 - d
+	jac.cn = (c0*cd + s0*d0*sd*dd) / den
+	jac.dn = (d0*dd + rd.m*s0*c0*sd*cd) / den
+	jac.sgn = -1
+	jac.den = den
 }
 
 // legendre is the fixed Gauss–Legendre rule of minoQuad on [0, 1], set up
