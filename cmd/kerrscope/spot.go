@@ -2,7 +2,6 @@ package main
 
 import (
 	"context"
-	"errors"
 	"fmt"
 	"io"
 
@@ -70,18 +69,8 @@ func runSpotShard(ctx context.Context, s scene.Scene, sh sweep.Shard, restart bo
 	if err != nil {
 		return usagef("%w", err)
 	}
-	bar := newProgress(progressWriter(quiet, stderr), fmt.Sprintf("spot %s: frames", sh))
-	rep, err := sweep.Run(ctx, plan, sweep.Options{Shard: sh, Restart: restart, Version: version, Progress: bar.set})
-	bar.done()
-	for _, p := range rep.SetAside {
-		fmt.Fprintf(stderr, "kerrscope spot: set aside an unreadable manifest as %s\n", p)
-	}
-	switch {
-	case errors.Is(err, sweep.ErrDefinitionChanged):
-		return usagef("--out %s: %v", plan.Dir(), err)
-	case errors.Is(err, context.Canceled):
-		return interrupted(ctx, err, fmt.Sprintf("%d frames rendered and recorded in %s; run the same command again to finish", len(rep.Rendered), rep.Manifest))
-	case err != nil:
+	rep, err := runPlan(ctx, "spot", plan, sh, restart, quiet, stderr)
+	if err != nil {
 		return err
 	}
 	fmt.Fprintf(stdout, "spot movie of %d frames in %s, intensity max %g\n", len(plan.Points), plan.Dir(), rep.Scales.IMax)

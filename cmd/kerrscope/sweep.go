@@ -93,21 +93,8 @@ func runSweep(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	if err := checkMemory(biggest, frame); err != nil {
 		return err
 	}
-	if sh == (sweep.Shard{}) {
-		sh = sweep.Shard{K: 1, N: 1}
-	}
-	bar := newProgress(progressWriter(*quiet, stderr), fmt.Sprintf("sweep %s: frames", sh))
-	rep, err := sweep.Run(ctx, plan, sweep.Options{Shard: sh, Restart: *restart, Version: version, Progress: bar.set})
-	bar.done()
-	for _, p := range rep.SetAside {
-		fmt.Fprintf(stderr, "kerrscope sweep: set aside an unreadable manifest as %s\n", p)
-	}
-	switch {
-	case errors.Is(err, sweep.ErrDefinitionChanged):
-		return usagef("--out %s: %v", plan.Dir(), err)
-	case errors.Is(err, context.Canceled):
-		return interrupted(ctx, err, fmt.Sprintf("%d frames rendered and recorded in %s; run the same command again to finish", len(rep.Rendered), rep.Manifest))
-	case err != nil:
+	rep, err := runPlan(ctx, "sweep", plan, sh, *restart, *quiet, stderr)
+	if err != nil {
 		return err
 	}
 	var swept []string
@@ -202,4 +189,27 @@ func runSweepMerge(ctx context.Context, args []string, stdout, stderr io.Writer)
 		fmt.Fprintf(stdout, "  %s\n", p)
 	}
 	return nil
+}
+
+// runPlan runs the frames of a sweep plan (sweep or spot, the command's
+// name) that belong to shard sh, with a progress bar, and turns its
+// errors into the command's: a changed definition is a usage error, an
+// interrupt says how far it got.
+func runPlan(ctx context.Context, name string, plan *sweep.Plan, sh sweep.Shard, restart, quiet bool, stderr io.Writer) (sweep.Report, error) {
+	if sh == (sweep.Shard{}) {
+		sh = sweep.Shard{K: 1, N: 1}
+	}
+	bar := newProgress(progressWriter(quiet, stderr), fmt.Sprintf("%s %s: frames", name, sh))
+	rep, err := sweep.Run(ctx, plan, sweep.Options{Shard: sh, Restart: restart, Version: version, Progress: bar.set})
+	bar.done()
+	for _, p := range rep.SetAside {
+		fmt.Fprintf(stderr, "kerrscope %s: set aside an unreadable manifest as %s\n", name, p)
+	}
+	switch {
+	case errors.Is(err, sweep.ErrDefinitionChanged):
+		return rep, usagef("--out %s: %v", plan.Dir(), err)
+	case errors.Is(err, context.Canceled):
+		return rep, interrupted(ctx, err, fmt.Sprintf("%d frames rendered and recorded in %s; run the same command again to finish", len(rep.Rendered), rep.Manifest))
+	}
+	return rep, err
 }
