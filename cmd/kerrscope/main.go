@@ -64,9 +64,16 @@ func main() {
 }
 
 func run(args []string, stdout, stderr io.Writer) int {
-	if len(args) == 0 || args[0] == "help" || args[0] == "-h" || args[0] == "--help" {
+	if len(args) == 0 {
+		usage(stderr)
+		return 2
+	}
+	switch args[0] {
+	case "help", "-h", "--help":
 		usage(stdout)
 		return 0
+	case "--version", "-v":
+		args = append([]string{"version"}, args[1:]...)
 	}
 	for _, c := range commands() {
 		if c.name != args[0] {

@@ -199,3 +199,25 @@ func TestVersionWritesToStdout(t *testing.T) {
 		t.Fatalf("version into a failing writer: exit %d, %q", code, errb.String())
 	}
 }
+
+func TestNoArgumentsIsAUsageError(t *testing.T) {
+	code, out, errs := runCLI()
+	if code != 2 || out != "" || !strings.Contains(errs, "usage: kerrscope <command>") {
+		t.Fatalf("no arguments: exit %d, stdout %q, stderr %q", code, out, errs)
+	}
+	for _, h := range []string{"help", "-h", "--help"} {
+		code, out, errs := runCLI(h)
+		if code != 0 || errs != "" || !strings.Contains(out, "usage: kerrscope <command>") {
+			t.Errorf("%s: exit %d, stdout %q, stderr %q", h, code, out, errs)
+		}
+	}
+}
+
+func TestVersionFlags(t *testing.T) {
+	for _, v := range []string{"--version", "-v"} {
+		code, out, errs := runCLI(v)
+		if code != 0 || errs != "" || out != "kerrscope "+version+"\n" {
+			t.Errorf("%s: exit %d, stdout %q, stderr %q", v, code, out, errs)
+		}
+	}
+}
