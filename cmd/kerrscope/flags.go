@@ -26,7 +26,8 @@ type flags struct {
 	fs     *flag.FlagSet
 	out    io.Writer
 	set    map[string]bool
-	failed error // the last scene flag value that could not be read
+	failed error        // the last scene flag value that could not be read
+	base   *scene.Scene // the scene the command starts from (sceneFlags)
 }
 
 func newFlags(name string, stdout io.Writer) *flags {
@@ -127,29 +128,44 @@ func (f *flags) float(p *float64, name string, def float64, usage string) {
 	f.fs.Var(number{p}, name, usage)
 }
 
-// help lists the flags with two dashes, their meaning and their defaults
-// (for scene flags, the built-in scene's values).
+// defaultNote matches a default stated in a flag's usage text.
+var defaultNote = regexp.MustCompile(` \(default[ :][^()]*(\([^()]*\)[^()]*)*\)`)
+
+// help lists the flags with two dashes, their meaning and their defaults:
+// for scene flags, the values of the scene the command starts from. A
+// default the usage text states is shown only when no value replaces it.
 func (f *flags) help() {
 	fmt.Fprintf(f.out, "usage: kerrscope %s [flags]\n\nflags:\n", f.fs.Name())
-	defaults := sceneDefaults()
+	var defaults map[string]string
+	if f.base != nil {
+		defaults = sceneDefaults(*f.base)
+	}
 	f.fs.VisitAll(func(fl *flag.Flag) {
-		def := fl.DefValue
+		def, usage := fl.DefValue, fl.Usage
 		if sf, ok := fl.Value.(sceneFlag); ok {
 			def = defaults[sf.field.Key]
 			if sf.field.Bool {
 				def = "" // a switch: off unless given
 			}
 		}
-		if strings.Contains(fl.Usage, "(required)") {
+		if strings.Contains(usage, "(required)") {
 			def = ""
 		}
-		name := "--" + fl.Name
-		if _, isBool := fl.Value.(interface{ IsBoolFlag() bool }); !isBool || def != "false" {
-			if def != "" && def != "false" {
-				fmt.Fprintf(f.out, "  %-18s %s (default %s)\n", name, fl.Usage, def)
-				return
+		if def == "false" {
+			def = ""
+		}
+		if defaultNote.MatchString(usage) {
+			if _, ok := fl.Value.(sceneFlag); !ok || def == "" {
+				def = "" // the usage text states it
+			} else {
+				usage = defaultNote.ReplaceAllString(usage, "")
 			}
 		}
-		fmt.Fprintf(f.out, "  %-18s %s\n", name, fl.Usage)
+		name := "--" + fl.Name
+		if def != "" {
+			fmt.Fprintf(f.out, "  %-18s %s (default %s)\n", name, usage, def)
+			return
+		}
+		fmt.Fprintf(f.out, "  %-18s %s\n", name, usage)
 	})
 }

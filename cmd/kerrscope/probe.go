@@ -3,6 +3,7 @@ package main
 import (
 	"context"
 	"io"
+	"slices"
 
 	"kerrscope/raytrace/survey"
 	"kerrscope/render/pixels"
@@ -11,7 +12,10 @@ import (
 
 func runProbe(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 	f := newFlags("probe", stdout)
-	path, _, vals := sceneFlags(f, "spin", "inclination", "inner", "outer", "plunging")
+	base := scene.Default()
+	path, vals := sceneFlags(f, base, func(fl scene.Field) bool {
+		return slices.Contains([]string{"spin", "inclination", "inner", "outer", "plunging"}, fl.Flag)
+	})
 	var alpha, beta float64
 	f.float(&alpha, "alpha", 0, "screen coordinate α (right), in M (required)")
 	f.float(&beta, "beta", 0, "screen coordinate β (up, along the projected spin axis), in M (required)")
@@ -20,7 +24,7 @@ func runProbe(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	if err := f.parse(args); err != nil {
 		return err
 	}
-	s, err := loadScene(*path, scene.Default(), *vals)
+	s, err := loadScene(*path, base, *vals)
 	if err != nil {
 		return err
 	}

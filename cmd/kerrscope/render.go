@@ -42,28 +42,42 @@ func (s sceneFlag) Set(v string) error {
 	return nil
 }
 
-// sceneFlags registers --scene, --quiet and one flag per scene value.
-// With a non-empty only, just the flags it names are registered.
-func sceneFlags(f *flags, only ...string) (path *string, quiet *bool, vals *[]pending) {
+// sceneFlags registers --scene and one flag per scene value that
+// keep accepts (nil: every one). base is the scene the command starts from
+// when no --scene is given; --help shows its values as the defaults.
+func sceneFlags(f *flags, base scene.Scene, keep func(scene.Field) bool) (path *string, vals *[]pending) {
 	vals = &[]pending{}
+	f.base = &base
 	path = f.fs.String("scene", "", "TOML scene file (flags below override its values)")
-	quiet = new(bool)
-	if len(only) == 0 {
-		quiet = f.fs.Bool("quiet", false, "no progress bar")
-	}
-fields:
 	for _, fl := range scene.Fields() {
-		for i, s := range only {
-			if fl.Flag == s {
-				break
-			}
-			if i == len(only)-1 {
-				continue fields
+		if keep == nil || keep(fl) {
+			f.fs.Var(sceneFlag{fl, vals, &f.failed}, fl.Flag, fl.Usage+" ["+fl.Key+"]")
+		}
+	}
+	return path, vals
+}
+
+// without keeps the scene fields whose keys start with none of prefixes.
+func without(prefixes ...string) func(scene.Field) bool {
+	return func(fl scene.Field) bool {
+		for _, p := range prefixes {
+			if strings.HasPrefix(fl.Key, p) {
+				return false
 			}
 		}
-		f.fs.Var(sceneFlag{fl, vals, &f.failed}, fl.Flag, fl.Usage+" ["+fl.Key+"]")
+		return true
 	}
-	return path, quiet, vals
+}
+
+// locateOnly are the scene values only the locate command reads.
+const locateOnly = "band."
+
+// locateBase is the scene locate starts from: the built-in one, refined,
+// because the bands it looks for are thin.
+func locateBase() scene.Scene {
+	base := scene.Default()
+	base.Refine.Depth = 3
+	return base
 }
 
 // loadScene reads the scene file (or starts from base) and applies the
@@ -109,11 +123,13 @@ func progressWriter(quiet bool, stderr io.Writer) io.Writer {
 
 func runRender(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 	f := newFlags("render", stdout)
-	path, quiet, vals := sceneFlags(f)
+	base := scene.Default()
+	path, vals := sceneFlags(f, base, without(locateOnly))
+	quiet := f.fs.Bool("quiet", false, "no progress bar")
 	if err := f.parse(args); err != nil {
 		return err
 	}
-	r, err := buildScene(*path, scene.Default(), *vals)
+	r, err := buildScene(*path, base, *vals)
 	if err != nil {
 		return err
 	}
@@ -122,12 +138,12 @@ func runRender(ctx context.Context, args []string, stdout, stderr io.Writer) err
 
 func runLocate(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 	f := newFlags("locate", stdout)
-	path, quiet, vals := sceneFlags(f)
+	base := locateBase()
+	path, vals := sceneFlags(f, base, without("spot."))
+	quiet := f.fs.Bool("quiet", false, "no progress bar")
 	if err := f.parse(args); err != nil {
 		return err
 	}
-	base := scene.Default()
-	base.Refine.Depth = 3 // thin features: refine unless the scene says otherwise
 	r, err := buildScene(*path, base, *vals)
 	if err != nil {
 		return err
@@ -136,17 +152,18 @@ func runLocate(ctx context.Context, args []string, stdout, stderr io.Writer) err
 }
 
 func runDemo(ctx context.Context, args []string, stdout, stderr io.Writer) error {
+	demo, err := scene.Demo()
+	if err != nil {
+		return err
+	}
 	f := newFlags("demo", stdout)
-	path, quiet, vals := sceneFlags(f)
+	path, vals := sceneFlags(f, demo, without(locateOnly))
+	quiet := f.fs.Bool("quiet", false, "no progress bar")
 	if err := f.parse(args); err != nil {
 		return err
 	}
 	if *path != "" {
 		return usagef("--scene: the demo uses its built-in scene (use kerrscope render --scene)")
-	}
-	demo, err := scene.Demo()
-	if err != nil {
-		return err
 	}
 	r, err := buildScene("", demo, *vals)
 	if err != nil {
@@ -182,10 +199,10 @@ func renderAndReport(ctx context.Context, r scene.Resolved, band, quiet bool, st
 
 var _ flag.Value = sceneFlag{}
 
-// sceneDefaults returns the built-in scene's values by scene key, as text.
-func sceneDefaults() map[string]string {
+// sceneDefaults returns base's values by scene key, as text.
+func sceneDefaults(base scene.Scene) map[string]string {
 	out := map[string]string{}
-	text, err := scene.Default().TOML()
+	text, err := base.TOML()
 	if err != nil {
 		return out
 	}

@@ -17,7 +17,9 @@ import (
 // (manifest, resume, shards) and sweep-merge writes the rest.
 func runSpot(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 	f := newFlags("spot", stdout)
-	path, quiet, vals := sceneFlags(f)
+	base := scene.Default()
+	path, vals := sceneFlags(f, base, without(locateOnly))
+	quiet := f.fs.Bool("quiet", false, "no progress bar")
 	var sh sweep.Shard
 	f.fs.Var(shardFlag{&sh}, "shard", "render only the frames with index mod N = K−1, resumably, recorded in a sweep manifest; when every share is done, kerrscope sweep-merge --out DIR writes the GIF, light curve, centroid and line profile (1/1: one resumable process)")
 	restart := f.fs.Bool("restart", false, "with --shard: start over, removing the files the output directory's sweep manifests record (unchanged ones only) and the manifests")
@@ -35,7 +37,7 @@ func runSpot(ctx context.Context, args []string, stdout, stderr io.Writer) error
 			return usagef("--%s applies to a movie made in shares: give --shard K/N (1/1 for one resumable process)", name)
 		}
 	}
-	s, err := loadScene(*path, scene.Default(), *vals)
+	s, err := loadScene(*path, base, *vals)
 	if err != nil {
 		return err
 	}

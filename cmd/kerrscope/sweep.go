@@ -42,7 +42,9 @@ func (s shardFlag) Set(v string) error {
 
 func runSweep(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 	f := newFlags("sweep", stdout)
-	path, quiet, vals := sceneFlags(f)
+	base := scene.Default()
+	path, vals := sceneFlags(f, base, without(locateOnly))
+	quiet := f.fs.Bool("quiet", false, "no progress bar")
 	var axes []sweep.Axis
 	f.fs.Var(axesFlag{&axes}, "vary", "swept value KEY=FROM:TO:COUNT[:SPACING], SPACING linear (default), log or log1m (1 − v log-spaced); KEY a flag or scene key, e.g. spin=0.5:0.999999:60:log1m; give it twice for a grid (required)")
 	var sh sweep.Shard
@@ -70,7 +72,7 @@ func runSweep(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	if err := checkScaleFlags(f, sc); err != nil {
 		return err
 	}
-	base, err := loadScene(*path, scene.Default(), *vals)
+	base, err := loadScene(*path, base, *vals)
 	if err != nil {
 		return err
 	}
