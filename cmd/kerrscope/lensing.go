@@ -9,19 +9,24 @@ import (
 
 	"kerrscope/raytrace"
 	"kerrscope/raytrace/survey"
+	"kerrscope/scene"
 )
 
 func runLensing(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 	f := newFlags("lensing", stdout)
-	var spin, inc float64
-	f.float(&spin, "spin", 0, "black-hole spin a, signed, -1 < a < 1")
-	f.float(&inc, "inclination", 60, "observer inclination from the spin axis, degrees, 0 to 180")
+	base := scene.Default()
+	path, vals := sceneFlags(f, base, func(fl scene.Field) bool { return fl.Flag == "spin" || fl.Flag == "inclination" })
 	dirs := f.fs.String("directions", "0,90,180,270", "comma-separated screen directions in degrees (0 = +α, 90 = +β) from the shadow's centre")
 	orders := f.fs.Int("orders", 5, "highest band order to measure, 1 to 12")
 	asJSON := f.fs.Bool("json", false, "print JSON instead of a table")
 	if err := f.parse(args); err != nil {
 		return err
 	}
+	s, err := loadScene(*path, base, *vals)
+	if err != nil {
+		return err
+	}
+	spin, inc := s.Hole.Spin, s.Observer.InclinationDeg
 	if !(spin > -1 && spin < 1) {
 		return usagef("--spin %g is outside the allowed range -1 < spin < 1", spin)
 	}

@@ -9,6 +9,8 @@ import (
 	"os"
 	"strings"
 	"testing"
+
+	"kerrscope/scene"
 )
 
 func runCLI(args ...string) (int, string, string) {
@@ -90,17 +92,31 @@ func TestLensingCLI(t *testing.T) {
 	}
 	var m struct {
 		Bands []struct {
-			Order int     `json:"order"`
-			Width float64 `json:"width"`
-			Ratio float64 `json:"ratio_to_previous"`
+			Order int      `json:"order"`
+			Width float64  `json:"width"`
+			Ratio *float64 `json:"ratio_to_previous"`
 		} `json:"bands"`
 	}
 	if err := json.Unmarshal([]byte(out), &m); err != nil || len(m.Bands) != 4 {
 		t.Fatalf("%v: %s", err, out)
 	}
+	// The first band has no previous one: null, not a number.
+	if !strings.Contains(out, `"ratio_to_previous":null`) || m.Bands[0].Ratio != nil {
+		t.Errorf("first band's ratio is not null: %s", out)
+	}
 	// Successive widths shrink by ≈ e^{-π} for a = 0 (Johnson et al. 2020).
-	if r := m.Bands[3].Ratio; r < 0.042 || r > 0.0445 {
+	if r := m.Bands[3].Ratio; r == nil || *r < 0.042 || *r > 0.0445 {
 		t.Errorf("ratio %v", r)
+	}
+	// Without --spin and --inclination, the built-in scene's values.
+	code, out, errs := runCLI("lensing", "--directions", "0", "--orders", "1", "--json")
+	want := scene.Default()
+	var d struct {
+		Spin        float64 `json:"spin"`
+		Inclination float64 `json:"inclination_deg"`
+	}
+	if err := json.Unmarshal([]byte(out), &d); code != 0 || err != nil || d.Spin != want.Hole.Spin || d.Inclination != want.Observer.InclinationDeg {
+		t.Errorf("lensing defaults: exit %d, %v, spin %v inclination %v, want %v %v; %s", code, err, d.Spin, d.Inclination, want.Hole.Spin, want.Observer.InclinationDeg, errs)
 	}
 	for _, bad := range [][]string{{"--orders", "0"}, {"--directions", "north"}, {"--spin", "2"}} {
 		if code, _, errs := runCLI(append([]string{"lensing"}, bad...)...); code != 2 || !strings.Contains(errs, bad[0]) {

@@ -17,12 +17,14 @@ import (
 // from a centre point at angle Direction (degrees, counter-clockwise from
 // the +α axis).
 type LensingBand struct {
-	Order       int     `json:"order"`
-	Direction   float64 `json:"direction_deg"`
-	Inner       float64 `json:"inner"` // distance from the centre where the band starts, M
-	Outer       float64 `json:"outer"` // … and ends, M
-	Width       float64 `json:"width"` // Outer - Inner, M
-	Demagnified float64 `json:"ratio_to_previous"`
+	Order     int     `json:"order"`
+	Direction float64 `json:"direction_deg"`
+	Inner     float64 `json:"inner"` // distance from the centre where the band starts, M
+	Outer     float64 `json:"outer"` // … and ends, M
+	Width     float64 `json:"width"` // Outer - Inner, M
+	// Demagnified is Width over the previous order's width; nil (JSON
+	// null, "—" in the table) for the first order, which has none.
+	Demagnified *float64 `json:"ratio_to_previous"`
 }
 
 // crossings counts the plane crossings (up to max) of the photon at
@@ -90,7 +92,8 @@ func LensingBands(o raytrace.Observer, ca, cb, dirDeg float64, maxOrder int) []L
 		inner, outer := edge(-1), edge(1)
 		b := LensingBand{Order: n, Direction: dirDeg, Inner: inner, Outer: outer, Width: outer - inner}
 		if len(out) > 0 && out[len(out)-1].Width > 0 {
-			b.Demagnified = b.Width / out[len(out)-1].Width
+			ratio := b.Width / out[len(out)-1].Width
+			b.Demagnified = &ratio
 		}
 		out = append(out, b)
 	}
@@ -156,8 +159,8 @@ func (r LensingReport) WriteText(w io.Writer) error {
 	t.println("  direction [°]\tn\tinner [M]\touter [M]\twidth [M]\twidth / previous")
 	for _, b := range r.Bands {
 		ratio := "—"
-		if b.Demagnified > 0 {
-			ratio = fmt.Sprintf("%.6f", b.Demagnified)
+		if b.Demagnified != nil {
+			ratio = fmt.Sprintf("%.6f", *b.Demagnified)
 		}
 		t.printf("  %g\t%d\t%.10g\t%.10g\t%.6g\t%s\n", b.Direction, b.Order, b.Inner, b.Outer, b.Width, ratio)
 	}

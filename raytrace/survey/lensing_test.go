@@ -21,9 +21,17 @@ func TestLensingBandsSchwarzschild(t *testing.T) {
 					t.Errorf("i=%v dir=%v band %d [%v, %v] does not straddle sqrt(27)", inc, dir, b.Order, b.Inner, b.Outer)
 				}
 			}
-			last := bands[len(bands)-1].Demagnified
+			if bands[0].Demagnified != nil {
+				t.Errorf("i=%v dir=%v: the first band has a ratio to a previous one, %v", inc, dir, *bands[0].Demagnified)
+			}
+			for _, b := range bands[1:] {
+				if b.Demagnified == nil {
+					t.Fatalf("i=%v dir=%v: band %d has no ratio to the previous one", inc, dir, b.Order)
+				}
+			}
+			last := *bands[len(bands)-1].Demagnified
 			t.Logf("i=%v dir=%v: width ratios %.5f %.5f %.5f %.5f (e^-π = %.5f)", inc, dir,
-				bands[1].Demagnified, bands[2].Demagnified, bands[3].Demagnified, bands[4].Demagnified, math.Exp(-math.Pi))
+				*bands[1].Demagnified, *bands[2].Demagnified, *bands[3].Demagnified, *bands[4].Demagnified, math.Exp(-math.Pi))
 			if math.Abs(last/math.Exp(-math.Pi)-1) > 0.01 {
 				t.Errorf("i=%v dir=%v: ratio of bands 5/4 = %v, want e^-π = %v within 1%%", inc, dir, last, math.Exp(-math.Pi))
 			}
