@@ -80,7 +80,11 @@ func (r ProbeReport) WriteText(w io.Writer) error {
 	p := &printer{w: w}
 	p.printf("photon at α = %g M, β = %g M   (spin a = %g, inclination %g°)\n", r.Alpha, r.Beta, r.Spin, r.InclinationDeg)
 	p.printf("  λ = %.10g M   η = %.10g M²   radial roots: case %s\n", r.Lambda, r.Eta, r.RootCase)
-	p.printf("  traced back, it comes from: %s   (total Mino time %.10g /M)\n", r.Fate, r.TotalMino)
+	if c, ok := r.firstOnDisk(); ok {
+		p.printf("  traced back, its light comes from the disk at crossing %d (r = %.6g M); the path beyond ends at: %s   (total Mino time %.10g /M)\n", c.Order, c.R, r.Fate, r.TotalMino)
+	} else {
+		p.printf("  traced back, it comes from: %s   (total Mino time %.10g /M)\n", r.Fate, r.TotalMino)
+	}
 	if len(r.Crossings) == 0 {
 		p.println("  it never crosses the equatorial plane")
 		return p.err
@@ -93,11 +97,11 @@ func (r ProbeReport) WriteText(w io.Writer) error {
 	}
 	tw := tabwriter.NewWriter(w, 0, 0, 3, ' ', 0)
 	t := &printer{w: tw}
-	t.println("  order\tr [M]\tMino time [1/M]\tleft the plane\tg (disk)\tdelay [M]\tΔφ [rad]")
+	t.println("  order\tr [M]\tMino time [1/M]\tmoving\tg (disk)\tdelay [M]\tΔφ [rad]")
 	for _, c := range r.Crossings {
-		dir := "inward"
+		dir := "toward the hole"
 		if c.Outbound {
-			dir = "outward"
+			dir = "away from the hole"
 		}
 		g := "off disk"
 		if c.G != nil {
@@ -109,6 +113,18 @@ func (r ProbeReport) WriteText(w io.Writer) error {
 		return t.err
 	}
 	return tw.Flush()
+}
+
+// firstOnDisk returns the lowest-order crossing that lands on the disk
+// (one with a redshift): where an opaque disk's light for this photon is
+// emitted.
+func (r ProbeReport) firstOnDisk() (ProbeCrossing, bool) {
+	for _, c := range r.Crossings {
+		if c.G != nil {
+			return c, true
+		}
+	}
+	return ProbeCrossing{}, false
 }
 
 // printer writes formatted text until the first error, which it keeps.

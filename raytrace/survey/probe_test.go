@@ -3,6 +3,7 @@ package survey
 import (
 	"bytes"
 	"errors"
+	"fmt"
 	"io"
 	"math"
 	"strings"
@@ -84,6 +85,25 @@ func TestProbeWriteErrors(t *testing.T) {
 	var text strings.Builder
 	if err := crossing.WriteText(&text); err != nil || !strings.Contains(text.String(), "off disk") || !strings.Contains(text.String(), "0.50000000") {
 		t.Errorf("text report lacks the g column: %v\n%s", err, text.String())
+	}
+	// The photon's light comes from its first crossing on the disk, not
+	// from where the path traced back ends.
+	first, ok := crossing.firstOnDisk()
+	if !ok {
+		t.Fatal("test photon lands nowhere on the disk")
+	}
+	if want := fmt.Sprintf("its light comes from the disk at crossing %d", first.Order); !strings.Contains(text.String(), want) {
+		t.Errorf("text report does not say %q:\n%s", want, text.String())
+	}
+	// Outbound crossings move to larger r (raytrace.Crossing): away from the hole.
+	for _, c := range crossing.Crossings {
+		if c.Outbound && !strings.Contains(text.String(), "away from the hole") || !c.Outbound && !strings.Contains(text.String(), "toward the hole") {
+			t.Errorf("crossing %d (outbound %v) is not described by its direction:\n%s", c.Order, c.Outbound, text.String())
+		}
+	}
+	var offDisk strings.Builder
+	if err := Probe(o, 6.8, 0.5, 5, nil).WriteText(&offDisk); err != nil || !strings.Contains(offDisk.String(), "it comes from: ") {
+		t.Errorf("a photon that lands nowhere on the disk is not traced to its end: %v\n%s", err, offDisk.String())
 	}
 }
 

@@ -155,9 +155,9 @@ func (d definition) same(o definition) (bool, string) {
 	case d.Scene != o.Scene:
 		return false, "the scene"
 	case !slices.Equal(d.Axes, o.Axes):
-		return false, "the swept values"
+		return false, "the list of swept values"
 	case d.Fixed != o.Fixed:
-		return false, "the fixed scales"
+		return false, "the set of fixed scales"
 	}
 	return true, ""
 }
