@@ -117,7 +117,7 @@ func TestManifestRoundTrip(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	back, err := Parse("manifest.toml", text)
+	back, err := Parse("kerrscope-run.toml", text)
 	if err != nil {
 		t.Fatal(err)
 	}

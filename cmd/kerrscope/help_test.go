@@ -51,7 +51,7 @@ func TestHelpShowsTheDefaultsUsed(t *testing.T) {
 		if code, _, errs := runCLI(c.cmd, "--width", "8", "--height", "8", "--formats", "csv", "--out", dir, "--quiet"); code != 0 {
 			t.Fatalf("%s: exit %d: %s", c.cmd, code, errs)
 		}
-		used, err := scene.Load(filepath.Join(dir, "manifest.toml"))
+		used, err := scene.Load(filepath.Join(dir, "kerrscope-run.toml"))
 		if err != nil {
 			t.Fatal(err)
 		}

@@ -187,7 +187,7 @@ func TestDemoCLI(t *testing.T) {
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
-	for _, name := range []string{"redshift.png", "redshift-bare.png", "spectrum.csv", "spectrum.png", "maps.fits", "manifest.toml", "shadow.png"} {
+	for _, name := range []string{"redshift.png", "redshift-bare.png", "spectrum.csv", "spectrum.png", "maps.fits", "kerrscope-run.toml", "shadow.png"} {
 		if !strings.Contains(out, name) {
 			t.Errorf("demo did not list %s:\n%s", name, out)
 		}

@@ -33,7 +33,7 @@ const (
 	BandBare                       // pixel-exact band image (band-bare.png)
 	BandFigure                     // decorated band figure (band.png)
 	BandRedshift                   // redshift factor of the band's light (band-redshift.png)
-	Manifest                       // the effective scene (manifest.toml)
+	Manifest                       // the effective scene (kerrscope-run.toml)
 )
 
 // Artifact is one file a run writes.
@@ -49,7 +49,7 @@ type Set struct {
 	Prefix   string // put before every file name (a sweep's "frame-0007-")
 	Indexed  bool   // an 8-bit palette PNG of every map
 	Band     bool   // the band report, masks and figures
-	Manifest bool   // manifest.toml
+	Manifest bool   // kerrscope-run.toml
 }
 
 // Artifacts lists the files a run of a scene with outputs o writes, in
@@ -95,7 +95,7 @@ func Artifacts(o scene.Output, s Set) []Artifact {
 		}
 	}
 	if s.Manifest {
-		add("manifest.toml", Manifest, "")
+		add("kerrscope-run.toml", Manifest, "")
 	}
 	return out
 }

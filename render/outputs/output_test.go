@@ -49,7 +49,7 @@ func mustRunScene(t *testing.T, r scene.Resolved) {
 }
 
 // view returns the visible files of dir and their contents, with the
-// directory's path written as DIR (manifest.toml records it); folders
+// directory's path written as DIR (kerrscope-run.toml records it); folders
 // are listed as NAME/.
 func view(t *testing.T, dir string) map[string]string {
 	t.Helper()

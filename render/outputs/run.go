@@ -1,7 +1,7 @@
 // Package outputs writes what a run makes: the decorated figures and
 // pixel-exact PNGs of the maps (render/maps), the FITS file of every map,
 // the spectrum as CSV and figure, the band report, masks and figures, and
-// manifest.toml. Artifacts is the one list of a run's files; Write makes
+// kerrscope-run.toml. Artifacts is the one list of a run's files; Write makes
 // them; Outputs stages them so that a failed run leaves nothing behind;
 // Run ties a render (render/pixels) to its files.
 package outputs
@@ -36,7 +36,7 @@ type Summary struct {
 // Run renders the scene and writes every requested output into its
 // directory: figures, pixel-exact PNGs, a FITS file of all maps, the
 // spectrum (CSV and plot), the band report and masks (Options.Band) and
-// manifest.toml (the effective scene). The directory is locked for the
+// kerrscope-run.toml (the effective scene). The directory is locked for the
 // whole run (a second writer gets a *BusyError), and the files of the
 // last run into it that this one does not write again are removed with
 // the commit; on any error the last run's files are left as they were.
@@ -77,13 +77,13 @@ func Run(ctx context.Context, r scene.Resolved, opt Options) (Summary, error) {
 }
 
 // WriteManifest writes the effective scene as TOML, headed by the program
-// version, so that `kerrscope render --scene manifest.toml` reproduces
+// version, so that `kerrscope render --scene kerrscope-run.toml` reproduces
 // the outputs exactly.
 func WriteManifest(w io.Writer, s scene.Scene, version string) error {
 	text, err := s.TOML()
 	if err != nil {
 		return err
 	}
-	_, err = fmt.Fprintf(w, "# kerrscope %s — effective scene of this run; render it again with\n#   kerrscope render --scene manifest.toml\n\n%s", version, strings.TrimLeft(string(text), "\n"))
+	_, err = fmt.Fprintf(w, "# kerrscope %s — effective scene of this run; render it again with\n#   kerrscope render --scene kerrscope-run.toml\n\n%s", version, strings.TrimLeft(string(text), "\n"))
 	return err
 }

@@ -60,7 +60,7 @@ func TestRunIsReproducible(t *testing.T) {
 		}
 	}
 	// The manifest reproduces the run.
-	m, err := scene.Load(filepath.Join(a, "manifest.toml"))
+	m, err := scene.Load(filepath.Join(a, "kerrscope-run.toml"))
 	if err != nil {
 		t.Fatal(err)
 	}
