@@ -120,7 +120,7 @@ func checkScene(path, dir string, keys map[string]bool) error {
 			return fmt.Errorf("spectrum value %v", v)
 		}
 	}
-	if err := pixels.CheckFinite(fr); err != nil {
+	if _, err := pixels.CheckFinite(fr); err != nil {
 		return fmt.Errorf("finite frame reported as %v", err)
 	}
 	for _, name := range scene.MapNames {

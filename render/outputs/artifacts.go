@@ -120,6 +120,9 @@ type Job struct {
 	// Band is the located band (pixels.Frame.LocateBand), for the band
 	// artifacts.
 	Band *Band
+	// Spectrum is the frame's spectrum if it was collapsed already (as
+	// pixels.CheckFinite returns it); nil: Write collapses the frame.
+	Spectrum *pixels.Spectrum
 }
 
 // Band is a located band of source radii: the report and its mask per
@@ -197,7 +200,13 @@ func Write(ctx context.Context, arts []Artifact, job Job, put Put) error {
 	var specTask *task
 	for _, a := range arts {
 		if a.Kind == SpectrumCSV || a.Kind == SpectrumFigure {
-			specTask = add(func(*scratch) { spec = f.Spectrum() })
+			if job.Spectrum != nil {
+				spec = *job.Spectrum
+				specTask = &task{done: make(chan struct{})} // done already
+				close(specTask.done)
+			} else {
+				specTask = add(func(*scratch) { spec = f.Spectrum() })
+			}
 			break
 		}
 	}

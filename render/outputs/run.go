@@ -49,9 +49,11 @@ func Run(ctx context.Context, r scene.Resolved, opt Options) (Summary, error) {
 		return Summary{}, err
 	}
 	defer lk.Unlock()
-	f, err := pixels.RenderScene(ctx, r, opt.Progress, Needs(Artifacts(r.Output, Set{Band: opt.Band, Manifest: true})))
+	arts := Artifacts(r.Output, Set{Band: opt.Band, Manifest: true})
+	f, err := pixels.RenderScene(ctx, r, opt.Progress, Needs(arts))
+	var spec *pixels.Spectrum
 	if err == nil {
-		err = pixels.CheckFinite(f)
+		spec, err = pixels.CheckFinite(f)
 	}
 	if err != nil {
 		return Summary{}, err
@@ -61,13 +63,12 @@ func Run(ctx context.Context, r scene.Resolved, opt Options) (Summary, error) {
 		return Summary{}, err
 	}
 	sum := Summary{Photons: f.Photons}
-	job := Job{Frame: f, Scales: opt.Scales, Version: opt.Version}
+	job := Job{Frame: f, Scales: opt.Scales, Version: opt.Version, Spectrum: spec}
 	if opt.Band {
 		rep, mask := f.LocateBand(r.BandMin, r.BandMax)
 		sum.Band = &rep
 		job.Band = &Band{Report: rep, Mask: mask}
 	}
-	arts := Artifacts(r.Output, Set{Band: opt.Band, Manifest: true})
 	if err := Write(ctx, arts, job, out.Write); err != nil {
 		out.Abort()
 		return Summary{}, err

@@ -42,8 +42,10 @@ func (e *NonFiniteError) Error() string {
 //
 // Records the frame did not keep (Keep) are not checked, nor is the
 // spectrum unless the frame keeps what it is made of (g and the line
-// intensity, or the refined samples).
-func CheckFinite(f *Frame) error {
+// intensity, or the refined samples). The spectrum it checked is
+// returned (nil when none), so that callers need not collapse the frame
+// again.
+func CheckFinite(f *Frame) (*Spectrum, error) {
 	var records []struct {
 		name string
 		q    [][]float32
@@ -70,7 +72,7 @@ func CheckFinite(f *Frame) error {
 			}
 			for _, rec := range records {
 				if v := float64(rec.q[o][k]); math.IsNaN(v) || math.IsInf(v, 0) {
-					return &NonFiniteError{Quantity: rec.name, Order: o, Pixel: [2]int{k % f.W, k / f.W}, Bin: -1, Value: v}
+					return nil, &NonFiniteError{Quantity: rec.name, Order: o, Pixel: [2]int{k % f.W, k / f.W}, Bin: -1, Value: v}
 				}
 			}
 			if f.Line != nil {
@@ -85,31 +87,31 @@ func CheckFinite(f *Frame) error {
 			v    float64
 		}{{"line intensity", line}, {"bolometric intensity", bol}} {
 			if v := float64(float32(t.v)); math.IsInf(v, 0) || math.IsNaN(v) {
-				return &NonFiniteError{Quantity: t.name, Order: -1, Pixel: [2]int{k % f.W, k / f.W}, Bin: -1, Value: v}
+				return nil, &NonFiniteError{Quantity: t.name, Order: -1, Pixel: [2]int{k % f.W, k / f.W}, Bin: -1, Value: v}
 			}
 		}
 	}
 	if f.refined == nil && !f.Has(KeepG|KeepLine) {
-		return nil
+		return nil, nil
 	}
 	s := f.Spectrum()
 	bad := func(v float64) bool { return math.IsNaN(v) || math.IsInf(v, 0) }
 	for o, ord := range s.Order {
 		for b, v := range ord {
 			if bad(v) {
-				return &NonFiniteError{Quantity: "spectrum", Order: o, Pixel: [2]int{-1, -1}, Bin: b, Value: v}
+				return nil, &NonFiniteError{Quantity: "spectrum", Order: o, Pixel: [2]int{-1, -1}, Bin: b, Value: v}
 			}
 		}
 	}
 	for b, v := range s.Total() {
 		if bad(v) || bad(v/s.Width()) {
-			return &NonFiniteError{Quantity: "spectrum", Order: -1, Pixel: [2]int{-1, -1}, Bin: b, Value: v}
+			return nil, &NonFiniteError{Quantity: "spectrum", Order: -1, Pixel: [2]int{-1, -1}, Bin: b, Value: v}
 		}
 	}
 	for _, v := range []float64{s.Below, s.Above} {
 		if bad(v) {
-			return &NonFiniteError{Quantity: "flux outside the energy range", Order: -1, Pixel: [2]int{-1, -1}, Bin: s.Bins(), Value: v}
+			return nil, &NonFiniteError{Quantity: "flux outside the energy range", Order: -1, Pixel: [2]int{-1, -1}, Bin: s.Bins(), Value: v}
 		}
 	}
-	return nil
+	return &s, nil
 }

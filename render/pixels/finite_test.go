@@ -20,7 +20,7 @@ func TestExtremeAllowedIndexIsFinite(t *testing.T) {
 			s.Hole.Spin = 0.998
 		})
 		f := render(t, r)
-		if err := CheckFinite(f); err != nil {
+		if _, err := CheckFinite(f); err != nil {
 			t.Errorf("q = %v: %v", q, err)
 		}
 	}

@@ -114,7 +114,8 @@ func TestSubimageDelayAgainstDirectSearch(t *testing.T) {
 	}
 }
 
-// TestDelayFaceOnAxisymmetric: seen face-on the disk is axisymmetric, so
+// TestDelayFaceOnAxisymmetric: seen face-on the disk is axisymmetric (the
+// Kerr metric and a face-on observer share the spin axis; common practice), so
 // the delay of the first image can depend only on the source radius:
 // within each thin annulus of r the first-seen delays agree (to the
 // change of t across the annulus, a few times its width).

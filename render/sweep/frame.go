@@ -25,13 +25,14 @@ func (p *Plan) writeFrame(ctx context.Context, lk *outputs.DirLock, pt Point, sc
 		return p.writeSpotFrame(ctx, lk, pt, sc)
 	}
 	f, err := pixels.RenderScene(ctx, pt.Scene, nil, outputs.Needs(p.artifacts(pt.Index)))
+	var spec *pixels.Spectrum
 	if err == nil {
-		err = pixels.CheckFinite(f)
+		spec, err = pixels.CheckFinite(f)
 	}
 	if err != nil {
 		return nil, err
 	}
-	job := outputs.Job{Frame: f, Scales: sc, Version: version,
+	job := outputs.Job{Frame: f, Scales: sc, Version: version, Spectrum: spec,
 		SpectrumTitle: fmt.Sprintf("line profile collapsed from the image, frame %d of %d", pt.Index, len(p.Points))}
 	return p.commitFrame(ctx, lk, pt.Index, func(put outputs.Put) error {
 		return outputs.Write(ctx, p.artifacts(pt.Index), job, put)

@@ -37,17 +37,26 @@ type spotMovie struct {
 // be fixed; by default it is the brightest pixel of any frame. Frame k
 // is spot-frame-NNNN.png, byte for byte the file spot.Run writes.
 func NewSpotPlan(base scene.Scene, fixed maps.Scales) (*Plan, error) {
-	r, err := base.Resolve()
+	_, _, _, a, err := spotAxis(base)
 	if err != nil {
 		return nil, err
+	}
+	return NewPlan(base, []Axis{a}, fixed)
+}
+
+// spotAxis resolves the scene and its spot and returns the frame times
+// and the SpotTime axis through them.
+func spotAxis(base scene.Scene) (scene.Resolved, scene.SpotEmission, []float64, Axis, error) {
+	r, err := base.Resolve()
+	if err != nil {
+		return r, scene.SpotEmission{}, nil, Axis{}, err
 	}
 	sp, err := scene.ResolveSpot(r)
 	if err != nil {
-		return nil, err
+		return r, sp, nil, Axis{}, err
 	}
 	times := spot.FrameTimes(r, sp)
-	a := Axis{Key: SpotTime, From: 0, To: times[len(times)-1], Count: len(times), Spacing: Linear}
-	return NewPlan(base, []Axis{a}, fixed)
+	return r, sp, times, Axis{Key: SpotTime, From: 0, To: times[len(times)-1], Count: len(times), Spacing: Linear}, nil
 }
 
 // newSpotPlan is NewPlan for an axis SpotTime, which must be the axis
@@ -62,11 +71,7 @@ func newSpotPlan(base scene.Scene, axes []Axis, fixed maps.Scales) (*Plan, error
 	if fixed.GMin != 0 || fixed.GMax != 0 || fixed.IDecades != 0 || fixed.RMin != 0 || fixed.RMax != 0 || fixed.FluxMax != 0 {
 		return nil, errors.New("a spot movie has one colour scale, the intensity maximum; the other scales cannot be fixed")
 	}
-	r, err := base.Resolve()
-	if err != nil {
-		return nil, err
-	}
-	sp, err := scene.ResolveSpot(r)
+	r, sp, times, want, err := spotAxis(base)
 	if err != nil {
 		return nil, err
 	}
@@ -75,8 +80,6 @@ func newSpotPlan(base scene.Scene, axes []Axis, fixed maps.Scales) (*Plan, error
 		return nil, fmt.Errorf("spot.frames = %d of %d×%d pixels: %d MB of frames, more than the %d MB a movie may hold; use fewer frames or pixels",
 			r.Spot.Frames, r.Screen.Width, r.Screen.Height, n>>20, spot.MaxMovieBytes>>20)
 	}
-	times := spot.FrameTimes(r, sp)
-	want := Axis{Key: SpotTime, From: 0, To: times[len(times)-1], Count: len(times), Spacing: Linear}
 	if axes[0] != want {
 		return nil, fmt.Errorf("%s: axis %s is not the scene's (%s, from spot.frames = %d and spot.periods = %g)",
 			SpotTime, axes[0], want, r.Spot.Frames, r.Spot.Periods)
