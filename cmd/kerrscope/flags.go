@@ -28,6 +28,16 @@ type flags struct {
 	set    map[string]bool
 	failed error        // the last scene flag value that could not be read
 	base   *scene.Scene // the scene the command starts from (sceneFlags)
+	hidden map[string]bool
+}
+
+// hide keeps a flag out of --help; it is still parsed (so that using it
+// can be refused with a reason).
+func (f *flags) hide(name string) {
+	if f.hidden == nil {
+		f.hidden = map[string]bool{}
+	}
+	f.hidden[name] = true
 }
 
 func newFlags(name string, stdout io.Writer) *flags {
@@ -141,6 +151,9 @@ func (f *flags) help() {
 		defaults = sceneDefaults(*f.base)
 	}
 	f.fs.VisitAll(func(fl *flag.Flag) {
+		if f.hidden[fl.Name] {
+			return
+		}
 		def, usage := fl.DefValue, fl.Usage
 		if sf, ok := fl.Value.(sceneFlag); ok {
 			def = defaults[sf.field.Key]

@@ -76,6 +76,13 @@ func TestHelpDefaultsPerCommand(t *testing.T) {
 			t.Errorf("demo --help: %s default %q, want %q", key, demo[key], want)
 		}
 	}
+	// The demo refuses --scene, so its help does not offer it.
+	if _, out := helpDefaults(t, "demo"); strings.Contains(out, "--scene") {
+		t.Errorf("demo --help lists --scene, which the demo refuses")
+	}
+	if code, _, errs := runCLI("demo", "--scene", "x.toml"); code != 2 || !strings.Contains(errs, "built-in scene") {
+		t.Errorf("demo --scene: exit %d, stderr %q; want a usage error naming the built-in scene", code, errs)
+	}
 	locate, _ := helpDefaults(t, "locate")
 	if locate["refine.depth"] != "3" {
 		t.Errorf("locate --help: refine depth default %q, want 3", locate["refine.depth"])

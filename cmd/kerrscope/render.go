@@ -158,6 +158,7 @@ func runDemo(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	}
 	f := newFlags("demo", stdout)
 	path, vals := sceneFlags(f, demo, without(locateOnly))
+	f.hide("scene") // the demo's scene is built in
 	quiet := f.fs.Bool("quiet", false, "no progress bar")
 	if err := f.parse(args); err != nil {
 		return err
