@@ -81,8 +81,8 @@ func TestCelestialWCSByAstropy(t *testing.T) {
 		// (0-based column) is at α = c_α + (i + 1/2 − W/2) h, and FITS
 		// row 1 is the bottom row.
 		h := r.PixelSize
-		hx := 1 + (float64(r.Screen.Width)/2-0.5) - r.Screen.CenterAlpha/h
-		hy := 1 + (float64(r.Screen.Height)/2-0.5) - r.Screen.CenterBeta/h
+		hx := 1 + (float64(r.Screen.Width)/2 - 0.5) - r.Screen.CenterAlpha/h
+		hy := 1 + (float64(r.Screen.Height)/2 - 0.5) - r.Screen.CenterBeta/h
 		out, err := exec.Command(py, "-c", readSky, filepath.Join(dir, "maps.fits"),
 			strconv.FormatFloat(hx, 'g', -1, 64), strconv.FormatFloat(hy, 'g', -1, 64)).CombinedOutput()
 		if err != nil {
