@@ -9,6 +9,10 @@ import (
 	"kerrscope/scene"
 )
 
+// PhysicalSpectrumUnits is the header text of a spectrum table whose flux
+// columns are physical (readers look for it).
+const PhysicalSpectrumUnits = "photons cm^-2 s^-1 keV^-1 at the observer (physical units)"
+
 // WriteCSV writes the spectrum: a commented header with units and
 // normalisation, then one row per bin: bin centre and edges in keV, total
 // flux density and one column per image order, all per keV. The flux is
@@ -25,7 +29,7 @@ func WriteCSV(w io.Writer, s *pixels.Spectrum, title string, r scene.Resolved) e
 	unit := 1.0
 	if u := r.SpectrumPerUnit(); u > 0 {
 		unit = u
-		fmt.Fprintln(bw, "# flux columns: photons cm^-2 s^-1 keV^-1 at the observer (physical units)")
+		fmt.Fprintln(bw, "# flux columns: "+PhysicalSpectrumUnits)
 		fmt.Fprintf(bw, "#   line luminosity %g erg/s, both faces, = %.10g photons/s; distance %.10g cm\n", *r.Emission.LineLuminosityErgS, r.PhotonRate, r.DistanceCm)
 	} else {
 		fmt.Fprintln(bw, "# flux columns (relative units): photon-number flux density per keV, sum over pixels of g^3 eps(r) limb(cos delta) dOmega / dE,")

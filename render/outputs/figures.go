@@ -11,8 +11,9 @@ import (
 
 // SpectrumPlot returns the figure of the spectrum: total and per order,
 // per keV, with the rest energy marked. perUnit > 0 (scene.Resolved.
-// SpectrumPerUnit) scales the flux, and fluxMax with it, to photons
-// cm⁻² s⁻¹ keV⁻¹; 0 keeps it relative.
+// SpectrumPerUnit) scales the flux to photons cm⁻² s⁻¹ keV⁻¹; 0 keeps it
+// relative. fluxMax, the top of the axis (0: from the data), is in the
+// units shown.
 func SpectrumPlot(s *pixels.Spectrum, title, subtitle string, fluxMax, perUnit float64) figure.Plot {
 	ylabel, unit := "photon flux density F_E [keV⁻¹, relative]", 1.0
 	if perUnit > 0 {
@@ -34,7 +35,7 @@ func SpectrumPlot(s *pixels.Spectrum, title, subtitle string, fluxMax, perUnit f
 		Title: title, Subtitle: subtitle,
 		XLabel: "observed energy E [keV]",
 		YLabel: ylabel,
-		XMin:   s.MinKeV, XMax: s.MaxKeV, YMax: fluxMax * unit,
+		XMin:   s.MinKeV, XMax: s.MaxKeV, YMax: fluxMax,
 		Legend: true,
 		VLines: []figure.VLine{{X: s.LineKeV, Label: fmt.Sprintf("%g keV rest", s.LineKeV), Color: color.RGBA{0x60, 0x60, 0x60, 0xff}, Dashed: true}},
 	}
