@@ -61,11 +61,20 @@ type Hole struct {
 	MassSolar   *float64 `toml:"mass_msun,omitempty"`    // M in solar masses
 	DistanceKpc *float64 `toml:"distance_kpc,omitempty"` // distance in kpc
 	DistanceMpc *float64 `toml:"distance_mpc,omitempty"` // or in Mpc
+	// RADeg and DecDeg place the hole on the sky (ICRS, degrees), for
+	// the celestial WCS of the FITS maps; both or neither.
+	RADeg  *float64 `toml:"ra_deg,omitempty"`
+	DecDeg *float64 `toml:"dec_deg,omitempty"`
 }
 
 // Observer is the distant observer.
 type Observer struct {
 	InclinationDeg float64 `toml:"inclination_deg"` // from the spin axis, 0–180
+	// PositionAngleDeg is the position angle on the sky of the projected
+	// spin axis (the screen's +β), from north through east, in degrees
+	// (SkyOffset). The pixel grid stays aligned with α, β; the angle
+	// enters the celestial WCS only.
+	PositionAngleDeg float64 `toml:"position_angle_deg"`
 }
 
 // Screen is the observer's pixel grid: Width × Height pixels spanning
@@ -100,6 +109,11 @@ type Emission struct {
 	IndexOuter float64 `toml:"index_outer"`
 	BreakRad   float64 `toml:"break_radius"`
 	Limb       string  `toml:"limb"` // isotropic, laor
+	// LineLuminosityErgS is the line luminosity L in erg/s, both faces
+	// (defined at resolvePhotonRate in flux.go); with mass and distance
+	// it puts the maps and the spectrum in physical units. nil: relative
+	// units.
+	LineLuminosityErgS *float64 `toml:"line_luminosity_erg_s,omitempty"`
 }
 
 // Spectrum is the binning of the collapsed line profile.
@@ -395,6 +409,15 @@ type Resolved struct {
 	Gas              Gas
 	Emissivity       Emissivity
 	Limb             Limb
+
+	// GravRadiusCm (GM/c²) and DistanceCm are in cm, if mass and distance
+	// are given (else 0).
+	GravRadiusCm, DistanceCm float64
+	// PhotonRate is Ṅ, the line photons emitted per second, and
+	// PhotonNorm the factor that turns ε(r) × limb into the comoving
+	// photon number intensity (resolvePhotonRate in flux.go), when
+	// emission.line_luminosity_erg_s is given (else 0).
+	PhotonRate, PhotonNorm float64
 }
 
 // Limits on what one render may ask for.
@@ -487,6 +510,10 @@ func (s Scene) Resolve() (Resolved, error) {
 		const gmSunM, kpcM = 1476.6250385, 3.0856775814913673e19
 		rad := *h.MassSolar * gmSunM / (dkpc * kpcM)
 		r.MicroArcsecPerM = rad * 180 / math.Pi * 3600 * 1e6
+		r.GravRadiusCm, r.DistanceCm = *h.MassSolar*gmSunM*100, dkpc*kpcM*100
+	}
+	if err := s.checkSky(); err != nil {
+		return r, err
 	}
 	if inc := s.Observer.InclinationDeg; !(inc >= 0 && inc <= 180) {
 		return r, fieldErr("observer.inclination_deg", inc, "must be between 0 and 180 degrees")
@@ -575,6 +602,9 @@ func (s Scene) Resolve() (Resolved, error) {
 		return r, fieldErr("emission.limb", em.Limb, "must be one of %s", strings.Join(limbNames[Isotropic:], ", "))
 	}
 	r.Limb = Limb{Kind: lk}
+	if err := r.resolvePhotonRate(); err != nil {
+		return r, err
+	}
 	if r.Gas, err = NewGas(a); err != nil {
 		return r, fieldErr("black_hole.spin", a, "%v", err)
 	}

@@ -50,14 +50,22 @@ func redshiftBar(_ *pixels.Frame, sc Scales, p *figure.Panel) {
 
 func intensityBar(f *pixels.Frame, sc Scales, p *figure.Panel) {
 	bar := &figure.ColorBar{Colors: colormap.Sequential.Table(256), Label: "g³ ε(r) × limb  (relative)"}
+	// With mass, distance and luminosity the ticks are in photons
+	// cm⁻² s⁻¹ sr⁻¹ (scene.Resolved.IntensityPerUnit); the scale is the
+	// same, as positions are relative to IMax.
+	unit := 1.0
+	if u := f.Res.IntensityPerUnit(); u > 0 {
+		unit, bar.Label = u, "I [photons cm⁻² s⁻¹ sr⁻¹]"
+	}
+	hi := sc.IMax * unit
 	if f.Res.Output.IntensityScale == "linear" {
 		for i := 0; i <= 4; i++ {
-			bar.Ticks = append(bar.Ticks, figure.Tick{T: float64(i) / 4, Label: strconv.FormatFloat(sc.IMax*float64(i)/4, 'g', 3, 64)})
+			bar.Ticks = append(bar.Ticks, figure.Tick{T: float64(i) / 4, Label: strconv.FormatFloat(hi*float64(i)/4, 'g', 3, 64)})
 		}
 	} else {
-		lo := sc.IMax * math.Pow(10, -sc.IDecades)
-		for _, v := range decadeTicks(lo, sc.IMax) {
-			bar.Ticks = append(bar.Ticks, figure.Tick{T: colormap.Log(v, lo, sc.IMax), Label: strconv.FormatFloat(v, 'g', 2, 64)})
+		lo := hi * math.Pow(10, -sc.IDecades)
+		for _, v := range decadeTicks(lo, hi) {
+			bar.Ticks = append(bar.Ticks, figure.Tick{T: colormap.Log(v, lo, hi), Label: strconv.FormatFloat(v, 'g', 2, 64)})
 		}
 	}
 	p.Bar = bar

@@ -384,7 +384,7 @@ func drawImage(a Artifact, job Job, spec *pixels.Spectrum) (image.Image, error) 
 		if title == "" {
 			title = "line profile collapsed from the image"
 		}
-		img, err := figure.DrawPlot(SpectrumPlot(spec, title, f.Res.Caption(), job.Scales.FluxMax))
+		img, err := figure.DrawPlot(SpectrumPlot(spec, title, f.Res.Caption(), job.Scales.FluxMax, f.Res.SpectrumPerUnit()))
 		if err != nil {
 			return nil, fmt.Errorf("spectrum figure: %w", err)
 		}
@@ -405,7 +405,7 @@ func tableWriter(a Artifact, job Job, spec *pixels.Spectrum) func(io.Writer) err
 	case FITSMaps:
 		return func(w io.Writer) error { return writeFITS(w, f, job.Version) }
 	case SpectrumCSV:
-		return func(w io.Writer) error { return WriteCSV(w, spec, f.Res.Caption()) }
+		return func(w io.Writer) error { return WriteCSV(w, spec, f.Res.Caption(), f.Res) }
 	case Manifest:
 		return func(w io.Writer) error { return WriteManifest(w, f.Res.Scene, job.Version) }
 	case BandJSON, BandText, BandFITS:

@@ -73,7 +73,7 @@ func WriteBandText(w io.Writer, b pixels.BandReport) error {
 
 // writeBandFITS writes the band masks as FITS images (1 = in the band).
 func writeBandFITS(w io.Writer, f *pixels.Frame, b *Band, version string) error {
-	axes := fitsAxes(f)
+	axes, more := fitsWCS(f)
 	var ims []fits.Image
 	for ord, m := range b.Mask {
 		rows := fitsRows(f, func(k int) float32 {
@@ -82,7 +82,7 @@ func writeBandFITS(w io.Writer, f *pixels.Frame, b *Band, version string) error 
 			}
 			return 0
 		})
-		ims = append(ims, fits.Image{Name: fmt.Sprintf("BAND_ORD%d", ord), Width: f.W, Height: f.H, Rows: rows, Axes: axes,
+		ims = append(ims, fits.Image{Name: fmt.Sprintf("BAND_ORD%d", ord), Width: f.W, Height: f.H, Rows: rows, Axes: axes, WCS: more,
 			Cards: []fits.Card{{Key: "RBANDMIN", Value: b.Report.RMin, Comment: "band inner radius [M]"}, {Key: "RBANDMAX", Value: b.Report.RMax, Comment: "band outer radius [M]"},
 				{Key: "COMMENT", Value: fmt.Sprintf("1 = image order %d of this pixel comes from the band", ord)}}})
 	}

@@ -6,12 +6,19 @@ import (
 	"io"
 
 	"kerrscope/render/pixels"
+	"kerrscope/scene"
 )
+
+// PhysicalSpectrumUnits is the header text of a spectrum table whose flux
+// columns are physical (readers look for it).
+const PhysicalSpectrumUnits = "photons cm^-2 s^-1 keV^-1 at the observer (physical units)"
 
 // WriteCSV writes the spectrum: a commented header with units and
 // normalisation, then one row per bin: bin centre and edges in keV, total
-// flux density and one column per image order, all per keV.
-func WriteCSV(w io.Writer, s *pixels.Spectrum, title string) error {
+// flux density and one column per image order, all per keV. The flux is
+// in photons cm⁻² s⁻¹ keV⁻¹ when r gives mass, distance and line
+// luminosity (scene.Resolved.SpectrumPerUnit), else relative.
+func WriteCSV(w io.Writer, s *pixels.Spectrum, title string, r scene.Resolved) error {
 	bw := bufio.NewWriter(w)
 	fmt.Fprintf(bw, "# %s\n", title)
 	fmt.Fprintf(bw, "# line rest energy %g keV; %d bins of %g keV from %g to %g keV", s.LineKeV, s.Bins(), s.Width(), s.MinKeV, s.MaxKeV)
@@ -19,9 +26,19 @@ func WriteCSV(w io.Writer, s *pixels.Spectrum, title string) error {
 		fmt.Fprintf(bw, "; Gaussian instrument response FWHM %g eV", s.FWHMeV)
 	}
 	fmt.Fprintln(bw)
-	fmt.Fprintln(bw, "# flux columns: photon-number flux density per keV, sum over pixels of g^3 eps(r) limb(cos delta) dOmega / dE,")
-	fmt.Fprintln(bw, "#   dOmega = pixel area in M^2 for an observer at D = 1 M (scale by (M/D)^2); eps in the scene's emissivity units")
-	fmt.Fprintf(bw, "# flux outside the energy range: below %.10g, above %.10g (same units times keV)\n", s.Below, s.Above)
+	unit := 1.0
+	if u := r.SpectrumPerUnit(); u > 0 {
+		unit = u
+		fmt.Fprintln(bw, "# flux columns: "+PhysicalSpectrumUnits)
+		fmt.Fprintf(bw, "#   line luminosity %g erg/s, both faces, = %.10g photons/s; distance %.10g cm\n", *r.Emission.LineLuminosityErgS, r.PhotonRate, r.DistanceCm)
+	} else {
+		fmt.Fprintln(bw, "# flux columns (relative units): photon-number flux density per keV, sum over pixels of g^3 eps(r) limb(cos delta) dOmega / dE,")
+		fmt.Fprintln(bw, "#   dOmega = pixel area in M^2 for an observer at D = 1 M (scale by (M/D)^2); eps in the scene's emissivity units")
+	}
+	if sr := r.PixelSolidAngle(); sr > 0 {
+		fmt.Fprintf(bw, "# pixel solid angle %.10g sr\n", sr)
+	}
+	fmt.Fprintf(bw, "# flux outside the energy range: below %.10g, above %.10g (same units times keV)\n", s.Below*unit, s.Above*unit)
 	fmt.Fprint(bw, "energy_kev,energy_lo_kev,energy_hi_kev,flux_total")
 	for o := range s.Order {
 		fmt.Fprintf(bw, ",flux_order_%d", o)
@@ -31,9 +48,9 @@ func WriteCSV(w io.Writer, s *pixels.Spectrum, title string) error {
 	wd := s.Width()
 	for k := range tot {
 		lo := s.MinKeV + float64(k)*wd
-		fmt.Fprintf(bw, "%.8g,%.8g,%.8g,%.10g", lo+wd/2, lo, lo+wd, tot[k]/wd)
+		fmt.Fprintf(bw, "%.8g,%.8g,%.8g,%.10g", lo+wd/2, lo, lo+wd, tot[k]*unit/wd)
 		for o := range s.Order {
-			fmt.Fprintf(bw, ",%.10g", s.Order[o][k]/wd)
+			fmt.Fprintf(bw, ",%.10g", s.Order[o][k]*unit/wd)
 		}
 		fmt.Fprintln(bw)
 	}

@@ -10,8 +10,15 @@ import (
 )
 
 // SpectrumPlot returns the figure of the spectrum: total and per order,
-// per keV, with the rest energy marked.
-func SpectrumPlot(s *pixels.Spectrum, title, subtitle string, fluxMax float64) figure.Plot {
+// per keV, with the rest energy marked. perUnit > 0 (scene.Resolved.
+// SpectrumPerUnit) scales the flux to photons cm⁻² s⁻¹ keV⁻¹; 0 keeps it
+// relative. fluxMax, the top of the axis (0: from the data), is in the
+// units shown.
+func SpectrumPlot(s *pixels.Spectrum, title, subtitle string, fluxMax, perUnit float64) figure.Plot {
+	ylabel, unit := "photon flux density F_E [keV⁻¹, relative]", 1.0
+	if perUnit > 0 {
+		ylabel, unit = "photon flux density F_E [photons cm⁻² s⁻¹ keV⁻¹]", perUnit
+	}
 	w := s.Width()
 	x := make([]float64, s.Bins())
 	for k := range x {
@@ -20,14 +27,14 @@ func SpectrumPlot(s *pixels.Spectrum, title, subtitle string, fluxMax float64) f
 	perKeV := func(v []float64) []float64 {
 		out := make([]float64, len(v))
 		for k := range v {
-			out[k] = v[k] / w
+			out[k] = v[k] * unit / w
 		}
 		return out
 	}
 	p := figure.Plot{
 		Title: title, Subtitle: subtitle,
 		XLabel: "observed energy E [keV]",
-		YLabel: "photon flux density F_E [keV⁻¹, relative]",
+		YLabel: ylabel,
 		XMin:   s.MinKeV, XMax: s.MaxKeV, YMax: fluxMax,
 		Legend: true,
 		VLines: []figure.VLine{{X: s.LineKeV, Label: fmt.Sprintf("%g keV rest", s.LineKeV), Color: color.RGBA{0x60, 0x60, 0x60, 0xff}, Dashed: true}},

@@ -23,16 +23,16 @@ func timingImages(f *pixels.Frame, mk func(name, unit, comment string, rows func
 		im.Cards = append(im.Cards,
 			fits.Card{Key: "COMMENT", Value: "delay = t_obs - t_emit less r_o + 2 ln r_o, observer at r_o -> inf;"},
 			fits.Card{Key: "COMMENT", Value: "only differences of delays are physical"})
-		return im
+		return inMNote(f, im)
 	}
-	ims := []fits.Image{note(mk("DELAY", "M", "time delay t_obs - t_emit [M] of the first order seen", fitsRows(f, func(k int) float32 { return f.FirstSeenAt(f.T, k) })))}
+	ims := []fits.Image{note(mk("DELAY", "", "time delay t_obs - t_emit [M] of the first order seen", fitsRows(f, func(k int) float32 { return f.FirstSeenAt(f.T, k) })))}
 	for o := 0; o < f.Orders; o++ {
 		n := strconv.Itoa(o)
 		ims = append(ims,
-			note(mk("T_ORD"+n, "M", "time delay t_obs - t_emit [M] of image order "+n, fitsCopyRows(f, f.T[o]))),
+			note(mk("T_ORD"+n, "", "time delay t_obs - t_emit [M] of image order "+n, fitsCopyRows(f, f.T[o]))),
 			mk("PHI_ORD"+n, "rad", "azimuth phi_emit - phi_obs [rad] of image order "+n+" (not mod 2pi)", fitsCopyRows(f, f.Phi[o])))
 		if o > 0 {
-			ims = append(ims, mk("DT_ORD"+n, "M", "delay of order "+n+" behind order "+strconv.Itoa(o-1)+", same disk point", fitsCopyRows(f, f.SubimageDelay(o))))
+			ims = append(ims, inMNote(f, mk("DT_ORD"+n, "", "delay of order "+n+" behind order "+strconv.Itoa(o-1)+", same disk point", fitsCopyRows(f, f.SubimageDelay(o)))))
 		}
 	}
 	return ims

@@ -296,9 +296,12 @@ func (p *Plan) spectraPlots(sc maps.Scales) ([]namedPlot, error) {
 		xlo, xhi := math.Inf(1), math.Inf(-1)
 		for _, pt := range g {
 			name := p.framePrefix(pt.Index) + "-spectrum.csv"
-			e, lo, hi, flux, err := readSpectrum(filepath.Join(p.Dir(), name))
+			e, lo, hi, flux, physical, err := readSpectrum(filepath.Join(p.Dir(), name))
 			if err != nil {
 				return nil, fmt.Errorf("%s: %w", name, err)
+			}
+			if physical {
+				pl.YLabel = "photon flux density F_E [photons cm⁻² s⁻¹ keV⁻¹]"
 			}
 			xlo, xhi = math.Min(xlo, lo), math.Max(xhi, hi)
 			t := a.Position(pt.Values[0])
@@ -327,35 +330,35 @@ func axisKey(p *Plan, i int) string {
 }
 
 // readSpectrum reads a spectrum CSV written by outputs.WriteCSV:
-// bin centres, the lowest and highest bin edge, and the total flux
-// density per keV.
-func readSpectrum(path string) (e []float64, lo, hi float64, flux []float64, err error) {
-	f, err := os.Open(path)
+// bin centres, the lowest and highest bin edge, the total flux density
+// per keV, and whether it is in physical units (its header says so).
+func readSpectrum(path string) (e []float64, lo, hi float64, flux []float64, physical bool, err error) {
+	data, err := os.ReadFile(path)
 	if err != nil {
-		return nil, 0, 0, nil, err
+		return nil, 0, 0, nil, false, err
 	}
-	defer f.Close()
-	r := csv.NewReader(f)
+	physical = bytes.Contains(data, []byte(outputs.PhysicalSpectrumUnits))
+	r := csv.NewReader(bytes.NewReader(data))
 	r.Comment = '#'
 	rows, err := r.ReadAll()
 	if err != nil {
-		return nil, 0, 0, nil, err
+		return nil, 0, 0, nil, false, err
 	}
 	if len(rows) < 2 || len(rows[0]) < 4 || rows[0][0] != "energy_kev" || rows[0][1] != "energy_lo_kev" || rows[0][2] != "energy_hi_kev" || rows[0][3] != "flux_total" {
-		return nil, 0, 0, nil, errors.New("not a spectrum table (energy_kev, energy_lo_kev, energy_hi_kev, flux_total, ...)")
+		return nil, 0, 0, nil, false, errors.New("not a spectrum table (energy_kev, energy_lo_kev, energy_hi_kev, flux_total, ...)")
 	}
 	lo, hi = math.Inf(1), math.Inf(-1)
 	for i, row := range rows[1:] {
 		var v [4]float64
 		for c := range v {
 			if v[c], err = strconv.ParseFloat(row[c], 64); err != nil {
-				return nil, 0, 0, nil, fmt.Errorf("row %d: %w", i+1, err)
+				return nil, 0, 0, nil, false, fmt.Errorf("row %d: %w", i+1, err)
 			}
 		}
 		e, flux = append(e, v[0]), append(flux, v[3])
 		lo, hi = math.Min(lo, v[1]), math.Max(hi, v[2])
 	}
-	return e, lo, hi, flux, nil
+	return e, lo, hi, flux, physical, nil
 }
 
 // writeTable writes sweep-frames.csv: frame number, file prefix and the

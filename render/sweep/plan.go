@@ -233,9 +233,15 @@ func (p *Plan) chooseScales(ctx context.Context) (maps.Scales, error) {
 				imax = x
 			}
 		}
+		// The spectrum's axis is in the units its figure shows: photons
+		// cm⁻² s⁻¹ keV⁻¹ when the scene is physical, else relative.
+		unit := r.SpectrumPerUnit()
+		if unit == 0 {
+			unit = 1
+		}
 		spec := f.Spectrum()
 		for _, v := range spec.Total() {
-			fmax = math.Max(fmax, v/spec.Width())
+			fmax = math.Max(fmax, v*unit/spec.Width())
 		}
 	}
 	if sc.GMin == 0 {

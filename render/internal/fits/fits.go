@@ -18,7 +18,11 @@
 //     with NaN marking undefined pixels;
 //   - sec. 7.1: IMAGE extensions (PCOUNT = 0, GCOUNT = 1);
 //   - sec. 8: linear world coordinates via CTYPEi, CUNITi, CRPIXj, CRVALi and
-//     CDELTi (Greisen & Calabretta 2002, A&A 395, 1061).
+//     CDELTi, with the linear transformation matrix PCi_j (Greisen &
+//     Calabretta 2002, A&A 395, 1061), RADESYS for celestial axes
+//     (Calabretta & Greisen 2002, A&A 395, 1077) and alternate axis
+//     descriptions, every keyword suffixed with a letter A–Z, named by
+//     WCSNAMEa (sec. 8.2.1).
 //
 // Encode writes a primary HDU without data (NAXIS = 0, EXTEND = T) followed by
 // one IMAGE extension per image. It validates all input before writing a
@@ -87,9 +91,31 @@ type Image struct {
 	// (j+1)*Width] would hold; j = 0 is the bottom row. It is called once
 	// per row, in increasing j, so an image never needs a copy of its own
 	// in memory.
-	Rows  func(j int, row []float32)
-	Axes  [2]Axis // WCS of axis 1 (x) and axis 2 (y); both Type "" = no WCS
-	Cards []Card  // extra cards, written after the structural and WCS ones
+	Rows func(j int, row []float32)
+	Axes [2]Axis // WCS of axis 1 (x) and axis 2 (y); both Type "" = no WCS
+	// WCS holds further world coordinate descriptions, written after
+	// Axes: at most one primary (Key 0), only when Axes is unset, and
+	// alternates with distinct keys.
+	WCS   []WCS
+	Cards []Card // extra cards, written after the structural and WCS ones
+}
+
+// WCS is one world coordinate description of an image (Standard 4.0,
+// sec. 8): intermediate world coordinates x_i = Delta_i Σ_j PC_ij
+// (p_j − RefPixel_j), then world = RefValue + x for linear axes, or the
+// projection its CTYPEs name (e.g. "RA---TAN", "DEC--TAN": Calabretta &
+// Greisen 2002). Every keyword of an alternate description ends in its Key
+// (sec. 8.2.1: CTYPE1A, PC1_2A, ...).
+type WCS struct {
+	Key  byte    // 0: the primary description; 'A'–'Z': an alternate one
+	Name string  // WCSNAMEa; "" = omit
+	Axes [2]Axis // both must have a Type
+	// PC is the matrix PCi_j, PC[i-1][j-1]; nil = the unit matrix (not
+	// written). It must be invertible.
+	PC *[2][2]float64
+	// RefSystem is RADESYSa, the celestial reference frame (e.g. "ICRS");
+	// "" = omit.
+	RefSystem string
 }
 
 // Encode writes a complete FITS file to w: a primary HDU (NAXIS = 0,
@@ -213,8 +239,27 @@ func imageHeader(im *Image) ([]byte, error) {
 	if im.Unit != "" {
 		h.add("BUNIT", im.Unit, "unit of the pixel values")
 	}
-	if err := addWCS(h, im.Axes); err != nil {
+	if err := addWCS(h, WCS{Axes: im.Axes}, true); err != nil {
 		return nil, err
+	}
+	keys := map[byte]bool{}
+	if im.Axes[0].Type != "" || im.Axes[1].Type != "" {
+		keys[0] = true
+	}
+	for _, w := range im.WCS {
+		if w.Key != 0 && (w.Key < 'A' || w.Key > 'Z') {
+			return nil, fmt.Errorf("WCS key %q: want 0 (primary) or a letter A-Z", w.Key)
+		}
+		if keys[w.Key] {
+			if w.Key == 0 {
+				return nil, errors.New("primary WCS given twice (Axes and WCS)")
+			}
+			return nil, fmt.Errorf("WCS %c given twice", w.Key)
+		}
+		keys[w.Key] = true
+		if err := addWCS(h, w, false); err != nil {
+			return nil, err
+		}
 	}
 	if err := h.addUser(im.Cards); err != nil {
 		return nil, err
@@ -222,46 +267,77 @@ func imageHeader(im *Image) ([]byte, error) {
 	return h.finish()
 }
 
-// addWCS appends the linear WCS keywords of Standard 4.0, sec. 8.2. Either
-// both axes have a Type or neither does.
-func addWCS(h *header, axes [2]Axis) error {
-	if axes[0].Type == "" && axes[1].Type == "" {
+// addWCS appends the WCS keywords of Standard 4.0, sec. 8.2, of one
+// description (suffixed with its Key if it is an alternate). Either both
+// axes have a Type or neither does; with optional set, neither means no
+// description at all.
+func addWCS(h *header, w WCS, optional bool) error {
+	if optional && w.Axes[0].Type == "" && w.Axes[1].Type == "" {
 		return nil
 	}
-	for i, a := range axes {
+	suffix, what := "", "WCS"
+	if w.Key != 0 {
+		suffix = string(w.Key)
+		what = "WCS " + suffix
+	}
+	for i, a := range w.Axes {
 		n := i + 1
 		if a.Type == "" {
-			return fmt.Errorf("WCS axis %d has no Type while axis %d has one", n, 3-n)
+			return fmt.Errorf("%s axis %d has no Type while axis %d has one", what, n, 3-n)
 		}
 		for _, v := range [...]struct {
 			name string
 			x    float64
 		}{{"RefPixel", a.RefPixel}, {"RefValue", a.RefValue}, {"Delta", a.Delta}} {
 			if math.IsNaN(v.x) || math.IsInf(v.x, 0) {
-				return fmt.Errorf("WCS axis %d: %s = %v is not finite", n, v.name, v.x)
+				return fmt.Errorf("%s axis %d: %s = %v is not finite", what, n, v.name, v.x)
 			}
 		}
 		if a.Delta == 0 {
 			// Greisen & Calabretta (2002), sec. 2.1.2: CDELTi shall not be zero.
-			return fmt.Errorf("WCS axis %d: Delta must not be zero", n)
+			return fmt.Errorf("%s axis %d: Delta must not be zero", what, n)
 		}
 	}
-	for i, a := range axes {
-		h.add(fmt.Sprintf("CTYPE%d", i+1), a.Type, fmt.Sprintf("axis %d coordinate type", i+1))
+	if m := w.PC; m != nil {
+		for _, v := range [...]float64{m[0][0], m[0][1], m[1][0], m[1][1]} {
+			if math.IsNaN(v) || math.IsInf(v, 0) {
+				return fmt.Errorf("%s: PC matrix element %v is not finite", what, v)
+			}
+		}
+		// Greisen & Calabretta (2002), sec. 2.1.2: PCi_j must be invertible.
+		if det := m[0][0]*m[1][1] - m[0][1]*m[1][0]; !(math.Abs(det) > 0) {
+			return fmt.Errorf("%s: PC matrix is singular", what)
+		}
 	}
-	for i, a := range axes {
+	if w.Name != "" {
+		h.add("WCSNAME"+suffix, w.Name, "name of this coordinate description")
+	}
+	for i, a := range w.Axes {
+		h.add(fmt.Sprintf("CTYPE%d%s", i+1, suffix), a.Type, fmt.Sprintf("axis %d coordinate type", i+1))
+	}
+	for i, a := range w.Axes {
 		if a.Unit != "" {
-			h.add(fmt.Sprintf("CUNIT%d", i+1), a.Unit, fmt.Sprintf("axis %d unit", i+1))
+			h.add(fmt.Sprintf("CUNIT%d%s", i+1, suffix), a.Unit, fmt.Sprintf("axis %d unit", i+1))
 		}
 	}
-	for i, a := range axes {
-		h.add(fmt.Sprintf("CRPIX%d", i+1), a.RefPixel, "reference pixel (1-based)")
+	for i, a := range w.Axes {
+		h.add(fmt.Sprintf("CRPIX%d%s", i+1, suffix), a.RefPixel, "reference pixel (1-based)")
 	}
-	for i, a := range axes {
-		h.add(fmt.Sprintf("CRVAL%d", i+1), a.RefValue, "world value at reference pixel")
+	for i, a := range w.Axes {
+		h.add(fmt.Sprintf("CRVAL%d%s", i+1, suffix), a.RefValue, "world value at reference pixel")
 	}
-	for i, a := range axes {
-		h.add(fmt.Sprintf("CDELT%d", i+1), a.Delta, "world increment per pixel")
+	for i, a := range w.Axes {
+		h.add(fmt.Sprintf("CDELT%d%s", i+1, suffix), a.Delta, "world increment per pixel")
+	}
+	if m := w.PC; m != nil {
+		for i := range 2 {
+			for j := range 2 {
+				h.add(fmt.Sprintf("PC%d_%d%s", i+1, j+1, suffix), m[i][j], "linear transformation matrix")
+			}
+		}
+	}
+	if w.RefSystem != "" {
+		h.add("RADESYS"+suffix, w.RefSystem, "celestial reference frame")
 	}
 	return h.err
 }

@@ -602,6 +602,18 @@ func TestValidationErrors(t *testing.T) {
 		{"reserved BUNIT", nil, withCard(Card{Key: "BUNIT", Value: "K"}), `"BUNIT"`},
 		{"reserved CTYPE1", nil, withCard(Card{Key: "CTYPE1", Value: "X"}), `"CTYPE1"`},
 		{"reserved CDELT2", nil, withCard(Card{Key: "CDELT2", Value: 1.0}), `"CDELT2"`},
+		// sec. 8.2: the WCS keywords of every description are the encoder's.
+		{"reserved CTYPE1A", nil, withCard(Card{Key: "CTYPE1A", Value: "X"}), `"CTYPE1A"`},
+		{"reserved PC1_2", nil, withCard(Card{Key: "PC1_2", Value: 0.5}), `"PC1_2"`},
+		{"reserved CD2_1B", nil, withCard(Card{Key: "CD2_1B", Value: 0.5}), `"CD2_1B"`},
+		{"reserved RADESYS", nil, withCard(Card{Key: "RADESYS", Value: "FK5"}), `"RADESYS"`},
+		{"reserved WCSNAMEA", nil, withCard(Card{Key: "WCSNAMEA", Value: "x"}), `"WCSNAMEA"`},
+		{"primary twice", nil, withImage(func(im *Image) { im.Axes = wcs; im.WCS = []WCS{{Axes: wcs}} }), "primary WCS given twice"},
+		{"alternate twice", nil, withImage(func(im *Image) { im.WCS = []WCS{{Key: 'A', Axes: wcs}, {Key: 'A', Axes: wcs}} }), "WCS A given twice"},
+		{"lower-case alternate", nil, withImage(func(im *Image) { im.WCS = []WCS{{Key: 'a', Axes: wcs}} }), "A-Z"},
+		{"alternate without axes", nil, withImage(func(im *Image) { im.WCS = []WCS{{Key: 'B'}} }), "WCS B axis 1 has no Type"},
+		{"singular PC", nil, withImage(func(im *Image) { im.WCS = []WCS{{Axes: wcs, PC: &[2][2]float64{{1, 2}, {2, 4}}}} }), "singular"},
+		{"NaN PC", nil, withImage(func(im *Image) { im.WCS = []WCS{{Axes: wcs, PC: &[2][2]float64{{1, math.NaN()}, {0, 1}}}} }), "not finite"},
 		{"duplicate key", []Card{{Key: "A", Value: 1}, {Key: "A", Value: 2}}, nil, `"A"`},
 		// Supported value types.
 		{"float32 value", []Card{{Key: "F", Value: float32(1)}}, nil, `"F"`},

@@ -86,7 +86,9 @@ func (h *header) finish() ([]byte, error) {
 // the mandatory keywords of sec. 4.4.1 and 7.1.1, END, EXTEND, keywords that
 // change the meaning of the data array (BSCALE, BZERO, BLANK; sec. 4.4.2.5),
 // CONTINUE (long strings are not written), and the keywords Encode derives
-// from Image fields (EXTNAME, BUNIT and the WCS keywords of axes 1 and 2).
+// from Image fields (EXTNAME, BUNIT and the WCS keywords of axes 1 and 2,
+// primary or alternate: CTYPE, CUNIT, CRPIX, CRVAL, CDELT, PCi_j, CDi_j,
+// WCSNAME, RADESYS, WCSAXES, each optionally suffixed with A–Z).
 func reserved(key string) bool {
 	switch key {
 	case "SIMPLE", "BITPIX", "NAXIS", "EXTEND", "XTENSION", "PCOUNT", "GCOUNT", "END",
@@ -96,8 +98,24 @@ func reserved(key string) bool {
 	if rest, ok := strings.CutPrefix(key, "NAXIS"); ok && isDigits(rest) {
 		return true
 	}
-	for _, p := range [...]string{"CTYPE", "CUNIT", "CRPIX", "CRVAL", "CDELT"} {
-		if rest, ok := strings.CutPrefix(key, p); ok && (rest == "1" || rest == "2") {
+	// Drop an alternate-description letter (sec. 8.2.1).
+	base := key
+	if n := len(key); n > 1 && key[n-1] >= 'A' && key[n-1] <= 'Z' {
+		base = key[:n-1]
+	}
+	for _, k := range [...]string{key, base} {
+		for _, p := range [...]string{"CTYPE", "CUNIT", "CRPIX", "CRVAL", "CDELT"} {
+			if rest, ok := strings.CutPrefix(k, p); ok && (rest == "1" || rest == "2") {
+				return true
+			}
+		}
+		for _, p := range [...]string{"PC", "CD"} {
+			if rest, ok := strings.CutPrefix(k, p); ok && len(rest) == 3 && rest[1] == '_' && strings.ContainsRune("12", rune(rest[0])) && strings.ContainsRune("12", rune(rest[2])) {
+				return true
+			}
+		}
+		switch k {
+		case "WCSNAME", "RADESYS", "WCSAXES":
 			return true
 		}
 	}
