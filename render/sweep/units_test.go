@@ -22,7 +22,7 @@ func TestReadSpectrumUnits(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	mass, dist, lum := 4e6, 8.0, 1e35
+	mass, dist, lum := 3.1e7, 8.0, 1e35
 	s.Hole.MassSolar, s.Hole.DistanceKpc, s.Emission.LineLuminosityErgS = &mass, &dist, &lum
 	phys, err := s.Resolve()
 	if err != nil {
