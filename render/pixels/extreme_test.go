@@ -96,11 +96,15 @@ func TestNearHorizonEmissionOnVerticalPiece(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			f, err := Render(context.Background(), r, nil)
+			r.BandMin, r.BandMax = r.ISCO, 1+2*(r.ISCO-1)
+			f, err := Render(context.Background(), r, nil, KeepAll|KeepBand)
 			if err != nil {
 				t.Fatal(err)
 			}
-			rep, _ := f.LocateBand(r.ISCO, 1+2*(r.ISCO-1))
+			rep, err := f.LocateBand()
+			if err != nil {
+				t.Fatal(err)
+			}
 			n := 0
 			for _, c := range rep.Pixels {
 				n += c
