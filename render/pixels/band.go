@@ -142,6 +142,15 @@ func (b bandRange) holds(r float32) bool {
 	return float64(r) >= b.rmin && float64(r) <= b.rmax
 }
 
+// splits reports whether a cell whose corners see radii rmin … rmax may
+// hold a boundary of the band: some corners in it and some not, or the
+// band between them.
+func (b bandRange) splits(rmin, rmax float64) bool {
+	in := rmax >= b.rmin && rmin <= b.rmax // the corner range meets the band
+	all := rmin >= b.rmin && rmax <= b.rmax
+	return in && !all
+}
+
 // tallyCentre adds the one-photon-per-pixel sample s of pixel (i, j) to
 // the tally and stores its band fractions (0 or 1).
 func (f *Frame) tallyCentre(i, j int, s *Sample, t *bandTally) {

@@ -13,6 +13,9 @@ import (
 // its four corners; a cell whose corner samples differ in fate or image
 // order, or whose source radius or redshift differ by more than the
 // tolerances, is split into four, recursively, down to Depth levels.
+// When a band of source radii is measured (KeepBand), a cell is also split
+// where its corners differ in lying in the band, or where the band lies
+// between their radii.
 type Refinement struct {
 	Depth int     // subdivision levels below the pixel (0: corners only)
 	TolR  float64 // relative spread of r that splits a cell
@@ -86,6 +89,9 @@ func (rf *refiner) agree(c *[4]point) bool {
 			}
 		}
 		if s && (rmax > rmin*(1+rf.ref.TolR) || gmax-gmin > rf.ref.TolG) {
+			return false
+		}
+		if s && rf.band != nil && rf.band.splits(rmin, rmax) {
 			return false
 		}
 	}
