@@ -100,7 +100,7 @@ func checkScene(path, dir string, keys map[string]bool) error {
 	}
 	ctx, cancel := context.WithTimeout(context.Background(), fuzzTimeout)
 	defer cancel()
-	fr, err := pixels.RenderScene(ctx, r, nil)
+	fr, err := pixels.RenderScene(ctx, r, nil, pixels.KeepAll|pixels.KeepBand)
 	if err != nil {
 		return fmt.Errorf("render of an accepted scene: %v", err)
 	}
@@ -227,6 +227,9 @@ var hostileScenes = []string{
 
 // bandOf locates the scene's band in the frame, for the band artifacts.
 func bandOf(f *pixels.Frame) *outputs.Band {
-	rep, mask := f.LocateBand(f.Res.BandMin, f.Res.BandMax)
-	return &outputs.Band{Report: rep, Mask: mask}
+	rep, err := f.LocateBand()
+	if err != nil {
+		return nil
+	}
+	return &outputs.Band{Report: rep, Mask: f.Band}
 }

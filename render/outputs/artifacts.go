@@ -125,11 +125,11 @@ type Job struct {
 	Spectrum *pixels.Spectrum
 }
 
-// Band is a located band of source radii: the report and its mask per
-// image order.
+// Band is a located band of source radii: the report and, per image
+// order, the fraction of each pixel's area in the band (pixels.Frame.Band).
 type Band struct {
 	Report pixels.BandReport
-	Mask   [][]bool
+	Mask   [][]float32
 }
 
 // Put stores one file, produced by write; Outputs.Write is one.
@@ -137,8 +137,8 @@ type Put func(name string, write func(io.Writer) error) error
 
 // Needs returns the per-order records (pixels.Keep) a frame must hold for
 // Write to make arts: all of them for FITS, g and the line intensity for
-// the spectrum, r, g and the line intensity for the band, and what each
-// map reads (maps.Map.Needs).
+// the spectrum, the band's records (KeepBand) and g for the band, and
+// what each map reads (maps.Map.Needs).
 func Needs(arts []Artifact) pixels.Keep {
 	var k pixels.Keep
 	for _, a := range arts {
@@ -152,7 +152,7 @@ func Needs(arts []Artifact) pixels.Keep {
 				k |= m.Needs()
 			}
 		case BandJSON, BandText, BandFITS, BandBare, BandFigure, BandRedshift:
-			k |= pixels.KeepR | pixels.KeepG | pixels.KeepLine
+			k |= pixels.KeepBand | pixels.KeepG
 		}
 	}
 	return k
@@ -358,7 +358,7 @@ func keepNames(k pixels.Keep) string {
 	for _, c := range [...]struct {
 		k    pixels.Keep
 		name string
-	}{{pixels.KeepR, "R"}, {pixels.KeepG, "G"}, {pixels.KeepLine, "Line"}, {pixels.KeepBol, "Bol"}} {
+	}{{pixels.KeepR, "R"}, {pixels.KeepG, "G"}, {pixels.KeepLine, "Line"}, {pixels.KeepBol, "Bol"}, {pixels.KeepBand, "Band"}} {
 		if k&c.k != 0 {
 			out = append(out, c.name)
 		}

@@ -40,29 +40,54 @@ func (e *errWriter) Write(p []byte) (int, error) {
 	return n, err
 }
 
-// WriteBandText writes the band report for people.
+// WriteBandText writes the band report for people: the window's line
+// flux, the band's share, and a table of each image order's escaping and
+// captured sides (area, flux, screen box, g range).
 func WriteBandText(w io.Writer, b pixels.BandReport) error {
 	ew := &errWriter{w: w}
 	num := func(p *float64) string {
 		if p == nil {
 			return "—"
 		}
-		return strconv.FormatFloat(*p, 'g', 10, 64)
+		return strconv.FormatFloat(*p, 'g', 7, 64)
+	}
+	rng := func(lo, hi *float64) string {
+		if lo == nil {
+			return "—"
+		}
+		return num(lo) + " … " + num(hi)
 	}
 	fmt.Fprintf(ew, "source radii %.10g … %.10g M   (spin a = %g, inclination %g°)\n", b.RMin, b.RMax, b.Spin, b.InclinationDeg)
-	fmt.Fprintf(ew, "fraction of the window's line flux from the band: %.6g\n", b.FluxFractionAll)
-	tw := tabwriter.NewWriter(ew, 0, 0, 3, ' ', 0)
-	fmt.Fprintln(tw, "  order\tpixels\tflux fraction")
-	for o := range b.Pixels {
-		fmt.Fprintf(tw, "  %d\t%d\t%.6g\n", o, b.Pixels[o], b.FluxFraction[o])
+	fmt.Fprintf(ew, "window line flux %.6g (Σ g³ε L ΔΩ, M² of screen at D = 1 M, as the spectrum)\n", b.WindowFlux)
+	fmt.Fprintf(ew, "fraction of the window's line flux from the band: %.6g  (flux %.6g, area %.6g M²)\n", b.FluxFractionAll, b.Flux, b.Area)
+	tw := tabwriter.NewWriter(ew, 0, 0, 2, ' ', 0)
+	fmt.Fprintln(tw, "  order\tside\tpixels\tarea M²\tflux\tflux fraction\tα M\tβ M\tg")
+	for _, o := range b.Orders {
+		for _, sd := range []struct {
+			name string
+			s    pixels.BandSide
+		}{{"escaping", o.Escaping}, {"captured", o.Captured}} {
+			px := ""
+			if sd.name == "escaping" {
+				px = strconv.Itoa(o.Pixels)
+			}
+			if sd.s.AlphaMin == nil {
+				fmt.Fprintf(tw, "  %d\t%s\t%s\t0\t0\t0\t—\t—\t—\n", o.Order, sd.name, px)
+				continue
+			}
+			fmt.Fprintf(tw, "  %d\t%s\t%s\t%.4g\t%.4g\t%.4g\t%s\t%s\t%s\n", o.Order, sd.name, px, sd.s.Area, sd.s.Flux, sd.s.FluxFraction,
+				rng(sd.s.AlphaMin, sd.s.AlphaMax), rng(sd.s.BetaMin, sd.s.BetaMax), rng(sd.s.GMin, sd.s.GMax))
+		}
 	}
 	if err := tw.Flush(); err != nil {
 		return err
 	}
-	fmt.Fprintf(ew, "screen box: α %s … %s M, β %s … %s M\n", num(b.AlphaMin), num(b.AlphaMax), num(b.BetaMin), num(b.BetaMax))
-	fmt.Fprintf(ew, "redshift factor g: %s … %s\n", num(b.GMin), num(b.GMax))
+	fmt.Fprintln(ew, "  (escaping: photons from infinity, outside the shadow edge; captured: from the horizon, inside it;")
+	fmt.Fprintln(ew, "   pixels: pixels of the order with any area in the band)")
+	fmt.Fprintf(ew, "screen box: α %s M, β %s M\n", rng(b.AlphaMin, b.AlphaMax), rng(b.BetaMin, b.BetaMax))
+	fmt.Fprintf(ew, "redshift factor g: %s\n", rng(b.GMin, b.GMax))
 	if b.ExtremalAlpha != nil {
-		fmt.Fprintf(ew, "distance from the critical curve: mean %s M, max %s M (its vertical piece tends to α = %s M as a → 1)\n",
+		fmt.Fprintf(ew, "distance of the band's pixels from the critical curve: mean %s M, max %s M (its vertical piece tends to α = %s M as a → 1)\n",
 			num(b.CriticalDistanceMean), num(b.CriticalDistanceMax), num(b.ExtremalAlpha))
 	}
 	if b.Photons > 0 {
@@ -71,20 +96,16 @@ func WriteBandText(w io.Writer, b pixels.BandReport) error {
 	return ew.err
 }
 
-// writeBandFITS writes the band masks as FITS images (1 = in the band).
+// writeBandFITS writes the band masks as FITS images: per image order, the
+// fraction of each pixel's area whose crossing lies in the band.
 func writeBandFITS(w io.Writer, f *pixels.Frame, b *Band, version string) error {
 	axes, more := fitsWCS(f)
 	var ims []fits.Image
 	for ord, m := range b.Mask {
-		rows := fitsRows(f, func(k int) float32 {
-			if m[k] {
-				return 1
-			}
-			return 0
-		})
+		rows := fitsRows(f, func(k int) float32 { return m[k] })
 		ims = append(ims, fits.Image{Name: fmt.Sprintf("BAND_ORD%d", ord), Width: f.W, Height: f.H, Rows: rows, Axes: axes, WCS: more,
 			Cards: []fits.Card{{Key: "RBANDMIN", Value: b.Report.RMin, Comment: "band inner radius [M]"}, {Key: "RBANDMAX", Value: b.Report.RMax, Comment: "band outer radius [M]"},
-				{Key: "COMMENT", Value: fmt.Sprintf("1 = image order %d of this pixel comes from the band", ord)}}})
+				{Key: "COMMENT", Value: fmt.Sprintf("fraction 0-1 of the pixel area whose image order %d comes from the band", ord)}}})
 	}
 	return fits.Encode(w, fitsHeader(f, version), ims)
 }
@@ -132,15 +153,24 @@ func bandImage(k Kind, f *pixels.Frame, b *Band) (image.Image, error) {
 	return figure.DrawPanel(p, 0)
 }
 
-// bandRedshift colours the pixels whose light comes from the band by the
-// g of the lowest such image order; the rest is light grey.
-func bandRedshift(f *pixels.Frame, mask [][]bool, sc maps.Scales) *image.RGBA {
+// bandShade mixes c into the light grey of other light by the pixel's
+// area fraction in the band; any area at all shows at least faintly.
+func bandShade(c color.RGBA, frac float32) color.RGBA {
+	t := 0.3 + 0.7*math.Min(1, float64(frac))
+	mix := func(a, b uint8) uint8 { return uint8(math.Round(float64(a)*(1-t) + float64(b)*t)) }
+	return color.RGBA{mix(bandOther.R, c.R), mix(bandOther.G, c.G), mix(bandOther.B, c.B), 0xff}
+}
+
+// bandRedshift colours the pixels with area in the band by the g of the
+// lowest such image order (the pixel's mean g of that order), shaded by
+// the area fraction; the rest is light grey.
+func bandRedshift(f *pixels.Frame, mask [][]float32, sc maps.Scales) *image.RGBA {
 	img := image.NewRGBA(image.Rect(0, 0, f.W, f.H))
 	for k := range f.Fate {
 		c := bandOther
 		for ord := range mask {
-			if mask[ord][k] {
-				c = colormap.Redshift.At(sc.GPosition(float64(f.G[ord][k])))
+			if v := mask[ord][k]; v > 0 {
+				c = bandShade(colormap.Redshift.At(sc.GPosition(float64(f.G[ord][k]))), v)
 				break
 			}
 		}
@@ -149,9 +179,10 @@ func bandRedshift(f *pixels.Frame, mask [][]bool, sc maps.Scales) *image.RGBA {
 	return img
 }
 
-// bandOrders colours each pixel by the lowest image order that comes from
-// the band; other pixels are light, captured ones dark.
-func bandOrders(f *pixels.Frame, mask [][]bool) *image.RGBA {
+// bandOrders colours each pixel by the lowest image order with area in
+// the band, shaded by that area fraction; other pixels are light,
+// captured ones dark.
+func bandOrders(f *pixels.Frame, mask [][]float32) *image.RGBA {
 	img := image.NewRGBA(image.Rect(0, 0, f.W, f.H))
 	for k := range f.Fate {
 		c := bandOther
@@ -159,8 +190,8 @@ func bandOrders(f *pixels.Frame, mask [][]bool) *image.RGBA {
 			c = colormap.Shadow
 		}
 		for ord := range mask {
-			if mask[ord][k] {
-				c = colormap.Order(ord)
+			if v := mask[ord][k]; v > 0 {
+				c = bandShade(colormap.Order(ord), v)
 				break
 			}
 		}

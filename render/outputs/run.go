@@ -65,9 +65,12 @@ func Run(ctx context.Context, r scene.Resolved, opt Options) (Summary, error) {
 	sum := Summary{Photons: f.Photons}
 	job := Job{Frame: f, Scales: opt.Scales, Version: opt.Version, Spectrum: spec}
 	if opt.Band {
-		rep, mask := f.LocateBand(r.BandMin, r.BandMax)
+		rep, err := f.LocateBand()
+		if err != nil {
+			return Summary{}, err
+		}
 		sum.Band = &rep
-		job.Band = &Band{Report: rep, Mask: mask}
+		job.Band = &Band{Report: rep, Mask: f.Band}
 	}
 	if err := Write(ctx, arts, job, out.Write); err != nil {
 		out.Abort()

@@ -252,3 +252,50 @@ func TestZoomWindow(t *testing.T) {
 		t.Fatal(err)
 	}
 }
+
+func TestBandReportFiles(t *testing.T) {
+	// band.json names every side of every order with its units, and
+	// agrees with the report Run returns; the text report has its table.
+	dir := t.TempDir()
+	r := resolve(t, func(s *scene.Scene) {
+		s.Output.Directory = dir
+		s.Refine.Depth = 2
+		s.Disk.Opaque = false
+		s.Band.RMin, s.Band.RMax = "horizon", "isco*1.5"
+	})
+	sum, err := Run(context.Background(), r, Options{Version: "test", Band: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	raw, err := os.ReadFile(filepath.Join(dir, "band.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var m struct {
+		WindowFlux float64 `json:"window_line_flux"`
+		Area       float64 `json:"area_m2"`
+		Orders     []struct {
+			Order              int
+			Escaping, Captured map[string]*float64
+		} `json:"orders"`
+	}
+	if err := json.Unmarshal(raw, &m); err != nil {
+		t.Fatal(err)
+	}
+	if len(m.Orders) != r.Disk.Orders || m.WindowFlux != sum.Band.WindowFlux || m.Area != sum.Band.Area || m.Area <= 0 {
+		t.Fatalf("band.json: %s", raw)
+	}
+	for _, o := range m.Orders {
+		for _, side := range []map[string]*float64{o.Escaping, o.Captured} {
+			for _, k := range []string{"area_m2", "flux", "flux_fraction", "alpha_min", "alpha_max", "beta_min", "beta_max", "g_min", "g_max"} {
+				if _, ok := side[k]; !ok {
+					t.Errorf("order %d: no %q in %v", o.Order, k, side)
+				}
+			}
+		}
+	}
+	var b bytes.Buffer
+	if err := WriteBandText(&b, *sum.Band); err != nil || !bytes.Contains(b.Bytes(), []byte("captured")) || !bytes.Contains(b.Bytes(), []byte("escaping")) {
+		t.Errorf("band.txt: %v\n%s", err, b.String())
+	}
+}

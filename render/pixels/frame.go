@@ -24,11 +24,19 @@ type Frame struct {
 	// T and Phi are the time delay (M, regularised as in raytrace.Timing)
 	// and azimuth φ − φ_o (radians) per order; nil unless Model.Timing.
 	T, Phi [][]float32
-	// R, G, Line and Bol are nil when the render did not keep them (Keep).
+	// Band is, per order, the fraction of each pixel's area whose seen
+	// crossing of that order lies in the scene's band of source radii
+	// [BandMin, BandMax] (0 … 1; with refinement, summed over the
+	// samples' cells); nil unless the render kept KeepBand.
+	Band [][]float32
+	// R, G, Line, Bol and Band are nil when the render did not keep them (Keep).
 	// Photons is the number of photons traced to make the frame.
 	Photons int64
 	// refined is the spectrum collapsed from the refined samples, if any.
 	refined *Spectrum
+	// band is the band Band holds, bandSums its samples (LocateBand).
+	band     bandRange
+	bandSums *bandTally
 }
 
 // PixelAlpha returns α of the centre of column i.
@@ -42,7 +50,7 @@ func PixelBeta(r scene.Resolved, j int) float64 {
 }
 
 // Keep is a set of the per-order records of a frame (Frame.R, G, Line,
-// Bol). Each costs 4 bytes per pixel and image order; Fate and First,
+// Bol, Band). Each costs 4 bytes per pixel and image order; Fate and First,
 // 2 bytes per pixel, are always kept.
 type Keep uint8
 
@@ -51,7 +59,11 @@ const (
 	KeepG                     // redshift factor (maps: redshift; spectrum; FITS; bands)
 	KeepLine                  // line intensity (maps: intensity; spectrum; FITS; bands)
 	KeepBol                   // bolometric intensity (FITS)
-	KeepAll  = KeepR | KeepG | KeepLine | KeepBol
+	// KeepBand: the area of each pixel in the scene's band of source radii
+	// (Frame.Band) and the band's sums (Frame.LocateBand), gathered from the
+	// samples while rendering. Not in KeepAll: only the band outputs ask.
+	KeepBand
+	KeepAll = KeepR | KeepG | KeepLine | KeepBol
 )
 
 // keepTiming marks the timing records, kept whenever the model traces
@@ -64,7 +76,7 @@ func keepOf(keep []Keep) Keep {
 	if len(keep) == 0 {
 		return KeepAll
 	}
-	return keep[0] & KeepAll
+	return keep[0] & (KeepAll | KeepBand)
 }
 
 // BytesPerPixel is the memory of the records a frame with these records
@@ -72,7 +84,7 @@ func keepOf(keep []Keep) Keep {
 // kept record and order.
 func (k Keep) BytesPerPixel(orders int) int64 {
 	n := int64(0)
-	for b := k & KeepAll; b != 0; b &= b - 1 {
+	for b := k & (KeepAll | KeepBand); b != 0; b &= b - 1 {
 		n++
 	}
 	return 2 + 4*n*int64(orders)
@@ -83,7 +95,7 @@ func (f *Frame) Has(k Keep) bool {
 	for _, c := range [...]struct {
 		k Keep
 		q [][]float32
-	}{{KeepR, f.R}, {KeepG, f.G}, {KeepLine, f.Line}, {KeepBol, f.Bol}} {
+	}{{KeepR, f.R}, {KeepG, f.G}, {KeepLine, f.Line}, {KeepBol, f.Bol}, {KeepBand, f.Band}} {
 		if k&c.k != 0 && c.q == nil {
 			return false
 		}
@@ -117,6 +129,10 @@ func Render(ctx context.Context, r scene.Resolved, progress func(rows int), keep
 	}
 	w, h, n := r.Screen.Width, r.Screen.Height, r.Disk.Orders
 	f := newFrame(r, m, keepOf(keep))
+	var rowBand []bandTally
+	if f.Band != nil {
+		rowBand = make([]bandTally, h)
+	}
 	finished := workers.Counter(progress)
 	parallel(ctx, h, n, func(j int, p *raytrace.Path, s *Sample) {
 		beta := PixelBeta(r, j)
@@ -131,11 +147,17 @@ func Render(ctx context.Context, r scene.Resolved, progress func(rows int), keep
 				m.Shade(PixelAlpha(r, i), beta, p, s)
 			}
 			f.store(j*w+i, s)
+			if rowBand != nil {
+				f.tallyCentre(i, j, s, &rowBand[j])
+			}
 		}
 		finished()
 	})
 	if err := ctx.Err(); err != nil {
 		return nil, err
+	}
+	for j := range rowBand {
+		f.bandSums.merge(&rowBand[j])
 	}
 	f.Photons = int64(w) * int64(h)
 	return f, nil
@@ -157,6 +179,9 @@ func newFrame(r scene.Resolved, m Model, keep Keep) *Frame {
 		return out
 	}
 	f.R, f.G, f.Line, f.Bol = alloc(KeepR), alloc(KeepG), alloc(KeepLine), alloc(KeepBol)
+	if f.Band = alloc(KeepBand); f.Band != nil {
+		f.band, f.bandSums = bandRange{r.BandMin, r.BandMax}, &bandTally{}
+	}
 	if m.Timing {
 		f.T, f.Phi = alloc(keepTiming), alloc(keepTiming)
 	}

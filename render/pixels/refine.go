@@ -13,6 +13,9 @@ import (
 // its four corners; a cell whose corner samples differ in fate or image
 // order, or whose source radius or redshift differ by more than the
 // tolerances, is split into four, recursively, down to Depth levels.
+// When a band of source radii is measured (KeepBand), a cell is also split
+// where its corners differ in lying in the band, or where the band lies
+// between their radii.
 type Refinement struct {
 	Depth int     // subdivision levels below the pixel (0: corners only)
 	TolR  float64 // relative spread of r that splits a cell
@@ -37,14 +40,19 @@ type pixelAcc struct {
 	firstArea      [scene.MaxOrders + 1]float64 // index first+1
 	w, r, g        [scene.MaxOrders]float64
 	line, bol      [scene.MaxOrders]float64
+	// With a band (refiner.band): the area whose crossing of each order
+	// lies in it, and the row's tally of those samples.
+	band  [scene.MaxOrders]float64
+	tally *bandTally
 }
 
 type refiner struct {
 	m       *Model
 	res     scene.Resolved
 	ref     Refinement
-	a0, b0  float64 // α of the left edge, β of the top edge
-	h       float64 // pixel size
+	a0, b0  float64    // α of the left edge, β of the top edge
+	h       float64    // pixel size
+	band    *bandRange // band of source radii to tally in the leaves, if any
 	photons atomic.Int64
 }
 
@@ -83,6 +91,9 @@ func (rf *refiner) agree(c *[4]point) bool {
 		if s && (rmax > rmin*(1+rf.ref.TolR) || gmax-gmin > rf.ref.TolG) {
 			return false
 		}
+		if s && rf.band != nil && rf.band.splits(rmin, rmax) {
+			return false
+		}
 	}
 	return true
 }
@@ -91,7 +102,7 @@ func (rf *refiner) agree(c *[4]point) bool {
 // (x, y) and corners c = top-left, top-right, bottom-left, bottom-right.
 func (rf *refiner) cell(x, y, size float64, c [4]point, depth int, p *raytrace.Path, s *Sample, acc *pixelAcc, spec *Spectrum) {
 	if depth >= rf.ref.Depth || rf.agree(&c) {
-		rf.leaf(size*size, &c, acc, spec)
+		rf.leaf(x, y, size, &c, acc, spec)
 		return
 	}
 	hs := size / 2
@@ -106,11 +117,14 @@ func (rf *refiner) cell(x, y, size float64, c [4]point, depth int, p *raytrace.P
 	rf.cell(x+hs, y+hs, hs, [4]point{mid, right, bottom, c[3]}, depth+1, p, s, acc, spec)
 }
 
-// leaf adds a final cell of the given area (in pixel units): each corner
-// stands for a quarter of it. Where all four corners see an order, its
-// flux goes into the spectrum spread over the cell's bilinear g range;
-// otherwise each corner's quarter goes in at its own g.
-func (rf *refiner) leaf(area float64, c *[4]point, acc *pixelAcc, spec *Spectrum) {
+// leaf adds the final cell of side size (pixels) with top-left corner
+// (x, y): each corner stands for the quarter of it that it touches. Where
+// all four corners see an order, its flux goes into the spectrum spread
+// over the cell's bilinear g range; otherwise each corner's quarter goes
+// in at its own g. With a band, each quarter whose crossing lies in it
+// counts, with its area, flux, box and g, for the band.
+func (rf *refiner) leaf(x, y, size float64, c *[4]point, acc *pixelAcc, spec *Spectrum) {
+	area := size * size
 	w := area / 4
 	acc.area += area
 	dOmega := area * rf.h * rf.h
@@ -136,6 +150,15 @@ func (rf *refiner) leaf(area float64, c *[4]point, acc *pixelAcc, spec *Spectrum
 			acc.bol[o] += w * float64(hh.bol)
 			line += float64(hh.line)
 			g += float64(hh.g)
+			if rf.band != nil {
+				acc.tally.total += w * float64(hh.line)
+				if rf.band.holds(hh.r) {
+					acc.band[o] += w
+					qx, qy := x+float64(k&1)*size/2, y+float64(k>>1)*size/2
+					a0, b1 := rf.a0+qx*rf.h, rf.b0-qy*rf.h
+					acc.tally.add(o, c[k].fate, w, float64(hh.line), float64(hh.g), a0, a0+size/2*rf.h, b1-size/2*rf.h, b1)
+				}
+			}
 		}
 		if spec == nil || n == 0 {
 			continue
@@ -182,6 +205,9 @@ func renderRefined(ctx context.Context, r scene.Resolved, ref Refinement, keep K
 	var f *Frame
 	if keepMaps {
 		f = newFrame(r, m, keep)
+		if f.Band != nil {
+			rf.band = &f.band
+		}
 	}
 	const chunk = 32
 	corners := make([][]point, chunk+1)
@@ -189,6 +215,7 @@ func renderRefined(ctx context.Context, r scene.Resolved, ref Refinement, keep K
 		corners[i] = make([]point, w+1)
 	}
 	rowCaptured := make([]float64, chunk)
+	rowBand := make([]bandTally, chunk)
 	rowSpec := make([]Spectrum, chunk)
 	for i := range rowSpec {
 		rowSpec[i] = NewSpectrum(r.MinKeV, r.MaxKeV, r.Emission.LineKeV, r.Spectrum.Bins, n)
@@ -216,8 +243,9 @@ func renderRefined(ctx context.Context, r scene.Resolved, ref Refinement, keep K
 			}
 			spec.Below, spec.Above = 0, 0
 			rowCaptured[i] = 0
+			rowBand[i] = bandTally{}
 			for x := 0; x < w; x++ {
-				var acc pixelAcc
+				acc := pixelAcc{tally: &rowBand[i]}
 				c := [4]point{corners[i][x], corners[i][x+1], corners[i+1][x], corners[i+1][x+1]}
 				rf.cell(float64(x), float64(j), 1, c, 0, p, s, &acc, spec)
 				rowCaptured[i] += acc.captured
@@ -232,6 +260,9 @@ func renderRefined(ctx context.Context, r scene.Resolved, ref Refinement, keep K
 		for i := 0; i < rows; i++ {
 			total.Merge(&rowSpec[i])
 			captured += rowCaptured[i]
+			if rf.band != nil {
+				f.bandSums.merge(&rowBand[i])
+			}
 		}
 		if progress != nil {
 			progress(j0 + rows)
@@ -260,6 +291,11 @@ func (f *Frame) storeAcc(k int, a *pixelAcc) {
 		}
 	}
 	f.First[k] = int8(best)
+	if f.Band != nil {
+		for o := 0; o < f.Orders; o++ {
+			f.Band[o][k] = float32(a.band[o] / a.area)
+		}
+	}
 	for o := 0; o < f.Orders; o++ {
 		if a.w[o] == 0 {
 			f.put(o, k, nan, nan, nan, nan)
