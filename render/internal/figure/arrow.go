@@ -50,7 +50,7 @@ func drawArrow(dc *gg.Context, st *styles, a Arrow, win [4]float64, toFig func(x
 	hx, hy := toFig(a.Points[n-1][0], a.Points[n-1][1])
 	// The head's direction: from the last point at least a head length
 	// back along the line (a curve's last segment may be very short).
-	size := math.Max(3.5*w, 0.55*st.em)
+	size := math.Max(5*w, 0.8*st.em)
 	tx, ty := hx, hy
 	for i := n - 2; i >= 0; i-- {
 		tx, ty = toFig(a.Points[i][0], a.Points[i][1])
@@ -65,8 +65,8 @@ func drawArrow(dc *gg.Context, st *styles, a Arrow, win [4]float64, toFig func(x
 		s := size + grow
 		bx, by := hx-ux*s, hy-uy*s
 		dc.MoveTo(hx+ux*grow, hy+uy*grow)
-		dc.LineTo(bx-uy*0.45*s, by+ux*0.45*s)
-		dc.LineTo(bx+uy*0.45*s, by-ux*0.45*s)
+		dc.LineTo(bx-uy*0.4*s, by+ux*0.4*s)
+		dc.LineTo(bx+uy*0.4*s, by-ux*0.4*s)
 		dc.ClosePath()
 		dc.Fill()
 	}
