@@ -39,6 +39,8 @@ type RingWidth struct {
 	// PixelSize is the frame's pixel size in M, the resolution of the
 	// measurement.
 	PixelSize float64
+	// Pixels is the number of pixels that hold the order's light.
+	Pixels int
 }
 
 // RingWidths measures the ring of every image order n = 1 … Orders−1 of
@@ -54,6 +56,11 @@ func RingWidths(f *pixels.Frame) []RingWidth {
 	var out []RingWidth
 	for o := 1; o < f.Orders; o++ {
 		rw := RingWidth{Order: o, PixelSize: f.Res.PixelSize}
+		for k := 0; k < f.W*f.H; k++ {
+			if !math.IsNaN(float64(f.OrderLine(o, k))) {
+				rw.Pixels++
+			}
+		}
 		var w []float64
 		for d := 0; d < RingDirections; d++ {
 			if x, ok := ringExtent(f, o, ca, cb, 360*float64(d)/RingDirections); ok {
@@ -106,20 +113,33 @@ func ringExtent(f *pixels.Frame, o int, ca, cb, dirDeg float64) (float64, bool) 
 	return last - first + step, true
 }
 
-// Caption describes the ring: its median width and range in M, and in µas
-// when microArcsecPerM > 0 (the scene's angular scale), with a warning
-// when the ring is narrower than two pixels.
-func (w RingWidth) Caption(microArcsecPerM float64) string {
-	if w.Directions == 0 {
-		return "ring width not measured (no ring that ends inside the window)"
+// Caption describes the ring: its median width and range in M over the
+// directions measured, in µas too when microArcsecPerM > 0 (the scene's
+// angular scale), and a warning when the ring is narrower than two
+// pixels.
+func (w RingWidth) Caption(microArcsecPerM float64) string { return w.label(microArcsecPerM, true) }
+
+// label is Caption, with or without the number of directions (the
+// panels leave it out).
+func (w RingWidth) label(microArcsecPerM float64, directions bool) string {
+	switch {
+	case w.Pixels == 0:
+		return "no pixel holds this order's light: the ring is narrower than the pixels"
+	case w.Directions == 0 && directions:
+		return "ring width not measured: no direction shows the whole ring (cut by the window, or broken between the pixels)"
+	case w.Directions == 0:
+		return "ring width not measured (cut by the window, or broken)"
 	}
 	g := func(x float64) string { return strconv.FormatFloat(x, 'g', 3, 64) }
-	s := fmt.Sprintf("ring width %s M (%s–%s M over %d directions)", g(w.Median), g(w.Min), g(w.Max), w.Directions)
+	s := fmt.Sprintf("ring width %s M (%s–%s)", g(w.Median), g(w.Min), g(w.Max))
+	if directions {
+		s += fmt.Sprintf(" over %d directions", w.Directions)
+	}
 	if microArcsecPerM > 0 {
 		s += fmt.Sprintf(", %s µas", g(w.Median*microArcsecPerM))
 	}
 	if w.Median < 2*w.PixelSize {
-		s += "; under 2 pixels: not resolved"
+		s += ": under 2 pixels, not resolved"
 	}
 	return s
 }
@@ -157,16 +177,19 @@ func ringsGrid(m Map, f *pixels.Frame, sc Scales) (image.Image, error) {
 		p.Title = fmt.Sprintf("image order n = %d", o)
 		p.Subtitle = "the direct image"
 		if o > 0 {
-			p.Subtitle = widths[o-1].Caption(f.Res.MicroArcsecPerM)
+			p.Subtitle = widths[o-1].label(f.Res.MicroArcsecPerM, false)
 		}
-		intensityBar(f, osc, &p)
+		if imax > 0 {
+			intensityBar(f, osc, &p)
+		}
 		panels[o] = p
 	}
 	return figure.DrawGrid(m.Title, f.Res.Caption(), panels, min(f.Orders, 4), 0)
 }
 
 // orderImage is the image of order o's own line intensity (OrderLine) on a
-// scale up to its own maximum, which it returns.
+// scale up to its own maximum, which it returns (0: the order has no
+// light in the window).
 func orderImage(f *pixels.Frame, o int, sc Scales) (*image.RGBA, float64) {
 	imax := 0.0
 	for k := 0; k < f.W*f.H; k++ {
@@ -174,11 +197,11 @@ func orderImage(f *pixels.Frame, o int, sc Scales) (*image.RGBA, float64) {
 			imax = x
 		}
 	}
-	if !(imax > 0) {
-		imax = 1
-	}
 	osc := sc
 	osc.IMax = imax
+	if !(imax > 0) {
+		osc.IMax = 1 // no pixel is on the scale
+	}
 	pos := intensityPosition(f, osc)
 	img := image.NewRGBA(image.Rect(0, 0, f.W, f.H))
 	for k := 0; k < f.W*f.H; k++ {

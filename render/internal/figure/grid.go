@@ -15,7 +15,7 @@ import (
 // DrawPanel with the same magnification scale (≤ 0: one that makes each
 // map 300–450 pixels across) and keeps its own axes, title lines and
 // colour bar; every cell of the grid is as large as the largest panel,
-// which sits in the cell's top left corner.
+// and each panel sits at the top of its cell, centred across it.
 func DrawGrid(title, subtitle string, panels []Panel, cols int, scale float64) (*image.RGBA, error) {
 	if len(panels) == 0 {
 		return nil, errors.New("figure: grid has no panels")
@@ -68,7 +68,7 @@ func DrawGrid(title, subtitle string, panels []Panel, cols int, scale float64) (
 	dc.Clear()
 	x0 := (fw - cols*cw) / 2
 	for i, img := range imgs {
-		at := image.Pt(x0+(i%cols)*cw, int(titleH)+(i/cols)*ch)
+		at := image.Pt(x0+(i%cols)*cw+(cw-img.Bounds().Dx())/2, int(titleH)+(i/cols)*ch)
 		draw.Draw(out, img.Bounds().Add(at), img, image.Point{}, draw.Src)
 	}
 	drawTitle(dc, st, title, subtitle, float64(fw)/2, st.pad)
