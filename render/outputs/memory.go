@@ -38,8 +38,11 @@ const (
 	memRingsOrder = 4
 	// memRingsPanel is one panel of the rings figure, drawn with maps
 	// 300–450 pixels across (figure.DrawGrid): its canvas and its copy
-	// in the grid.
-	memRingsPanel = 2 << 20
+	// in the grid; memRingsFigure is what the rings figure adds once
+	// (fonts and rasteriser buffers of its smaller canvases, in place of
+	// memFigures when it is the only figure).
+	memRingsPanel  = 2 << 20
+	memRingsFigure = 6 << 20
 )
 
 // MemoryEstimate returns the expected peak resident memory, in bytes, of
@@ -55,7 +58,8 @@ const (
 //   - with refinement, the corner samples of refineChunk + 1 rows;
 //   - when images are drawn: one reused map image per drawing worker, the
 //     radius contour field, the encoded PNGs, and the figure canvases;
-//   - for the rings figure, one image and one panel per order;
+//   - for the rings figure, one image and one panel per order and its
+//     fonts and buffers;
 //   - the spectra (bins × orders float64, three copies).
 //
 // FITS and CSV are streamed row by row and add nothing that grows with
@@ -87,7 +91,7 @@ func MemoryEstimate(r scene.Resolved, s Set, workers int) int64 {
 		case BandBare, BandFigure, BandRedshift:
 			drawn["band"] = true
 		}
-		if a.Kind == MapFigure || a.Kind == SpectrumFigure || a.Kind == BandFigure || a.Kind == BandRedshift {
+		if (a.Kind == MapFigure && a.Map != "rings") || a.Kind == SpectrumFigure || a.Kind == BandFigure || a.Kind == BandRedshift {
 			figures = true
 		}
 	}
@@ -101,7 +105,7 @@ func MemoryEstimate(r scene.Resolved, s Set, workers int) int64 {
 		b += memFigures
 	}
 	if rings {
-		b += n * (px*memRingsOrder + memRingsPanel)
+		b += memRingsFigure + n*(px*memRingsOrder+memRingsPanel)
 	}
 	return b
 }
