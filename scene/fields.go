@@ -157,5 +157,6 @@ func Fields() []Field {
 		{Flag: "maps", Key: "output.maps", Usage: "comma-separated maps: " + strings.Join(MapNames, ","), set: list(func(s *Scene) *[]string { return &s.Output.Maps })},
 		{Flag: "formats", Key: "output.formats", Usage: "comma-separated outputs: png (figures), bare (pixel-exact PNG), fits, csv (spectrum)", set: list(func(s *Scene) *[]string { return &s.Output.Formats })},
 		{Flag: "intensity-scale", Key: "output.intensity_scale", Usage: "intensity map scale: log or linear", set: text(func(s *Scene) *string { return &s.Output.IntensityScale })},
+		{Flag: "orientation-marks", Key: "output.orientation_marks", Usage: "draw the projected spin axis and the disk's orbital direction on every map figure", Bool: true, set: boolean(func(s *Scene) *bool { return &s.Output.OrientationMarks }, true)},
 	}
 }

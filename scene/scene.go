@@ -130,11 +130,14 @@ type Output struct {
 	Maps           []string `toml:"maps"`
 	Formats        []string `toml:"formats"`
 	IntensityScale string   `toml:"intensity_scale"` // log or linear
+	// OrientationMarks: draw the projected spin axis and the direction
+	// of the disk's orbit on every map figure.
+	OrientationMarks bool `toml:"orientation_marks"`
 }
 
 // Map names and format names accepted in Output.
 var (
-	MapNames    = []string{"redshift", "intensity", "radius", "order", "shadow", "delay"}
+	MapNames    = []string{"redshift", "intensity", "radius", "order", "shadow", "delay", "rings"}
 	FormatNames = []string{"png", "bare", "fits", "csv"}
 	// defaultMaps are the maps rendered when the scene names none: all
 	// but delay, which doubles the cost of every photon (time delays).

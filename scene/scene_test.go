@@ -33,6 +33,7 @@ func TestParseErrorsNameKeyAndLine(t *testing.T) {
 		{"[screen]\nwidth = 2.5\n", `scene.toml:2: key "screen.width": wrong type`},
 		{"[disk]\nopaque = 1\n", `scene.toml:2: key "disk.opaque": wrong type`},
 		{"[output]\nmaps = \"redshift\"\n", `scene.toml:2: key "output.maps": wrong type`},
+		{"[output]\norientation_marks = \"yes\"\n", `scene.toml:2: key "output.orientation_marks": wrong type`},
 		{"\n\n[observer]\ninclination_deg = \n", `scene.toml:4:`},
 		{"[nowhere]\nx = 1\n", `key "nowhere": unknown key (valid keys: [black_hole], [observer], [screen]`},
 	}
@@ -138,12 +139,12 @@ func TestFieldsSet(t *testing.T) {
 		t.Fatalf("no flag %s", flag)
 		return nil
 	}
-	for _, c := range [][2]string{{"spin", "0.95"}, {"inclination", "75"}, {"transparent", "true"}, {"maps", "redshift, order"}, {"inner", "4"}, {"width", "100"}} {
+	for _, c := range [][2]string{{"spin", "0.95"}, {"inclination", "75"}, {"transparent", "true"}, {"maps", "redshift, order"}, {"inner", "4"}, {"width", "100"}, {"orientation-marks", "true"}} {
 		if err := set(c[0], c[1]); err != nil {
 			t.Fatalf("%v: %v", c, err)
 		}
 	}
-	if s.Hole.Spin != 0.95 || s.Observer.InclinationDeg != 75 || s.Disk.Opaque || len(s.Output.Maps) != 2 || *s.Disk.InnerRadius != 4 || s.Screen.Width != 100 {
+	if s.Hole.Spin != 0.95 || s.Observer.InclinationDeg != 75 || s.Disk.Opaque || len(s.Output.Maps) != 2 || *s.Disk.InnerRadius != 4 || s.Screen.Width != 100 || !s.Output.OrientationMarks {
 		t.Errorf("flags not applied: %+v", s)
 	}
 	for _, c := range [][2]string{{"spin", "fast"}, {"spin", "NaN"}, {"width", "1.5"}, {"transparent", "maybe"}} {

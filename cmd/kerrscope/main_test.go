@@ -237,3 +237,23 @@ func TestVersionFlags(t *testing.T) {
 		}
 	}
 }
+
+// TestRenderPrintsRingWidths checks that render prints the width of every
+// photon ring n ≥ 1 when the rings map is drawn, with µas when the scene
+// gives mass and distance, and nothing of the kind otherwise.
+func TestRenderPrintsRingWidths(t *testing.T) {
+	dir := t.TempDir()
+	code, out, errs := runCLI("render", "--out", dir, "--width", "80", "--height", "80", "--fov", "16", "--maps", "rings",
+		"--formats", "png", "--mass", "4e6", "--distance-kpc", "8", "--orientation-marks", "--quiet")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	for _, want := range []string{"photon ring n = 1: ring width ", "photon ring n = 2: ", " µas", "rings.png"} {
+		if !strings.Contains(out, want) {
+			t.Errorf("render output lacks %q:\n%s", want, out)
+		}
+	}
+	if _, out, _ := runCLI("render", "--out", t.TempDir(), "--width", "40", "--height", "40", "--maps", "order", "--formats", "png", "--quiet"); strings.Contains(out, "photon ring") {
+		t.Errorf("ring widths printed without the rings map:\n%s", out)
+	}
+}

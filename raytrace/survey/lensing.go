@@ -74,7 +74,11 @@ func LensingBands(o raytrace.Observer, ca, cb, dirDeg float64, maxOrder int) []L
 			for crossings(o, ca, cb, ux, uy, rc+sign*step, need, &p) >= need {
 				in = step
 				step *= 2
-				if step > rc {
+				// Inward the band may reach the centre; outward it
+				// ends within a few rc (the last crossing runs out
+				// to infinity there) unless the direction misses
+				// the hole's lensing altogether.
+				if (sign < 0 && step > rc) || step > 1e3*rc {
 					return rc + sign*step
 				}
 			}
@@ -119,12 +123,8 @@ type LensingReport struct {
 // It stops between directions once ctx is cancelled and returns
 // context.Cause(ctx).
 func Lensing(ctx context.Context, o raytrace.Observer, directionsDeg []float64, maxOrder int) (LensingReport, error) {
-	amin, amax, bmin, bmax := math.Inf(1), math.Inf(-1), math.Inf(1), math.Inf(-1)
-	for _, p := range o.CriticalCurve(400) {
-		amin, amax = math.Min(amin, p.Alpha), math.Max(amax, p.Alpha)
-		bmin, bmax = math.Min(bmin, p.Beta), math.Max(bmax, p.Beta)
-	}
-	rep := LensingReport{CenterAlpha: (amin + amax) / 2, CenterBeta: (bmin + bmax) / 2,
+	ca, cb := ShadowCenter(o)
+	rep := LensingReport{CenterAlpha: ca, CenterBeta: cb,
 		InclinationDeg: o.InclinationDeg(), Spin: o.Spin()}
 	for _, d := range directionsDeg {
 		if ctx.Err() != nil {
@@ -133,6 +133,18 @@ func Lensing(ctx context.Context, o raytrace.Observer, directionsDeg []float64, 
 		rep.Bands = append(rep.Bands, LensingBands(o, rep.CenterAlpha, rep.CenterBeta, d, maxOrder)...)
 	}
 	return rep, nil
+}
+
+// ShadowCenter returns the middle of the bounding box of the observer's
+// critical curve (Bardeen 1973), a point inside the shadow from which the
+// lensing bands and photon rings are measured.
+func ShadowCenter(o raytrace.Observer) (alpha, beta float64) {
+	amin, amax, bmin, bmax := math.Inf(1), math.Inf(-1), math.Inf(1), math.Inf(-1)
+	for _, p := range o.CriticalCurve(400) {
+		amin, amax = math.Min(amin, p.Alpha), math.Max(amax, p.Alpha)
+		bmin, bmax = math.Min(bmin, p.Beta), math.Max(bmax, p.Beta)
+	}
+	return (amin + amax) / 2, (bmin + bmax) / 2
 }
 
 // WriteJSON writes the report as one JSON object and a newline.

@@ -66,3 +66,33 @@ func TestLensingReport(t *testing.T) {
 	checkWriteErrors(t, "lensing text", rep.WriteText)
 	checkWriteErrors(t, "lensing JSON", rep.WriteJSON)
 }
+
+// TestLensingBandEdges checks each band edge by its definition: just
+// inside it the photon crosses the plane at least Order+1 times, just
+// outside it fewer times. The directions include the wide n = 1 band
+// below the shadow of a fast-spinning hole seen at 60°, which ends more
+// than one critical-curve radius beyond the curve.
+func TestLensingBandEdges(t *testing.T) {
+	o, err := raytrace.NewObserver(0.9, 60)
+	if err != nil {
+		t.Fatal(err)
+	}
+	ca, cb := ShadowCenter(o)
+	var p raytrace.Path
+	for dir := 0.0; dir < 360; dir += 30 {
+		s, c := math.Sincos(dir * math.Pi / 180)
+		count := func(rho float64, max int) int { return crossings(o, ca, cb, c, s, rho, max, &p) }
+		for _, b := range LensingBands(o, ca, cb, dir, 2) {
+			need := b.Order + 1
+			for _, e := range []struct {
+				name      string
+				edge, out float64 // the edge and the way out of the band
+			}{{"inner", b.Inner, -1}, {"outer", b.Outer, 1}} {
+				d := 1e-9 * e.edge
+				if in, out := count(e.edge-e.out*d, need), count(e.edge+e.out*d, need); in < need || out >= need {
+					t.Errorf("dir %v band %d %s edge %v: %d crossings inside, %d outside; want ≥ %d and < %d", dir, b.Order, e.name, e.edge, in, out, need, need)
+				}
+			}
+		}
+	}
+}

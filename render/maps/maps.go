@@ -1,5 +1,5 @@
 // Package maps is the table of the renderer's maps: for each map (redshift,
-// intensity, radius, order, shadow, delay) the quantity it shows, how a pixel is
+// intensity, radius, order, shadow, delay, rings) the quantity it shows, how a pixel is
 // placed on its colour scale, its colours, its 8-bit palette, and its
 // decorated figure (title, colour bar, contours, overlays). Adding a map is
 // adding one entry to the table in this file (and its name to
@@ -58,6 +58,9 @@ type Map struct {
 	// decorate adds the colour bar and any contours, overlays and legend
 	// to the map's figure.
 	decorate func(f *pixels.Frame, sc Scales, p *figure.Panel)
+	// grid, if not nil, draws the map's figure instead of one decorated
+	// panel (Figure).
+	grid func(m Map, f *pixels.Frame, sc Scales) (image.Image, error)
 }
 
 // table lists every map, in the order of scene.MapNames.
@@ -99,6 +102,13 @@ var table = []Map{
 		scale:    &onScaleMap{value: delayRow, position: delayPosition},
 		palette:  scalePalette(colormap.Sequential),
 		decorate: delayBar,
+	},
+	{
+		Name: "rings", Title: "every image order on its own (transparent-disk view)", needs: pixels.KeepLine | pixels.KeepBehind,
+		pixel:    ringsPixel,
+		palette:  orderPalette,
+		decorate: ringsBar,
+		grid:     ringsGrid,
 	},
 }
 

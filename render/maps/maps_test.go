@@ -2,6 +2,7 @@ package maps
 
 import (
 	"context"
+	"image"
 	"math"
 	"slices"
 	"testing"
@@ -104,7 +105,7 @@ func TestGPositionerEqualsGPosition(t *testing.T) {
 
 // A map reads only the records it says it needs: from a frame that keeps
 // only those, its image and figure are the same as from a frame that
-// keeps every record.
+// keeps every record (with the crossings an opaque disk hides).
 func TestMapNeedsAreEnough(t *testing.T) {
 	s := scene.Default()
 	s.Screen.Width, s.Screen.Height = 40, 36
@@ -112,7 +113,7 @@ func TestMapNeedsAreEnough(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	full, err := pixels.Render(context.Background(), r, nil)
+	full, err := pixels.Render(context.Background(), r, nil, pixels.KeepAll|pixels.KeepBehind)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -138,6 +139,17 @@ func TestMapNeedsAreEnough(t *testing.T) {
 		}
 		if !slices.Equal(a.Pix, b.Pix) {
 			t.Errorf("%s: figures differ", name)
+		}
+		fa, err := m.Figure(full, Scales{}, m.Image(full, Scales{}))
+		if err != nil {
+			t.Fatal(err)
+		}
+		fb, err := m.Figure(part, Scales{}, m.Image(part, Scales{}))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !slices.Equal(fa.(*image.RGBA).Pix, fb.(*image.RGBA).Pix) {
+			t.Errorf("%s: drawn figures differ", name)
 		}
 	}
 }

@@ -24,6 +24,25 @@ func (m Map) Panel(f *pixels.Frame, sc Scales) figure.Panel {
 // Image with the same scales or another image of the frame's window.
 func (m Map) Decorate(f *pixels.Frame, sc Scales, img image.Image) figure.Panel {
 	sc = sc.Fill(f)
+	p := m.frame(f, img)
+	m.decorate(f, sc, &p)
+	return p
+}
+
+// Figure draws the map's decorated figure: its Decorate panel around img
+// (the map's own Image with the same scales), or for a map of one panel
+// per image order (rings) the grid of those panels.
+func (m Map) Figure(f *pixels.Frame, sc Scales, img image.Image) (image.Image, error) {
+	if m.grid != nil {
+		return m.grid(m, f, sc.Fill(f))
+	}
+	return figure.DrawPanel(m.Decorate(f, sc, img), 0)
+}
+
+// frame is the undecorated figure of img: axes in M (and µas when the
+// scene gives mass and distance), the map's title, the scene's caption
+// and, when the scene asks for them, the orientation marks.
+func (m Map) frame(f *pixels.Frame, img image.Image) figure.Panel {
 	a0, a1, b0, b1 := f.Window()
 	p := figure.Panel{
 		Image:    img,
@@ -36,7 +55,9 @@ func (m Map) Decorate(f *pixels.Frame, sc Scales, img image.Image) figure.Panel 
 		p.X.Secondary = &figure.SecondaryScale{Factor: u, Label: "α [µas]"}
 		p.Y.Secondary = &figure.SecondaryScale{Factor: u, Label: "β [µas]"}
 	}
-	m.decorate(f, sc, &p)
+	if f.Res.Output.OrientationMarks {
+		p.Arrows = OrientationMarks(f)
+	}
 	return p
 }
 

@@ -344,7 +344,7 @@ func mapImages(arts []Artifact, idx []int, job Job, s *scratch, encode func(int,
 			encode(i, img, nil)
 			continue
 		}
-		fig, err := figure.DrawPanel(m.Decorate(f, job.Scales, img), 0)
+		fig, err := m.Figure(f, job.Scales, img)
 		if err != nil {
 			err = fmt.Errorf("%s figure: %w", a.Map, err)
 		}
@@ -358,7 +358,7 @@ func keepNames(k pixels.Keep) string {
 	for _, c := range [...]struct {
 		k    pixels.Keep
 		name string
-	}{{pixels.KeepR, "R"}, {pixels.KeepG, "G"}, {pixels.KeepLine, "Line"}, {pixels.KeepBol, "Bol"}, {pixels.KeepBand, "Band"}} {
+	}{{pixels.KeepR, "R"}, {pixels.KeepG, "G"}, {pixels.KeepLine, "Line"}, {pixels.KeepBol, "Bol"}, {pixels.KeepBand, "Band"}, {pixels.KeepBehind, "Behind"}} {
 		if k&c.k != 0 {
 			out = append(out, c.name)
 		}

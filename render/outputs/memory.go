@@ -3,6 +3,7 @@ package outputs
 import (
 	"math/bits"
 
+	"kerrscope/render/pixels"
 	"kerrscope/scene"
 )
 
@@ -32,6 +33,16 @@ const (
 	// refineChunk is the number of pixel rows refined at once.
 	refinePointBytes = 4 + 20*scene.MaxOrders
 	refineChunk      = 32
+	// memRingsOrder is the rings figure's image of one order (RGBA,
+	// bytes per pixel); all orders are held until the grid is drawn.
+	memRingsOrder = 4
+	// memRingsPanel is one panel of the rings figure, drawn with maps
+	// 300–450 pixels across (figure.DrawGrid): its canvas and its copy
+	// in the grid; memRingsFigure is what the rings figure adds once
+	// (fonts and rasteriser buffers of its smaller canvases, in place of
+	// memFigures when it is the only figure).
+	memRingsPanel  = 2 << 20
+	memRingsFigure = 6 << 20
 )
 
 // MemoryEstimate returns the expected peak resident memory, in bytes, of
@@ -40,12 +51,15 @@ const (
 //
 //   - the program (memBase);
 //   - the records the artifacts need (Needs): 2 bytes per pixel for the
-//     fate and first order, 4 per kept record, image order and pixel, and
+//     fate and first order, 4 per kept record, image order and pixel
+//     (the hidden crossings of KeepBehind only on an opaque disk), and
 //     8 more per order and pixel for the time delays and azimuths of a
 //     delay map;
 //   - with refinement, the corner samples of refineChunk + 1 rows;
 //   - when images are drawn: one reused map image per drawing worker, the
 //     radius contour field, the encoded PNGs, and the figure canvases;
+//   - for the rings figure, one image and one panel per order and its
+//     fonts and buffers;
 //   - the spectra (bins × orders float64, three copies).
 //
 // FITS and CSV are streamed row by row and add nothing that grows with
@@ -54,7 +68,11 @@ func MemoryEstimate(r scene.Resolved, s Set, workers int) int64 {
 	arts := Artifacts(r.Output, s)
 	px := int64(r.Screen.Width) * int64(r.Screen.Height)
 	n := int64(r.Disk.Orders)
-	records := int64(bits.OnesCount8(uint8(Needs(arts))))
+	need := Needs(arts)
+	if !r.Disk.Opaque {
+		need &^= pixels.KeepBehind // a transparent disk's Line holds it
+	}
+	records := int64(bits.OnesCount8(uint8(need)))
 	b := int64(memBase) + px*(2+4*records*n) + 3*8*int64(r.Spectrum.Bins)*n
 	if r.NeedsTiming() {
 		b += px * 8 * n
@@ -63,16 +81,17 @@ func MemoryEstimate(r scene.Resolved, s Set, workers int) int64 {
 		b += (refineChunk + 1) * int64(r.Screen.Width+1) * refinePointBytes
 	}
 	drawn := map[string]bool{}
-	figures, contour := false, false
+	figures, contour, rings := false, false, false
 	for _, a := range arts {
 		switch a.Kind {
 		case MapFigure, MapBare, MapIndexed:
 			drawn[a.Map] = true
 			contour = contour || (a.Kind == MapFigure && a.Map == "radius")
+			rings = rings || (a.Kind == MapFigure && a.Map == "rings")
 		case BandBare, BandFigure, BandRedshift:
 			drawn["band"] = true
 		}
-		if a.Kind == MapFigure || a.Kind == SpectrumFigure || a.Kind == BandFigure || a.Kind == BandRedshift {
+		if (a.Kind == MapFigure && a.Map != "rings") || a.Kind == SpectrumFigure || a.Kind == BandFigure || a.Kind == BandRedshift {
 			figures = true
 		}
 	}
@@ -84,6 +103,9 @@ func MemoryEstimate(r scene.Resolved, s Set, workers int) int64 {
 	}
 	if figures {
 		b += memFigures
+	}
+	if rings {
+		b += memRingsFigure + n*(px*memRingsOrder+memRingsPanel)
 	}
 	return b
 }

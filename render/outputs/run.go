@@ -10,6 +10,7 @@ import (
 	"context"
 	"fmt"
 	"io"
+	"slices"
 	"strings"
 
 	"kerrscope/render/maps"
@@ -31,6 +32,9 @@ type Summary struct {
 	Files   []string           // paths written, sorted
 	Photons int64              // photons traced
 	Band    *pixels.BandReport // when Options.Band
+	// Rings are the measured widths of the photon rings, orders 1 and
+	// up (maps.RingWidths), when the scene asks for the rings map.
+	Rings []maps.RingWidth
 }
 
 // Run renders the scene and writes every requested output into its
@@ -63,6 +67,9 @@ func Run(ctx context.Context, r scene.Resolved, opt Options) (Summary, error) {
 		return Summary{}, err
 	}
 	sum := Summary{Photons: f.Photons}
+	if slices.Contains(r.Output.Maps, "rings") {
+		sum.Rings = maps.RingWidths(f)
+	}
 	job := Job{Frame: f, Scales: opt.Scales, Version: opt.Version, Spectrum: spec}
 	if opt.Band {
 		rep, err := f.LocateBand()

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"context"
 	"encoding/json"
+	"image/png"
 	"io"
 	"math"
 	"os"
@@ -297,5 +298,48 @@ func TestBandReportFiles(t *testing.T) {
 	var b bytes.Buffer
 	if err := WriteBandText(&b, *sum.Band); err != nil || !bytes.Contains(b.Bytes(), []byte("captured")) || !bytes.Contains(b.Bytes(), []byte("escaping")) {
 		t.Errorf("band.txt: %v\n%s", err, b.String())
+	}
+}
+
+// TestRunRings checks a run of the rings map: its figure (a row of one
+// panel per image order) and pixel-exact image are written, and the
+// summary carries the ring width of every order n ≥ 1, the ones the
+// figure's panels give (maps.RingWidths of the same frame).
+func TestRunRings(t *testing.T) {
+	dir := t.TempDir()
+	r := resolve(t, func(s *scene.Scene) {
+		s.Output.Directory, s.Output.Maps, s.Output.Formats = dir, []string{"rings"}, []string{"png", "bare"}
+		s.Screen.FieldOfView = 16
+		s.Output.OrientationMarks = true
+	})
+	sum, err := Run(context.Background(), r, Options{Version: "test"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(sum.Rings) != r.Disk.Orders-1 {
+		t.Fatalf("%d ring widths for %d orders", len(sum.Rings), r.Disk.Orders)
+	}
+	for i, w := range sum.Rings {
+		if w.Order != i+1 || w.Pixels == 0 {
+			t.Errorf("ring %d: %+v", i, w)
+		}
+	}
+	if w := sum.Rings[0]; !(w.Directions > 0 && w.Min <= w.Median && w.Median <= w.Max && w.Max < 16) {
+		t.Errorf("n = 1 ring %+v", w)
+	}
+	f, err := os.Open(filepath.Join(dir, "rings.png"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	cfg, err := png.DecodeConfig(f)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if cfg.Width < 2*cfg.Height {
+		t.Errorf("rings figure %d×%d is not a row of %d panels", cfg.Width, cfg.Height, r.Disk.Orders)
+	}
+	if _, err := os.Stat(filepath.Join(dir, "rings-bare.png")); err != nil {
+		t.Error(err)
 	}
 }

@@ -21,6 +21,12 @@ type Frame struct {
 	R, G   [][]float32 // [order][pixel]; NaN where that order is not seen
 	Line   [][]float32 // g³ ε L per order
 	Bol    [][]float32 // g⁴ ε L per order
+	// Behind is the line intensity g³ ε L, per order, of the crossings
+	// that an earlier landing of an opaque disk hides (NaN elsewhere):
+	// with Line it gives every order's own light, as a transparent disk
+	// would show it (OrderLine). nil unless kept (KeepBehind) on an
+	// opaque disk.
+	Behind [][]float32
 	// T and Phi are the time delay (M, regularised as in raytrace.Timing)
 	// and azimuth φ − φ_o (radians) per order; nil unless Model.Timing.
 	T, Phi [][]float32
@@ -63,6 +69,10 @@ const (
 	// (Frame.Band) and the band's sums (Frame.LocateBand), gathered from the
 	// samples while rendering. Not in KeepAll: only the band outputs ask.
 	KeepBand
+	// KeepBehind keeps Frame.Behind, the light of the crossings an
+	// opaque disk hides (maps: rings); nothing on a transparent disk,
+	// whose Line holds them already. Not in KeepAll.
+	KeepBehind
 	KeepAll = KeepR | KeepG | KeepLine | KeepBol
 )
 
@@ -76,15 +86,15 @@ func keepOf(keep []Keep) Keep {
 	if len(keep) == 0 {
 		return KeepAll
 	}
-	return keep[0] & (KeepAll | KeepBand)
+	return keep[0] & (KeepAll | KeepBand | KeepBehind)
 }
 
 // BytesPerPixel is the memory of the records a frame with these records
 // and image orders holds per pixel: 2 bytes for Fate and First and 4 per
-// kept record and order.
+// kept record and order (KeepBehind counted, as on an opaque disk).
 func (k Keep) BytesPerPixel(orders int) int64 {
 	n := int64(0)
-	for b := k & (KeepAll | KeepBand); b != 0; b &= b - 1 {
+	for b := k & (KeepAll | KeepBand | KeepBehind); b != 0; b &= b - 1 {
 		n++
 	}
 	return 2 + 4*n*int64(orders)
@@ -100,7 +110,7 @@ func (f *Frame) Has(k Keep) bool {
 			return false
 		}
 	}
-	return true
+	return k&KeepBehind == 0 || f.Behind != nil || !f.Model.Opaque
 }
 
 // RenderScene renders the scene's frame: one photon per pixel centre, or with
@@ -128,6 +138,7 @@ func Render(ctx context.Context, r scene.Resolved, progress func(rows int), keep
 		return nil, err
 	}
 	w, h, n := r.Screen.Width, r.Screen.Height, r.Disk.Orders
+	m.Behind = m.Opaque && keepOf(keep)&KeepBehind != 0
 	f := newFrame(r, m, keepOf(keep))
 	var rowBand []bandTally
 	if f.Band != nil {
@@ -182,6 +193,12 @@ func newFrame(r scene.Resolved, m Model, keep Keep) *Frame {
 	if f.Band = alloc(KeepBand); f.Band != nil {
 		f.band, f.bandSums = bandRange{r.BandMin, r.BandMax}, &bandTally{}
 	}
+	if m.Behind {
+		f.Behind = alloc(KeepBehind)
+		for o := range f.Behind {
+			fillNaN(f.Behind[o])
+		}
+	}
 	if m.Timing {
 		f.T, f.Phi = alloc(keepTiming), alloc(keepTiming)
 	}
@@ -214,6 +231,9 @@ func (f *Frame) store(k int, s *Sample) {
 			r, g, l, b = float32(hit.R), float32(hit.G), float32(hit.Line), float32(hit.Bol)
 		}
 		f.put(o, k, r, g, l, b)
+		if f.Behind != nil && hit.Behind {
+			f.Behind[o][k] = float32(hit.Line)
+		}
 	}
 	if f.T != nil {
 		for o := 0; o < f.Orders; o++ {
@@ -236,6 +256,26 @@ func (f *Frame) put(o, k int, r, g, l, b float32) {
 	if f.Bol != nil {
 		f.Bol[o][k] = b
 	}
+}
+
+// fillNaN sets every value of v to NaN.
+func fillNaN(v []float32) {
+	nan := float32(math.NaN())
+	for k := range v {
+		v[k] = nan
+	}
+}
+
+// OrderLine is the line intensity of image order o at pixel k as a
+// transparent disk shows it: the order's own crossing whether or not an
+// earlier landing of an opaque disk hides it (Line, else Behind; NaN
+// where the order's crossing misses the emitting disk). It needs Line
+// and, on an opaque disk, Behind (KeepLine | KeepBehind).
+func (f *Frame) OrderLine(o, k int) float32 {
+	if v := f.Line[o][k]; !math.IsNaN(float64(v)) || f.Behind == nil {
+		return v
+	}
+	return f.Behind[o][k]
 }
 
 // FirstSeen returns, per pixel, a quantity of the first order seen (NaN

@@ -25,6 +25,10 @@ type Model struct {
 	Inner, Outer float64 // emitting disk edges in M
 	Opaque       bool
 	Orders       int
+	// Behind: on an opaque disk, also shade the crossings that an
+	// earlier landing hides (Hit.Behind), for maps that show every
+	// image order on its own; they add no light to the image.
+	Behind bool
 	// Timing: also record each crossing's time delay and azimuth
 	// (raytrace.TraceTimed, about twice the cost of a plain trace); set
 	// when the scene asks for a map that needs them.
@@ -49,6 +53,10 @@ type Hit struct {
 	Line float64 // observed line intensity g³ ε(r) L(cos δ) (Liouville: I_ν/ν³ conserved)
 	Bol  float64 // bolometric intensity g⁴ ε(r) L(cos δ)
 	Seen bool    // the crossing lands on the disk and its light reaches the observer
+	// Behind: the crossing lands on the emitting disk but an earlier
+	// landing of an opaque disk hides it (only with Model.Behind); R, G,
+	// Line and Bol are its light as a transparent disk would show it.
+	Behind bool
 	// T and Phi are the crossing's time delay t_o − t (regularised, M) and
 	// azimuth φ − φ_o (radians) of raytrace.Timing; NaN unless the model
 	// records timing.
@@ -81,6 +89,7 @@ func (m *Model) ShadeTimed(alpha, beta float64, tp *raytrace.TimedPath, s *Sampl
 func (m *Model) fill(p *raytrace.Path, times []raytrace.Timing, s *Sample) {
 	s.Fate = p.Fate
 	s.First = -1
+	hidden := false // an opaque disk's first landing is behind us
 	for n := 0; n < m.Orders; n++ {
 		s.Hits[n] = Hit{R: math.NaN(), G: math.NaN(), T: math.NaN(), Phi: math.NaN()}
 	}
@@ -95,6 +104,10 @@ func (m *Model) fill(p *raytrace.Path, times []raytrace.Timing, s *Sample) {
 		eps := m.Emissivity.At(c.R)
 		limb := m.Limb.At(scene.EmissionCosine(g, c.R, p.Eta))
 		g3 := g * g * g
+		if hidden {
+			s.Hits[n] = Hit{R: c.R, G: g, Line: g3 * eps * limb, Bol: g3 * g * eps * limb, Behind: true, T: math.NaN(), Phi: math.NaN()}
+			continue
+		}
 		s.Hits[n] = Hit{R: c.R, G: g, Line: g3 * eps * limb, Bol: g3 * g * eps * limb, Seen: true, T: math.NaN(), Phi: math.NaN()}
 		if times != nil {
 			s.Hits[n].T, s.Hits[n].Phi = times[n].Delay, times[n].DeltaPhi
@@ -103,7 +116,10 @@ func (m *Model) fill(p *raytrace.Path, times []raytrace.Timing, s *Sample) {
 			s.First = n
 		}
 		if m.Opaque {
-			break
+			if !m.Behind {
+				break
+			}
+			hidden = true
 		}
 	}
 }

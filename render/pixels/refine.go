@@ -31,7 +31,7 @@ type point struct {
 
 type hit32 struct {
 	r, g, line, bol float32
-	seen            bool
+	seen, behind    bool // Hit.Seen, Hit.Behind
 }
 
 // pixelAcc gathers the area-weighted samples of one pixel.
@@ -40,6 +40,8 @@ type pixelAcc struct {
 	firstArea      [scene.MaxOrders + 1]float64 // index first+1
 	w, r, g        [scene.MaxOrders]float64
 	line, bol      [scene.MaxOrders]float64
+	behind         [scene.MaxOrders]float64 // area-weighted line of hidden crossings
+	behindArea     [scene.MaxOrders]float64
 	// With a band (refiner.band): the area whose crossing of each order
 	// lies in it, and the row's tally of those samples.
 	band  [scene.MaxOrders]float64
@@ -61,7 +63,7 @@ func (rf *refiner) sample(x, y float64, p *raytrace.Path, s *Sample) point {
 	pt := point{fate: s.Fate, first: int8(s.First)}
 	for o := 0; o < rf.m.Orders; o++ {
 		hh := s.Hits[o]
-		pt.hits[o] = hit32{float32(hh.R), float32(hh.G), float32(hh.Line), float32(hh.Bol), hh.Seen}
+		pt.hits[o] = hit32{float32(hh.R), float32(hh.G), float32(hh.Line), float32(hh.Bol), hh.Seen, hh.Behind}
 	}
 	rf.photons.Add(1)
 	return pt
@@ -139,6 +141,10 @@ func (rf *refiner) leaf(x, y, size float64, c *[4]point, acc *pixelAcc, spec *Sp
 		line, g := 0.0, 0.0
 		for k := 0; k < 4; k++ {
 			hh := c[k].hits[o]
+			if hh.behind {
+				acc.behind[o] += w * float64(hh.line)
+				acc.behindArea[o] += w
+			}
 			if !hh.seen {
 				continue
 			}
@@ -199,6 +205,7 @@ func renderRefined(ctx context.Context, r scene.Resolved, ref Refinement, keep K
 		return nil, Spectrum{}, RefineStats{}, err
 	}
 	w, h, n := r.Screen.Width, r.Screen.Height, r.Disk.Orders
+	m.Behind = m.Opaque && keepMaps && keep&KeepBehind != 0
 	a0, _, _, b1 := (&Frame{Res: r, W: w, H: h}).Window()
 	rf := &refiner{m: &m, res: r, ref: ref, a0: a0, b0: b1, h: r.PixelSize}
 	total := NewSpectrum(r.MinKeV, r.MaxKeV, r.Emission.LineKeV, r.Spectrum.Bins, n)
@@ -302,5 +309,12 @@ func (f *Frame) storeAcc(k int, a *pixelAcc) {
 			continue
 		}
 		f.put(o, k, float32(a.r[o]/a.w[o]), float32(a.g[o]/a.w[o]), float32(a.line[o]/a.area), float32(a.bol[o]/a.area))
+	}
+	if f.Behind != nil {
+		for o := 0; o < f.Orders; o++ {
+			if a.behindArea[o] > 0 {
+				f.Behind[o][k] = float32(a.behind[o] / a.area)
+			}
+		}
 	}
 }

@@ -422,6 +422,12 @@ func TestBadInput(t *testing.T) {
 		{"bar tick outside", func(p *Panel) { p.Bar = &ColorBar{Colors: []color.RGBA{white}, Ticks: []Tick{{T: 1.5}}} }, 1},
 		{"bar tick NaN", func(p *Panel) { p.Bar = &ColorBar{Colors: []color.RGBA{white}, Ticks: []Tick{{T: nan}}} }, 1},
 		{"bar both kinds", func(p *Panel) { p.Bar = &ColorBar{Colors: []color.RGBA{white}, Swatches: []Swatch{{}}} }, 1},
+		{"arrow of one point", func(p *Panel) { p.Arrows = []Arrow{{Points: [][2]float64{{0, 0}}}} }, 1},
+		{"arrow NaN point", func(p *Panel) { p.Arrows = []Arrow{{Points: [][2]float64{{0, 0}, {nan, 1}}}} }, 1},
+		{"arrow infinite label", func(p *Panel) {
+			p.Arrows = []Arrow{{Points: [][2]float64{{0, 0}, {0, 1}}, LabelAt: [2]float64{inf, 0}}}
+		}, 1},
+		{"arrow without direction", func(p *Panel) { p.Arrows = []Arrow{{Points: [][2]float64{{0, 0}, {1, 1}, {1, 1}}}} }, 1},
 		{"huge scale", func(p *Panel) {}, 1e6},
 		{"NaN scale", func(p *Panel) {}, nan},
 		{"infinite scale", func(p *Panel) {}, inf},

@@ -38,6 +38,8 @@ type Panel struct {
 	// Legend, if not empty, is a small box in the top right corner of
 	// the map.
 	Legend []LegendEntry
+	// Arrows are drawn over the map, after the lines and contours.
+	Arrows []Arrow
 }
 
 // Axis is the data range of one map direction and its label, which should
@@ -160,6 +162,11 @@ func (p *Panel) validate(zoom float64) error {
 		}
 		if math.IsNaN(c.Level) || math.IsInf(c.Level, 0) {
 			return fmt.Errorf("figure: contour %d level %v is not finite", i, c.Level)
+		}
+	}
+	for i, a := range p.Arrows {
+		if err := a.validate(i); err != nil {
+			return err
 		}
 	}
 	return nil
@@ -289,6 +296,9 @@ func drawPanel(p Panel, zoom float64) (*image.RGBA, image.Rectangle, error) {
 	}
 	for i, c := range p.Contours {
 		drawContourLabel(dc, st, c, paths[i])
+	}
+	for _, a := range p.Arrows {
+		drawArrow(dc, st, a, win, toFig)
 	}
 	dc.ResetClip()
 	if len(p.Legend) > 0 {
