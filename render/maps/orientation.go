@@ -23,6 +23,12 @@ import (
 //     approaching side, where it runs towards the near side of the disk
 //     (β < 0 for θo < 90°, β > 0 for θo > 90°).
 //
+//   - a sky compass in the lower right corner: north and east on the
+//     screen for the scene's position angle PA of the projected spin axis
+//     (observer.position_angle_deg, north through east). The screen is
+//     not mirrored, so north is (sin PA, cos PA) and east (−cos PA,
+//     sin PA) in (α, β) — the inverse of scene.SkyOffset.
+//
 // The arrows follow from the screen convention of raytrace.Observer
 // (β along the projected +z, α to the observer's right); Cunningham &
 // Bardeen (1973, ApJ 183, 237) use the same screen.
@@ -62,5 +68,20 @@ func OrientationMarks(f *pixels.Frame) []figure.Arrow {
 		pts[i] = [2]float64{ca + r*math.Cos(t), cb + r*k*math.Sin(t)}
 	}
 	orbit := figure.Arrow{Points: pts, Label: "orbital motion", LabelAt: [2]float64{ca, cb - r*k - 0.1*s}}
-	return []figure.Arrow{axis, orbit}
+	return append([]figure.Arrow{axis, orbit}, skyCompass(f.Res.Observer.PositionAngleDeg, a0, a1, b0, b1)...)
+}
+
+// skyCompass returns a north and an east arrow from a point near the
+// lower right corner of the window [a0, a1] × [b0, b1] (α, β in M), for
+// the position angle pa (degrees) of the projected spin axis (+β).
+func skyCompass(pa, a0, a1, b0, b1 float64) []figure.Arrow {
+	s := math.Min(a1-a0, b1-b0)
+	l := 0.09 * s
+	ox, oy := a1-0.14*s, b0+0.14*s
+	sp, cp := math.Sincos(pa * math.Pi / 180)
+	arrow := func(label string, dx, dy float64) figure.Arrow {
+		return figure.Arrow{Points: [][2]float64{{ox, oy}, {ox + l*dx, oy + l*dy}}, Label: label,
+			LabelAt: [2]float64{ox + 1.45*l*dx, oy + 1.45*l*dy}}
+	}
+	return []figure.Arrow{arrow("N", sp, cp), arrow("E", -cp, sp)}
 }

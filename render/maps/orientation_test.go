@@ -90,8 +90,8 @@ func TestOrientationMarksFollowTheFrame(t *testing.T) {
 		}
 
 		marks := OrientationMarks(f)
-		if len(marks) != 2 {
-			t.Fatalf("%+v: %d marks, want the spin axis and the orbit", c, len(marks))
+		if len(marks) != 4 {
+			t.Fatalf("%+v: %d marks, want the spin axis, the orbit and the compass", c, len(marks))
 		}
 		axis, orbit := marks[0], marks[1]
 		p0, p1 := axis.Points[0], axis.Points[len(axis.Points)-1]
@@ -126,6 +126,32 @@ func TestOrientationMarksFollowTheFrame(t *testing.T) {
 		}
 		if dBeta := pts[lm+1][1] - pts[lm-1][1]; !(dBeta*nearSign > 0) {
 			t.Errorf("%+v: at α < 0 the orbit arrow moves by dβ = %.3g, not towards the near side (β sign %v)", c, dBeta, nearSign)
+		}
+	}
+}
+
+// TestSkyCompass checks the compass against the sky offsets of
+// scene.SkyOffset (the WCS's rotation, read back by astropy in
+// render/outputs): its N arrow points due north and its E arrow due east,
+// at any position angle, inside the window.
+func TestSkyCompass(t *testing.T) {
+	for _, pa := range []float64{0, 37, 90, 180, -127.5, 300} {
+		marks := skyCompass(pa, -10, 14, -8, 8)
+		if len(marks) != 2 || marks[0].Label != "N" || marks[1].Label != "E" {
+			t.Fatalf("PA %v: marks %+v", pa, marks)
+		}
+		for i, want := range [][2]float64{{0, 1}, {1, 0}} { // (east, north)
+			p, q := marks[i].Points[0], marks[i].Points[1]
+			e, n := scene.SkyOffset(q[0]-p[0], q[1]-p[1], pa)
+			l := math.Hypot(e, n)
+			if math.Abs(e/l-want[0]) > 1e-12 || math.Abs(n/l-want[1]) > 1e-12 {
+				t.Errorf("PA %v: %s arrow points (east %.3g, north %.3g), want %v", pa, marks[i].Label, e/l, n/l, want)
+			}
+			for _, pt := range append(marks[i].Points, marks[i].LabelAt) {
+				if pt[0] < -10 || pt[0] > 14 || pt[1] < -8 || pt[1] > 8 {
+					t.Errorf("PA %v: %s arrow point %v outside the window", pa, marks[i].Label, pt)
+				}
+			}
 		}
 	}
 }
