@@ -15,6 +15,7 @@ import (
 //     projects for every inclination 0 < θo < 180° (β is the projected
 //     spin axis); labelled "spin axis" for a > 0, and for a ≤ 0 "disk
 //     axis +z" (for a < 0 with the note that the hole counter-rotates);
+//
 //   - a curved arrow along the projected circle of an orbit (semi-axes R
 //     and R|cos θo|, flattened no further than 0.2 R) in the gas's
 //     direction of motion, +φ: counter-clockwise on the screen for

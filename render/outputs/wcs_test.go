@@ -57,7 +57,7 @@ print(json.dumps(out))
 func TestCelestialWCSByAstropy(t *testing.T) {
 	py := findAstropy(t)
 	mass, dist, lum := 1e9, 1.0, 1e40 // µas per M ≈ 9.9e3: angles well above float64 rounding
-	ra, dec := 152.8375, 41.265 // an invented position
+	ra, dec := 152.8375, 41.265       // an invented position
 	for _, pa := range []float64{0, 90, -127.5} {
 		dir := t.TempDir()
 		r := resolve(t, func(s *scene.Scene) {
