@@ -35,6 +35,7 @@ type Report struct {
 	Skipped  int         // already finished (recorded, files intact)
 	Rendered []int       // frames rendered by this run, in order
 	Scales   maps.Scales // the colour scales every frame uses
+	Window   Window      // the window every frame uses
 	Manifest string      // path of this shard's manifest
 	Removed  int         // files of the old sweep removed by Options.Restart
 	SetAside []string    // unreadable manifests renamed by Options.Restart
@@ -104,6 +105,11 @@ func Run(ctx context.Context, p *Plan, opt Options) (Report, error) {
 			return rep, fmt.Errorf("%w: %s differs from %s (use --restart to start over, or another --out)", ErrDefinitionChanged, what, m.name)
 		}
 	}
+	win, err := p.frameWindow(ctx, olds)
+	if err != nil {
+		return rep, err
+	}
+	rep.Window = win
 	var sc maps.Scales
 	if len(olds) > 0 {
 		if sc, err = agreedScales(olds); err != nil {
@@ -121,7 +127,7 @@ func Run(ctx context.Context, p *Plan, opt Options) (Report, error) {
 		}
 	}
 	own := &manifest{Format: manifestFormat, Program: strings.TrimSpace("kerrscope " + opt.Version), Definition: def,
-		Scales: toRecord(sc), Shard: sh, Frames: []frameRecord{}}
+		Scales: toRecord(sc), Window: win, Shard: sh, Frames: []frameRecord{}}
 	var todo []Point
 	for _, pt := range p.Points {
 		if !sh.Owns(pt.Index) {
