@@ -14,8 +14,8 @@ import (
 // The command prints it as a warning; the spectrum CSV and the run record
 // carry it as a comment.
 func ClipNote(c pixels.Clip) string {
-	return fmt.Sprintf("the disk image touches the window's border: an estimated %.3g of its line flux (%.3g %% of the whole image's) lies outside the window and is missing from the spectrum (midpoint estimate on %.3g × %.3g M cells, %d photons); a field of view of 0 frames the whole disk",
-		c.Outside, 100*c.Fraction, c.CellAlpha, c.CellBeta, c.Samples)
+	return fmt.Sprintf("the disk image touches the window's border: about %.3g %% of its line flux (%.3g in the spectrum's units) lies outside the window and is missing from the spectrum (estimated on %.3g × %.3g M cells, %d photons); screen.field_of_view = 0 (--fov 0) frames the whole disk",
+		100*c.Fraction, c.Outside, c.CellAlpha, c.CellBeta, c.Samples)
 }
 
 // writeClipComment writes the frame's ClipNote as a "#" comment line,
@@ -36,6 +36,6 @@ func clipCards(f *pixels.Frame) []fits.Card {
 	}
 	return []fits.Card{
 		{Key: "CLIPFRAC", Value: f.Clip.Fraction, Comment: "est. fraction of line flux outside the window"},
-		{Key: "CLIPFLUX", Value: f.Clip.Outside, Comment: "est. line flux outside the window [spectrum units]"},
+		{Key: "CLIPFLUX", Value: f.Clip.Outside, Comment: "est. line flux outside window [spectrum units]"},
 	}
 }
