@@ -12,6 +12,7 @@ import (
 
 	"kerrscope/render/maps"
 	"kerrscope/render/outputs"
+	"kerrscope/render/pixels"
 )
 
 // ErrDefinitionChanged is returned (wrapped) by Run when the output
@@ -36,6 +37,10 @@ type Report struct {
 	Rendered []int       // frames rendered by this run, in order
 	Scales   maps.Scales // the colour scales every frame uses
 	Window   Window      // the window every frame uses
+	// Clipped lists the frames rendered by this run whose disk image
+	// touches the window's border, with the estimate of the line flux
+	// outside it (their spectrum CSV and FITS header record it too).
+	Clipped []ClippedFrame
 	Manifest string      // path of this shard's manifest
 	Removed  int         // files of the old sweep removed by Options.Restart
 	SetAside []string    // unreadable manifests renamed by Options.Restart
@@ -168,7 +173,10 @@ func Run(ctx context.Context, p *Plan, opt Options) (Report, error) {
 		return nil
 	}
 	for i, pt := range todo {
-		files, err := p.writeFrame(ctx, lk, pt, sc, opt.Version)
+		files, clip, err := p.writeFrame(ctx, lk, pt, sc, opt.Version)
+		if clip != nil {
+			rep.Clipped = append(rep.Clipped, ClippedFrame{Index: pt.Index, Clip: *clip})
+		}
 		if err != nil {
 			if pending {
 				if serr := save(); serr != nil {
@@ -191,6 +199,12 @@ func Run(ctx context.Context, p *Plan, opt Options) (Report, error) {
 		}
 	}
 	return rep, nil
+}
+
+// ClippedFrame is a frame whose window clips the disk image.
+type ClippedFrame struct {
+	Index int
+	Clip  pixels.Clip
 }
 
 // agreedScales returns the scales the manifests record, which must agree.

@@ -6,6 +6,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"strings"
 	"testing"
 
 	"kerrscope/render/maps"
@@ -95,6 +96,28 @@ func TestSweepFramesShareOneAutomaticWindow(t *testing.T) {
 			if err1 != nil || err2 != nil || string(a) != string(b) {
 				t.Errorf("frame %d: %s differs between the shards (%v, %v)", k, name, err1, err2)
 			}
+		}
+	}
+}
+
+func TestSweepReportsClippedFrames(t *testing.T) {
+	dir := t.TempDir()
+	// A 36 M field over 40 × 32 pixels cuts off the ends of the 30 M disk.
+	p := testPlan(t, dir, []string{"spin=0.1:0.9:2"}, nil, maps.Scales{})
+	rep := mustRun(t, p, Options{})
+	if len(rep.Clipped) != 2 {
+		t.Fatalf("clipped frames %+v, want both", rep.Clipped)
+	}
+	for _, c := range rep.Clipped {
+		if !(c.Clip.Fraction > 0 && c.Clip.Fraction < 1) {
+			t.Errorf("frame %d: fraction outside %v", c.Index, c.Clip.Fraction)
+		}
+		data, err := os.ReadFile(filepath.Join(dir, p.framePrefix(c.Index)+"-spectrum.csv"))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !strings.HasPrefix(string(data), "# the disk image touches the window's border") {
+			t.Errorf("frame %d: the spectrum CSV does not note the clipping", c.Index)
 		}
 	}
 }
