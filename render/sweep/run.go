@@ -40,10 +40,10 @@ type Report struct {
 	// Clipped lists the frames rendered by this run whose disk image
 	// touches the window's border, with the estimate of the line flux
 	// outside it (their spectrum CSV and FITS header record it too).
-	Clipped []ClippedFrame
-	Manifest string      // path of this shard's manifest
-	Removed  int         // files of the old sweep removed by Options.Restart
-	SetAside []string    // unreadable manifests renamed by Options.Restart
+	Clipped  []ClippedFrame
+	Manifest string   // path of this shard's manifest
+	Removed  int      // files of the old sweep removed by Options.Restart
+	SetAside []string // unreadable manifests renamed by Options.Restart
 }
 
 // Run renders the plan's frames that belong to the shard and are not
