@@ -435,15 +435,17 @@ func (s Scene) Automatic(key string) bool {
 
 // ImageBox returns the half-size, in M, of a square around the hole
 // (α = β = 0) that holds every image of the disk, of every order and both
-// faces: 1.15 r_out + 10 M. A point at radius r is seen at an impact
-// parameter b with b ≤ r / sqrt(1 − 2M/r) for a direct image
-// (Beloborodov 2002, ApJ 566, L85, cos α formula; at most about r + M for
-// r ≫ M, at most 1.8 r for r ≥ 2.5 M), frame dragging shifts images
-// sideways by at most about 2 M (the shadow's offset, Bardeen 1973), and
-// the higher-order images lie just outside the critical curve, within
-// about 8 M of the hole for every spin and inclination (Bardeen 1973);
-// 15 % and 10 M more than the disk's radius cover all of these with room
-// to spare (common practice).
+// faces: 1.15 r_out + 10 M. Light from radius r reaches the observer at an
+// impact parameter b = r sin ψ / sqrt(1 − 2M/r), ψ its angle to the
+// radial direction in the static frame (exact for Schwarzschild;
+// Beloborodov 2002, ApJ 566, L85), so b ≤ r / sqrt(1 − 2M/r): about r + M
+// for r ≫ M and at most 1.74 r for r ≥ 3 M. Light from inside 3 M that
+// escapes, and every higher-order image, arrives just outside the critical
+// curve, within about 7 M of the hole for any spin and inclination
+// (Bardeen 1973: α from −2 to 7 M for a → 1 seen edge-on; value from
+// memory), and frame dragging shifts images sideways by no more than the
+// curve's own offset, about 2 M. 15 % and 10 M more than the disk's
+// radius cover all of these with room to spare (common practice).
 func (r Resolved) ImageBox() float64 {
 	return 1.15*r.Disk.OuterRadius + 10
 }
