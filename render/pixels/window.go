@@ -40,7 +40,7 @@ const (
 // (same orders, opacity, edges and gas); the samples that land on the
 // disk give a bounding box, widened by framingMarginFrac of its larger
 // side and framingMarginCells cells. The centre is the box's centre
-// (rounded to a thousandth of the field's decade; kept when the scene
+// (rounded to a thousandth of the decade of its larger side; kept when the scene
 // gives it), the field the smallest that holds the box with square pixels
 // of the scene's width × height, rounded up to three significant digits,
 // at most scene.MaxAutoField. If no sample lands (a disk thinner than a
@@ -50,14 +50,14 @@ func FrameWindow(ctx context.Context, r scene.Resolved) (scene.Resolved, error) 
 	if !r.AutoField {
 		return r, nil
 	}
-	box, ok, err := diskBox(ctx, r)
+	box, ok, err := DiskBox(ctx, r)
 	if err != nil {
 		return r, err
 	}
 	if !ok {
 		return r.WithWindow(r.Screen.FieldOfView, r.Screen.CenterAlpha, r.Screen.CenterBeta), nil
 	}
-	field, ca, cb := box.window(r)
+	field, ca, cb := box.Window(r)
 	return r.WithWindow(field, ca, cb), nil
 }
 
@@ -69,23 +69,11 @@ func (b Box) Union(c Box) Box {
 	return Box{math.Min(b.A0, c.A0), math.Max(b.A1, c.A1), math.Min(b.B0, c.B0), math.Max(b.B1, c.B1)}
 }
 
-// DiskBox returns the box of the disk image of r with FrameWindow's
-// margin, and whether any coarse sample landed on the disk. Sweeps use
-// it for the union of their frames' windows (WindowFor).
+// DiskBox traces the coarse pass of FrameWindow and returns the box of
+// the samples that land on the disk, with FrameWindow's margin, and
+// whether any sample landed. Sweeps take the union of their frames'
+// boxes (Box.Union, Box.Window).
 func DiskBox(ctx context.Context, r scene.Resolved) (Box, bool, error) {
-	return diskBox(ctx, r)
-}
-
-// WindowFor returns the field and centre of the window of r's size that
-// holds box as FrameWindow chooses it (the centre is r's own unless
-// r.AutoCenter).
-func WindowFor(r scene.Resolved, box Box) (field, alpha, beta float64) {
-	return box.window(r)
-}
-
-// diskBox traces the coarse pass of FrameWindow and returns the margined
-// box of the samples that land on the disk.
-func diskBox(ctx context.Context, r scene.Resolved) (Box, bool, error) {
 	m, err := NewModel(r)
 	if err != nil {
 		return Box{}, false, err
@@ -131,9 +119,10 @@ func diskBox(ctx context.Context, r scene.Resolved) (Box, bool, error) {
 	return Box{b.A0 - pad, b.A1 + pad, b.B0 - pad, b.B1 + pad}, true, nil
 }
 
-// window returns the field and centre of the window of r's pixels that
-// holds b: centred on b (rounded) when r.AutoCenter, else on r's centre.
-func (b Box) window(r scene.Resolved) (field, ca, cb float64) {
+// Window returns the field and centre of the window of r's pixels that
+// holds b, as FrameWindow chooses them: centred on b (rounded) when
+// r.AutoCenter, else on r's centre.
+func (b Box) Window(r scene.Resolved) (field, ca, cb float64) {
 	w, h := float64(r.Screen.Width), float64(r.Screen.Height)
 	ca, cb = r.Screen.CenterAlpha, r.Screen.CenterBeta
 	if r.AutoCenter {

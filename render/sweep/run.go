@@ -47,9 +47,11 @@ type Report struct {
 }
 
 // Run renders the plan's frames that belong to the shard and are not
-// already finished. Scales come from a manifest of the same sweep in the
-// directory if there is one, else from the fixed scales completed by a
-// pre-pass. A frame is finished when any manifest of the same sweep in
+// already finished. With an automatic field of view every frame gets the
+// one window the manifests record, else the union of the frames'
+// automatic windows (Report.Window, recorded in the manifest). Scales
+// come from a manifest of the same sweep in the directory if there is
+// one, else from the fixed scales completed by a pre-pass. A frame is finished when any manifest of the same sweep in
 // the directory records it and its files are intact (sizes and SHA-256);
 // every other frame of the shard is rendered again, one after another
 // (each render uses every core). Each frame's files are committed

@@ -82,7 +82,7 @@ func (p *Plan) frameWindow(ctx context.Context, ms []*manifest) (Window, error) 
 			win.CenterAlpha, win.CenterBeta = r0.Screen.CenterAlpha, r0.Screen.CenterBeta
 		} else {
 			for _, pt := range p.Points {
-				f, a, b := pixels.WindowFor(pt.Scene, union)
+				f, a, b := union.Window(pt.Scene)
 				win.FieldOfView = math.Max(win.FieldOfView, f)
 				win.CenterAlpha, win.CenterBeta = a, b
 			}
