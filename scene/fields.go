@@ -119,7 +119,7 @@ func Fields() []Field {
 		{Flag: "position-angle", Key: "observer.position_angle_deg", Usage: "position angle of the projected spin axis (+β) on the sky, degrees from north through east", set: num(func(s *Scene) *float64 { return &s.Observer.PositionAngleDeg })},
 		{Flag: "width", Key: "screen.width", Usage: "image width in pixels", set: whole(func(s *Scene) *int { return &s.Screen.Width })},
 		{Flag: "height", Key: "screen.height", Usage: "image height in pixels", set: whole(func(s *Scene) *int { return &s.Screen.Height })},
-		{Flag: "fov", Key: "screen.field_of_view", Usage: "horizontal field of view in M", set: num(func(s *Scene) *float64 { return &s.Screen.FieldOfView })},
+		{Flag: "fov", Key: "screen.field_of_view", Usage: "horizontal field of view in M; 0: automatic, the whole disk image with a small margin, centred on it unless a centre is given", set: num(func(s *Scene) *float64 { return &s.Screen.FieldOfView })},
 		{Flag: "center-alpha", Key: "screen.center_alpha", Usage: "window centre α in M", set: num(func(s *Scene) *float64 { return &s.Screen.CenterAlpha })},
 		{Flag: "center-beta", Key: "screen.center_beta", Usage: "window centre β in M", set: num(func(s *Scene) *float64 { return &s.Screen.CenterBeta })},
 		{Flag: "inner", Key: "disk.inner_radius", Usage: "disk inner edge in M (default: the ISCO)", set: optNum(func(s *Scene) **float64 { return &s.Disk.InnerRadius })},

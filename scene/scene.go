@@ -79,11 +79,13 @@ type Observer struct {
 
 // Screen is the observer's pixel grid: Width × Height pixels spanning
 // FieldOfView M horizontally (square pixels), centred on (CenterAlpha,
-// CenterBeta).
+// CenterBeta). FieldOfView 0 (AutoField) is automatic: the renderer
+// chooses the field, and unless the centre is given also the centre, so
+// that the whole disk image fits (Resolved.AutoField, AutoCenter).
 type Screen struct {
 	Width       int     `toml:"width"`
 	Height      int     `toml:"height"`
-	FieldOfView float64 `toml:"field_of_view"` // M, horizontal
+	FieldOfView float64 `toml:"field_of_view"` // M, horizontal; 0: automatic
 	CenterAlpha float64 `toml:"center_alpha"`  // M
 	CenterBeta  float64 `toml:"center_beta"`   // M
 }
@@ -164,7 +166,7 @@ func Default() Scene {
 	return Scene{
 		Hole:     Hole{Spin: 0.9},
 		Observer: Observer{InclinationDeg: 60},
-		Screen:   Screen{Width: 512, Height: 512, FieldOfView: 40},
+		Screen:   Screen{Width: 512, Height: 512, FieldOfView: AutoField},
 		Disk:     Disk{OuterRadius: 30, Opaque: true, Orders: 3},
 		Emission: Emission{LineKeV: 6.4, Emissivity: "powerlaw", Index: DefaultPowerLawIndex,
 			IndexInner: 6, IndexOuter: 3, BreakRad: 6, Limb: "isotropic"},
@@ -421,6 +423,68 @@ type Resolved struct {
 	// photon number intensity (resolvePhotonRate in flux.go), when
 	// emission.line_luminosity_erg_s is given (else 0).
 	PhotonRate, PhotonNorm float64
+	// AutoField is set when the scene leaves the field of view automatic
+	// (Screen.FieldOfView = AutoField). Resolve then gives the window a
+	// provisional field, ImageBox around the hole as seen from the centre,
+	// which holds every image of the disk; the renderer tightens it to the
+	// disk's image (render/pixels.FrameWindow) and clears the flag.
+	// AutoCenter is set when, in addition, the centre is neither given nor
+	// moved from 0: the renderer chooses the centre too.
+	AutoField, AutoCenter bool
+}
+
+// AutoField is the value of Screen.FieldOfView that asks for an automatic
+// window: the whole disk image with a small margin.
+const AutoField = 0.0
+
+// MaxAutoField is the largest automatic field of view, in M: the largest
+// field a scene may give, so that the effective scene the renderer
+// records loads again. A disk whose image is wider (outer_radius above
+// about 4.8e6 M) is clipped, which the renderer reports.
+const MaxAutoField = MaxLength
+
+// Automatic reports whether the value of key is left to the renderer:
+// the field of view when it is AutoField, and the window centre too when
+// it is neither given nor moved from 0 (Resolved.AutoCenter). Help texts
+// show such a default as "automatic".
+func (s Scene) Automatic(key string) bool {
+	sc := s.Screen
+	switch key {
+	case "screen.field_of_view":
+		return sc.FieldOfView == AutoField
+	case "screen.center_alpha", "screen.center_beta":
+		return sc.FieldOfView == AutoField && sc.CenterAlpha == 0 && sc.CenterBeta == 0 &&
+			!s.isGiven("screen.center_alpha") && !s.isGiven("screen.center_beta")
+	}
+	return false
+}
+
+// ImageBox returns the half-size, in M, of a square around the hole
+// (α = β = 0) that holds every image of the disk, of every order and both
+// faces: 1.15 r_out + 10 M. Light from radius r reaches the observer at an
+// impact parameter b = r sin ψ / sqrt(1 − 2M/r), ψ its angle to the
+// radial direction in the static frame (exact for Schwarzschild;
+// Beloborodov 2002, ApJ 566, L85), so b ≤ r / sqrt(1 − 2M/r): about r + M
+// for r ≫ M and at most 1.74 r for r ≥ 3 M. Light from inside 3 M that
+// escapes, and every higher-order image, arrives just outside the critical
+// curve, within about 7 M of the hole for any spin and inclination
+// (Bardeen 1973: α from −2 to 7 M for a → 1 seen edge-on; value from
+// memory), and frame dragging shifts images sideways by no more than the
+// curve's own offset, about 2 M. 15 % and 10 M more than the disk's
+// radius cover all of these with room to spare (common practice).
+func (r Resolved) ImageBox() float64 {
+	return 1.15*r.Disk.OuterRadius + 10
+}
+
+// WithWindow returns r with the window field (M, horizontal) centred on
+// (alpha, beta), a concrete window: AutoField and AutoCenter are cleared
+// and the pixel size follows. The values are not validated; the renderer
+// calls it with windows it chose.
+func (r Resolved) WithWindow(field, alpha, beta float64) Resolved {
+	r.Screen.FieldOfView, r.Screen.CenterAlpha, r.Screen.CenterBeta = field, alpha, beta
+	r.PixelSize = field / float64(r.Screen.Width)
+	r.AutoField, r.AutoCenter = false, false
+	return r
 }
 
 // Limits on what one render may ask for.
@@ -528,8 +592,8 @@ func (s Scene) Resolve() (Resolved, error) {
 	if sc.Height < 1 || sc.Height > MaxPixels {
 		return r, fieldErr("screen.height", sc.Height, "must be between 1 and %d pixels", MaxPixels)
 	}
-	if !(sc.FieldOfView > 0 && sc.FieldOfView <= MaxLength) {
-		return r, fieldErr("screen.field_of_view", sc.FieldOfView, "must be a positive number of M, at most %g", MaxLength)
+	if !(sc.FieldOfView == AutoField || (sc.FieldOfView > 0 && sc.FieldOfView <= MaxLength)) {
+		return r, fieldErr("screen.field_of_view", sc.FieldOfView, "must be a positive number of M, at most %g, or 0 for the automatic window", MaxLength)
 	}
 	if !(math.Abs(sc.CenterAlpha) <= MaxLength) {
 		return r, fieldErr("screen.center_alpha", sc.CenterAlpha, "must be within ±%g M", MaxLength)
@@ -537,9 +601,15 @@ func (s Scene) Resolve() (Resolved, error) {
 	if !(math.Abs(sc.CenterBeta) <= MaxLength) {
 		return r, fieldErr("screen.center_beta", sc.CenterBeta, "must be within ±%g M", MaxLength)
 	}
-	r.PixelSize = sc.FieldOfView / float64(sc.Width)
-	if r.PixelSize < 1e-13*math.Max(1, math.Abs(sc.CenterAlpha)+math.Abs(sc.CenterBeta)) {
-		return r, fieldErr("screen.field_of_view", sc.FieldOfView, "over %d pixels is finer than floating point resolves at centre (%v, %v)", sc.Width, sc.CenterAlpha, sc.CenterBeta)
+	if sc.FieldOfView == AutoField {
+		// The provisional window is set once the disk is known (below).
+		r.AutoField = true
+		r.AutoCenter = s.Automatic("screen.center_alpha")
+	} else {
+		r.PixelSize = sc.FieldOfView / float64(sc.Width)
+		if r.PixelSize < 1e-13*math.Max(1, math.Abs(sc.CenterAlpha)+math.Abs(sc.CenterBeta)) {
+			return r, fieldErr("screen.field_of_view", sc.FieldOfView, "over %d pixels is finer than floating point resolves at centre (%v, %v)", sc.Width, sc.CenterAlpha, sc.CenterBeta)
+		}
 	}
 	d := s.Disk
 	if d.Orders < 1 || d.Orders > MaxOrders {
@@ -678,7 +748,24 @@ func (s Scene) Resolve() (Resolved, error) {
 	if o.IntensityScale != "log" && o.IntensityScale != "linear" {
 		return r, fieldErr("output.intensity_scale", strconv.Quote(o.IntensityScale), "must be log or linear")
 	}
+	if r.AutoField {
+		r = r.provisionalWindow()
+	}
 	return r, nil
+}
+
+// provisionalWindow gives an automatic window the field that holds the
+// square ImageBox around the hole, seen from the window's centre, with
+// square pixels (at most MaxAutoField); the flags stay set.
+func (r Resolved) provisionalWindow() Resolved {
+	sc := r.Screen
+	b := r.ImageBox()
+	hw, hh := b+math.Abs(sc.CenterAlpha), b+math.Abs(sc.CenterBeta)
+	field := math.Min(MaxAutoField, math.Max(2*hw, 2*hh*float64(sc.Width)/float64(sc.Height)))
+	auto, center := r.AutoField, r.AutoCenter
+	r = r.WithWindow(field, sc.CenterAlpha, sc.CenterBeta)
+	r.AutoField, r.AutoCenter = auto, center
+	return r
 }
 
 func checkNames(key string, got, valid []string) error {

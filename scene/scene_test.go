@@ -62,7 +62,7 @@ func TestResolveRejects(t *testing.T) {
 		{"inclination -1", func(s *Scene) { s.Observer.InclinationDeg = -1 }, "inclination_deg"},
 		{"zero width", func(s *Scene) { s.Screen.Width = 0 }, "screen.width"},
 		{"absurd height", func(s *Scene) { s.Screen.Height = 1 << 20 }, "screen.height = 1048576: must be between 1 and 16384"},
-		{"zero fov", func(s *Scene) { s.Screen.FieldOfView = 0 }, "field_of_view"},
+		{"negative fov", func(s *Scene) { s.Screen.FieldOfView = -1 }, "field_of_view"},
 		{"fov finer than float", func(s *Scene) { s.Screen.FieldOfView, s.Screen.CenterAlpha = 1e-12, 5 }, "floating point"},
 		{"orders 0", func(s *Scene) { s.Disk.Orders = 0 }, "disk.orders"},
 		{"orders 99", func(s *Scene) { s.Disk.Orders = 99 }, "disk.orders"},

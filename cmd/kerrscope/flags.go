@@ -157,6 +157,9 @@ func (f *flags) help() {
 		def, usage := fl.DefValue, fl.Usage
 		if sf, ok := fl.Value.(sceneFlag); ok {
 			def = defaults[sf.field.Key]
+			if f.base.Automatic(sf.field.Key) {
+				def = "automatic"
+			}
 			if sf.field.Bool {
 				def = "" // a switch: off unless given
 			}

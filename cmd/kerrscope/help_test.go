@@ -1,11 +1,13 @@
 package main
 
 import (
+	"context"
 	"path/filepath"
 	"regexp"
 	"strings"
 	"testing"
 
+	"kerrscope/render/pixels"
 	"kerrscope/scene"
 )
 
@@ -56,10 +58,32 @@ func TestHelpShowsTheDefaultsUsed(t *testing.T) {
 			t.Fatal(err)
 		}
 		usedText, baseText := sceneDefaults(used), sceneDefaults(c.base)
+		// An automatic value is the one the renderer chooses for the
+		// run's scene (pixels.FrameWindow).
+		run := c.base
+		run.Screen.Width, run.Screen.Height = 8, 8
+		res, err := run.Resolve()
+		if err != nil {
+			t.Fatal(err)
+		}
+		framed, err := pixels.FrameWindow(context.Background(), res)
+		if err != nil {
+			t.Fatal(err)
+		}
+		autoText := sceneDefaults(framed.Scene)
 		for key, def := range printed {
 			want := usedText[key]
 			if overridden[key] {
 				want = baseText[key]
+			}
+			if def == "automatic" {
+				if !c.base.Automatic(key) {
+					t.Errorf("%s --help: %s is automatic, the scene has %q", c.cmd, key, baseText[key])
+				}
+				if autoText[key] != want {
+					t.Errorf("%s --help: %s automatic would be %q, the command uses %q", c.cmd, key, autoText[key], want)
+				}
+				continue
 			}
 			if def != "" && def != want {
 				t.Errorf("%s --help: %s default %q, the command uses %q", c.cmd, key, def, want)
@@ -92,6 +116,9 @@ func TestHelpDefaultsPerCommand(t *testing.T) {
 	for _, cmd := range []string{"sweep", "spot", "probe"} {
 		printed, _ := helpDefaults(t, cmd)
 		for key, def := range printed {
+			if def == "automatic" && scene.Default().Automatic(key) {
+				continue
+			}
 			if def != "" && def != base[key] {
 				t.Errorf("%s --help: %s default %q, the built-in scene has %q", cmd, key, def, base[key])
 			}

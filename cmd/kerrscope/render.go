@@ -185,6 +185,9 @@ func renderAndReport(ctx context.Context, r scene.Resolved, band, quiet bool, st
 	if err != nil {
 		return interrupted(ctx, err, "no file in "+r.Output.Directory+" was changed")
 	}
+	if sum.Clip != nil {
+		fmt.Fprintf(stderr, "kerrscope: warning: %s\n", outputs.ClipNote(*sum.Clip))
+	}
 	if sum.Band != nil {
 		if err := outputs.WriteBandText(stdout, *sum.Band); err != nil {
 			return err

@@ -207,6 +207,15 @@ func runPlan(ctx context.Context, name string, plan *sweep.Plan, sh sweep.Shard,
 	for _, p := range rep.SetAside {
 		fmt.Fprintf(stderr, "kerrscope %s: set aside an unreadable manifest as %s\n", name, p)
 	}
+	if len(rep.Clipped) > 0 {
+		worst := rep.Clipped[0]
+		for _, c := range rep.Clipped[1:] {
+			if c.Clip.Fraction > worst.Clip.Fraction {
+				worst = c
+			}
+		}
+		fmt.Fprintf(stderr, "kerrscope %s: warning: %d frames clip the disk image; the most, frame %d: %s\n", name, len(rep.Clipped), worst.Index, outputs.ClipNote(worst.Clip))
+	}
 	switch {
 	case errors.Is(err, sweep.ErrDefinitionChanged):
 		return rep, usagef("--out %s: %v", plan.Dir(), err)

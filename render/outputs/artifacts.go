@@ -405,9 +405,14 @@ func tableWriter(a Artifact, job Job, spec *pixels.Spectrum) func(io.Writer) err
 	case FITSMaps:
 		return func(w io.Writer) error { return writeFITS(w, f, job.Version) }
 	case SpectrumCSV:
-		return func(w io.Writer) error { return WriteCSV(w, spec, f.Res.Caption(), f.Res) }
+		return func(w io.Writer) error {
+			if err := writeClipComment(w, f); err != nil {
+				return err
+			}
+			return WriteCSV(w, spec, f.Res.Caption(), f.Res)
+		}
 	case Manifest:
-		return func(w io.Writer) error { return WriteManifest(w, f.Res.Scene, job.Version) }
+		return func(w io.Writer) error { return writeManifest(w, f, job.Version) }
 	case BandJSON, BandText, BandFITS:
 		if job.Band == nil {
 			return func(io.Writer) error { return fmt.Errorf("no band was located") }

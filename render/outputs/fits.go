@@ -242,6 +242,7 @@ func fitsHeader(f *pixels.Frame, version string) []fits.Card {
 			fits.Card{Key: "MASSMSUN", Value: *r.Hole.MassSolar, Comment: "black-hole mass [solar masses]"},
 			fits.Card{Key: "UASPERM", Value: r.MicroArcsecPerM, Comment: "angle of 1 M at the distance [uas]"})
 	}
+	cards = append(cards, clipCards(f)...)
 	return append(cards, skyCards(r)...)
 }
 

@@ -30,17 +30,27 @@ type Options struct {
 // Summary is what a run did.
 type Summary struct {
 	Files   []string           // paths written, sorted
-	Photons int64              // photons traced
+	Photons int64              // photons traced, framing and clip estimate included
 	Band    *pixels.BandReport // when Options.Band
 	// Rings are the measured widths of the photon rings, orders 1 and
 	// up (maps.RingWidths), when the scene asks for the rings map.
 	Rings []maps.RingWidth
+	// Scene is the scene rendered, with its window concrete
+	// (pixels.FrameWindow).
+	Scene scene.Resolved
+	// Clip estimates the line flux outside the window when the disk
+	// image touches its border (pixels.EstimateClip); nil otherwise.
+	Clip *pixels.Clip
 }
 
 // Run renders the scene and writes every requested output into its
 // directory: figures, pixel-exact PNGs, a FITS file of all maps, the
 // spectrum (CSV and plot), the band report and masks (Options.Band) and
-// kerrscope-run.toml (the effective scene). The directory is locked for the
+// kerrscope-run.toml (the effective scene). An automatic window is framed
+// first (pixels.FrameWindow), and the files record the concrete one. When
+// the disk image touches the window's border, the line flux outside it
+// is estimated (pixels.EstimateClip) and recorded in the spectrum CSV,
+// the FITS header, the run record and Summary.Clip. The directory is locked for the
 // whole run (a second writer gets a *BusyError), and the files of the
 // last run into it that this one does not write again are removed with
 // the commit; on any error the last run's files are left as they were.
@@ -54,10 +64,26 @@ func Run(ctx context.Context, r scene.Resolved, opt Options) (Summary, error) {
 	}
 	defer lk.Unlock()
 	arts := Artifacts(r.Output, Set{Band: opt.Band, Manifest: true})
+	framed, err := pixels.FrameWindow(ctx, r)
+	if err != nil {
+		return Summary{}, err
+	}
+	var framing int64
+	if r.AutoField {
+		framing = pixels.FramingPhotons
+	}
+	r = framed
 	f, err := pixels.RenderScene(ctx, r, opt.Progress, Needs(arts))
 	var spec *pixels.Spectrum
 	if err == nil {
 		spec, err = pixels.CheckFinite(f)
+	}
+	if err == nil && f.TouchesBorder() {
+		var c pixels.Clip
+		if c, err = pixels.EstimateClip(ctx, f); err == nil {
+			f.Clip = &c
+			framing += c.Samples
+		}
 	}
 	if err != nil {
 		return Summary{}, err
@@ -66,7 +92,7 @@ func Run(ctx context.Context, r scene.Resolved, opt Options) (Summary, error) {
 	if err != nil {
 		return Summary{}, err
 	}
-	sum := Summary{Photons: f.Photons}
+	sum := Summary{Photons: f.Photons + framing, Scene: r, Clip: f.Clip}
 	if slices.Contains(r.Output.Maps, "rings") {
 		sum.Rings = maps.RingWidths(f)
 	}
@@ -91,10 +117,24 @@ func Run(ctx context.Context, r scene.Resolved, opt Options) (Summary, error) {
 // version, so that `kerrscope render --scene kerrscope-run.toml` reproduces
 // the outputs exactly.
 func WriteManifest(w io.Writer, s scene.Scene, version string) error {
+	return writeManifestNote(w, s, version, "")
+}
+
+// writeManifest writes the frame's effective scene (WriteManifest), with
+// the ClipNote as a comment when the window clips the disk.
+func writeManifest(w io.Writer, f *pixels.Frame, version string) error {
+	note := ""
+	if f.Clip != nil {
+		note = "# " + ClipNote(*f.Clip) + "\n"
+	}
+	return writeManifestNote(w, f.Res.Scene, version, note)
+}
+
+func writeManifestNote(w io.Writer, s scene.Scene, version, note string) error {
 	text, err := s.TOML()
 	if err != nil {
 		return err
 	}
-	_, err = fmt.Fprintf(w, "# kerrscope %s — effective scene of this run; render it again with\n#   kerrscope render --scene kerrscope-run.toml\n\n%s", version, strings.TrimLeft(string(text), "\n"))
+	_, err = fmt.Fprintf(w, "# kerrscope %s — effective scene of this run; render it again with\n#   kerrscope render --scene kerrscope-run.toml\n%s\n%s", version, note, strings.TrimLeft(string(text), "\n"))
 	return err
 }

@@ -161,7 +161,7 @@ func TestFITSReadByAstropy(t *testing.T) {
 	r := resolve(t, func(s *scene.Scene) {
 		s.Output.Directory = dir
 		s.Output.Formats = []string{"fits"}
-		s.Screen.Width, s.Screen.Height = 37, 29
+		s.Screen.Width, s.Screen.Height, s.Screen.FieldOfView = 37, 29, 40
 		s.Screen.CenterAlpha, s.Screen.CenterBeta = -1.5, 2.25
 	})
 	f, err := pixels.Render(context.Background(), r, nil)

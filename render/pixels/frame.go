@@ -38,6 +38,10 @@ type Frame struct {
 	// R, G, Line, Bol and Band are nil when the render did not keep them (Keep).
 	// Photons is the number of photons traced to make the frame.
 	Photons int64
+	// Clip, if not nil, is the estimate of the line flux outside the
+	// window (EstimateClip), for a window the disk image touches the
+	// border of (TouchesBorder); the outputs record it.
+	Clip *Clip
 	// refined is the spectrum collapsed from the refined samples, if any.
 	refined *Spectrum
 	// band is the band Band holds, bandSums its samples (LocateBand).
@@ -132,6 +136,10 @@ func RenderScene(ctx context.Context, r scene.Resolved, progress func(rows int),
 // keep, if given, is the set of per-order records the frame keeps; the
 // others are left nil, which saves their memory (Keep.BytesPerPixel).
 // Without it every record is kept.
+//
+// The window is r's as it is: an automatic one (scene.Resolved.AutoField)
+// is rendered at the provisional field Resolve gives it, which holds the
+// whole disk loosely; FrameWindow tightens it first.
 func Render(ctx context.Context, r scene.Resolved, progress func(rows int), keep ...Keep) (*Frame, error) {
 	m, err := NewModel(r)
 	if err != nil {

@@ -206,3 +206,24 @@ func FrameTimes(r scene.Resolved, sp scene.SpotEmission) []float64 {
 	}
 	return out
 }
+
+// FrameWindow returns r with a concrete window for the movie of spot sp:
+// r as it is when its field of view is given, else the automatic window
+// of pixels.FrameWindow, which holds the whole disk image (every frame
+// of the movie shares it). When the spot shines alone, the window holds
+// the image of the annulus where it can shine (sp.Inner to sp.Outer)
+// instead.
+func FrameWindow(ctx context.Context, r scene.Resolved, sp scene.SpotEmission) (scene.Resolved, error) {
+	if !r.AutoField {
+		return r, nil
+	}
+	fr := r
+	if sp.Alone {
+		fr.Inner, fr.Disk.OuterRadius, fr.Disk.Opaque = sp.Inner, sp.Outer, false
+	}
+	w, err := pixels.FrameWindow(ctx, fr)
+	if err != nil {
+		return r, err
+	}
+	return r.WithWindow(w.Screen.FieldOfView, w.Screen.CenterAlpha, w.Screen.CenterBeta), nil
+}

@@ -52,7 +52,9 @@ const gifDelay = 4
 // (spot-movie.gif), the light curve (spot-lightcurve.csv and .png), the
 // centroid track (spot-centroid.csv, and .png over the time-averaged
 // image), the line profile against time (spot-spectra.csv and .png) and
-// spot.toml, the effective scene. On any error no file is changed.
+// spot.toml, the effective scene. An automatic window is framed first
+// (FrameWindow), and spot.toml records the concrete one. On any error no
+// file is changed.
 func Run(ctx context.Context, r scene.Resolved, sp scene.SpotEmission, opt Options) (Summary, error) {
 	if n := int64(r.Spot.Frames) * int64(r.Screen.Width) * int64(r.Screen.Height); n > MaxMovieBytes {
 		return Summary{}, fmt.Errorf("spot.frames = %d of %d×%d pixels: %d MB of frames, more than the %d MB a movie may hold; use fewer frames or pixels",
@@ -63,6 +65,9 @@ func Run(ctx context.Context, r scene.Resolved, sp scene.SpotEmission, opt Optio
 		return Summary{}, err
 	}
 	defer lk.Unlock()
+	if r, err = FrameWindow(ctx, r, sp); err != nil {
+		return Summary{}, err
+	}
 	tb, err := Trace(ctx, r, sp, opt.Progress)
 	if err != nil {
 		return Summary{}, err

@@ -19,24 +19,34 @@ var hookStaged func(index int, name string)
 // writeFrame renders point pt and commits its files (Plan.artifacts) into
 // the output directory, which lk holds, through outputs.Outputs, so that
 // an error or a cancelled ctx leaves none of them behind. It returns
-// their records, sorted by name.
-func (p *Plan) writeFrame(ctx context.Context, lk *outputs.DirLock, pt Point, sc maps.Scales, version string) ([]fileRecord, error) {
+// their records, sorted by name, and the estimate of the line flux
+// outside the window when the frame's disk image touches its border
+// (pixels.EstimateClip; the files record it too), else nil.
+func (p *Plan) writeFrame(ctx context.Context, lk *outputs.DirLock, pt Point, sc maps.Scales, version string) ([]fileRecord, *pixels.Clip, error) {
 	if p.spot != nil {
-		return p.writeSpotFrame(ctx, lk, pt, sc)
+		files, err := p.writeSpotFrame(ctx, lk, pt, sc)
+		return files, nil, err
 	}
 	f, err := pixels.RenderScene(ctx, pt.Scene, nil, outputs.Needs(p.artifacts(pt.Index)))
 	var spec *pixels.Spectrum
 	if err == nil {
 		spec, err = pixels.CheckFinite(f)
 	}
+	if err == nil && f.TouchesBorder() {
+		var c pixels.Clip
+		if c, err = pixels.EstimateClip(ctx, f); err == nil {
+			f.Clip = &c
+		}
+	}
 	if err != nil {
-		return nil, err
+		return nil, nil, err
 	}
 	job := outputs.Job{Frame: f, Scales: sc, Version: version, Spectrum: spec,
 		SpectrumTitle: fmt.Sprintf("line profile collapsed from the image, frame %d of %d", pt.Index, len(p.Points))}
-	return p.commitFrame(ctx, lk, pt.Index, func(put outputs.Put) error {
+	files, err := p.commitFrame(ctx, lk, pt.Index, func(put outputs.Put) error {
 		return outputs.Write(ctx, p.artifacts(pt.Index), job, put)
 	})
+	return files, f.Clip, err
 }
 
 // commitFrame stages the files of frame index that write puts, hashing

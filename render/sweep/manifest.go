@@ -75,6 +75,7 @@ type manifest struct {
 	Program    string        `json:"program"`
 	Definition definition    `json:"definition"`
 	Scales     scaleRecord   `json:"scales"`
+	Window     Window        `json:"window"`
 	Shard      Shard         `json:"shard"`
 	Frames     []frameRecord `json:"frames"`
 

@@ -86,6 +86,10 @@ func Merge(ctx context.Context, dir string, opt MergeOptions) ([]string, error) 
 		return nil, err
 	}
 	if p.spot != nil {
+		// The movie is traced again, in the window the frames used.
+		if _, err := p.frameWindow(ctx, ms); err != nil {
+			return nil, err
+		}
 		if opt.GIFs != nil {
 			return nil, errors.New("a spot movie has one GIF, spot-movie.gif, of its palette frames; the maps to animate cannot be chosen")
 		}

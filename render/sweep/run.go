@@ -12,6 +12,7 @@ import (
 
 	"kerrscope/render/maps"
 	"kerrscope/render/outputs"
+	"kerrscope/render/pixels"
 )
 
 // ErrDefinitionChanged is returned (wrapped) by Run when the output
@@ -35,15 +36,22 @@ type Report struct {
 	Skipped  int         // already finished (recorded, files intact)
 	Rendered []int       // frames rendered by this run, in order
 	Scales   maps.Scales // the colour scales every frame uses
-	Manifest string      // path of this shard's manifest
-	Removed  int         // files of the old sweep removed by Options.Restart
-	SetAside []string    // unreadable manifests renamed by Options.Restart
+	Window   Window      // the window every frame uses
+	// Clipped lists the frames rendered by this run whose disk image
+	// touches the window's border, with the estimate of the line flux
+	// outside it (their spectrum CSV and FITS header record it too).
+	Clipped  []ClippedFrame
+	Manifest string   // path of this shard's manifest
+	Removed  int      // files of the old sweep removed by Options.Restart
+	SetAside []string // unreadable manifests renamed by Options.Restart
 }
 
 // Run renders the plan's frames that belong to the shard and are not
-// already finished. Scales come from a manifest of the same sweep in the
-// directory if there is one, else from the fixed scales completed by a
-// pre-pass. A frame is finished when any manifest of the same sweep in
+// already finished. With an automatic field of view every frame gets the
+// one window the manifests record, else the union of the frames'
+// automatic windows (Report.Window, recorded in the manifest). Scales
+// come from a manifest of the same sweep in the directory if there is
+// one, else from the fixed scales completed by a pre-pass. A frame is finished when any manifest of the same sweep in
 // the directory records it and its files are intact (sizes and SHA-256);
 // every other frame of the shard is rendered again, one after another
 // (each render uses every core). Each frame's files are committed
@@ -104,6 +112,11 @@ func Run(ctx context.Context, p *Plan, opt Options) (Report, error) {
 			return rep, fmt.Errorf("%w: %s differs from %s (use --restart to start over, or another --out)", ErrDefinitionChanged, what, m.name)
 		}
 	}
+	win, err := p.frameWindow(ctx, olds)
+	if err != nil {
+		return rep, err
+	}
+	rep.Window = win
 	var sc maps.Scales
 	if len(olds) > 0 {
 		if sc, err = agreedScales(olds); err != nil {
@@ -121,7 +134,7 @@ func Run(ctx context.Context, p *Plan, opt Options) (Report, error) {
 		}
 	}
 	own := &manifest{Format: manifestFormat, Program: strings.TrimSpace("kerrscope " + opt.Version), Definition: def,
-		Scales: toRecord(sc), Shard: sh, Frames: []frameRecord{}}
+		Scales: toRecord(sc), Window: win, Shard: sh, Frames: []frameRecord{}}
 	var todo []Point
 	for _, pt := range p.Points {
 		if !sh.Owns(pt.Index) {
@@ -162,7 +175,10 @@ func Run(ctx context.Context, p *Plan, opt Options) (Report, error) {
 		return nil
 	}
 	for i, pt := range todo {
-		files, err := p.writeFrame(ctx, lk, pt, sc, opt.Version)
+		files, clip, err := p.writeFrame(ctx, lk, pt, sc, opt.Version)
+		if clip != nil {
+			rep.Clipped = append(rep.Clipped, ClippedFrame{Index: pt.Index, Clip: *clip})
+		}
 		if err != nil {
 			if pending {
 				if serr := save(); serr != nil {
@@ -185,6 +201,12 @@ func Run(ctx context.Context, p *Plan, opt Options) (Report, error) {
 		}
 	}
 	return rep, nil
+}
+
+// ClippedFrame is a frame whose window clips the disk image.
+type ClippedFrame struct {
+	Index int
+	Clip  pixels.Clip
 }
 
 // agreedScales returns the scales the manifests record, which must agree.
