@@ -64,7 +64,7 @@ func TestCelestialWCSByAstropy(t *testing.T) {
 			s.Output.Directory = dir
 			s.Output.Formats = []string{"fits"}
 			s.Screen.Width, s.Screen.Height = 48, 40
-			s.Screen.CenterAlpha, s.Screen.CenterBeta = 1.3, -0.7
+			s.Screen.FieldOfView, s.Screen.CenterAlpha, s.Screen.CenterBeta = 40, 1.3, -0.7 // a fixed window: the test reads the hole's pixel from it
 			s.Hole.MassSolar, s.Hole.DistanceKpc = &mass, &dist
 			s.Hole.RADeg, s.Hole.DecDeg = &ra, &dec
 			s.Emission.LineLuminosityErgS = &lum
