@@ -20,12 +20,24 @@ type BandSide struct {
 	Area         float64  `json:"area_m2"`
 	Flux         float64  `json:"flux"`
 	FluxFraction float64  `json:"flux_fraction"`
-	AlphaMin     *float64 `json:"alpha_min"`
-	AlphaMax     *float64 `json:"alpha_max"`
-	BetaMin      *float64 `json:"beta_min"`
-	BetaMax      *float64 `json:"beta_max"`
-	GMin         *float64 `json:"g_min"`
-	GMax         *float64 `json:"g_max"`
+	BandBox
+}
+
+// BandBox is a screen box (α, β in M) and a range of g; in JSON its
+// fields sit inline in the object that holds it, null when empty.
+type BandBox struct {
+	AlphaMin *float64 `json:"alpha_min"`
+	AlphaMax *float64 `json:"alpha_max"`
+	BetaMin  *float64 `json:"beta_min"`
+	BetaMax  *float64 `json:"beta_max"`
+	GMin     *float64 `json:"g_min"`
+	GMax     *float64 `json:"g_max"`
+}
+
+// box returns the sum's box and g range.
+func (s *bandSum) box() BandBox {
+	ptr := func(v float64) *float64 { return &v }
+	return BandBox{ptr(s.amin), ptr(s.amax), ptr(s.bmin), ptr(s.bmax), ptr(s.gmin), ptr(s.gmax)}
 }
 
 // BandOrder is one image order's share of a band: the pixels with any of
@@ -59,12 +71,7 @@ type BandReport struct {
 	Orders       []BandOrder `json:"orders"`
 	// Box of the sample cells in the band and g range of their samples,
 	// over all orders and sides (null when none).
-	AlphaMin *float64 `json:"alpha_min"`
-	AlphaMax *float64 `json:"alpha_max"`
-	BetaMin  *float64 `json:"beta_min"`
-	BetaMax  *float64 `json:"beta_max"`
-	GMin     *float64 `json:"g_min"`
-	GMax     *float64 `json:"g_max"`
+	BandBox
 	// For spin > 0.99: distance from the critical curve at this spin of
 	// the centres of the pixels with band area (mean weighted by that
 	// area), and the α of its vertical piece in the a → 1 limit,
@@ -206,16 +213,14 @@ func (f *Frame) LocateBand() (BandReport, error) {
 			if s.area == 0 {
 				continue
 			}
-			*out = BandSide{Area: s.area * px, Flux: s.flux * px, FluxFraction: frac(s.flux),
-				AlphaMin: ptr(s.amin), AlphaMax: ptr(s.amax), BetaMin: ptr(s.bmin), BetaMax: ptr(s.bmax), GMin: ptr(s.gmin), GMax: ptr(s.gmax)}
+			*out = BandSide{Area: s.area * px, Flux: s.flux * px, FluxFraction: frac(s.flux), BandBox: s.box()}
 			rep.FluxFraction[o] += frac(s.flux)
 			all.merge(&s)
 		}
 	}
 	rep.Flux, rep.FluxFractionAll, rep.Area = all.flux*px, frac(all.flux), all.area*px
 	if all.area > 0 {
-		rep.AlphaMin, rep.AlphaMax, rep.BetaMin, rep.BetaMax = ptr(all.amin), ptr(all.amax), ptr(all.bmin), ptr(all.bmax)
-		rep.GMin, rep.GMax = ptr(all.gmin), ptr(all.gmax)
+		rep.BandBox = all.box()
 	}
 	if r.Hole.Spin > 0.99 {
 		rep.ExtremalAlpha = ptr(-2 / f.Model.Obs.SinInclination())
