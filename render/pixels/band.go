@@ -17,9 +17,9 @@ import (
 // box is that of the sample cells in the band and the g range that of
 // their samples; all are null when the side holds no band light.
 type BandSide struct {
-	Area         float64  `json:"area_m2"`
-	Flux         float64  `json:"flux"`
-	FluxFraction float64  `json:"flux_fraction"`
+	Area         float64 `json:"area_m2"`
+	Flux         float64 `json:"flux"`
+	FluxFraction float64 `json:"flux_fraction"`
 	BandBox
 }
 
