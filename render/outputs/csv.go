@@ -21,7 +21,7 @@ const PhysicalSpectrumUnits = "photons cm^-2 s^-1 keV^-1 at the observer (physic
 func WriteCSV(w io.Writer, s *pixels.Spectrum, title string, r scene.Resolved) error {
 	bw := bufio.NewWriter(w)
 	fmt.Fprintf(bw, "# %s\n", title)
-	fmt.Fprintf(bw, "# line rest energy %g keV; %d bins of %g keV from %g to %g keV", s.LineKeV, s.Bins(), s.Width(), s.MinKeV, s.MaxKeV)
+	fmt.Fprintf(bw, "# line rest energy %.10g keV; %d bins of %.10g keV from %.10g to %.10g keV", s.LineKeV, s.Bins(), s.Width(), s.MinKeV, s.MaxKeV)
 	if s.FWHMeV > 0 {
 		fmt.Fprintf(bw, "; Gaussian instrument response FWHM %g eV", s.FWHMeV)
 	}
