@@ -2,6 +2,7 @@ package main
 
 import (
 	"context"
+	"errors"
 	"flag"
 	"fmt"
 	"io"
@@ -11,6 +12,7 @@ import (
 	"github.com/pelletier/go-toml/v2"
 	"golang.org/x/term"
 
+	"kerrscope/render/maps"
 	"kerrscope/render/outputs"
 	"kerrscope/scene"
 )
@@ -72,6 +74,10 @@ func without(prefixes ...string) func(scene.Field) bool {
 // locateOnly are the scene values only the locate command reads.
 const locateOnly = "band."
 
+// scalesKeys are the colour scales of maps and spectra, which the spot
+// movie does not read (it has its own intensity scale).
+const scalesKeys = "scales."
+
 // locateBase is the scene locate starts from: the built-in one, refined,
 // because the bands it looks for are thin.
 func locateBase() scene.Scene {
@@ -106,9 +112,24 @@ func buildScene(path string, base scene.Scene, vals []pending) (scene.Resolved, 
 	}
 	r, err := s.Resolve()
 	if err != nil {
-		return r, usagef("%w", err)
+		return r, flagError(err, vals)
 	}
 	return r, nil
+}
+
+// flagError is a usage error of a refused scene value; a colour scale
+// given as a flag is named by its flag too, as its range depends on the
+// other scale values.
+func flagError(err error, vals []pending) error {
+	var fe *scene.FieldError
+	if errors.As(err, &fe) && strings.HasPrefix(fe.Key, "scales.") {
+		for _, p := range vals {
+			if p.field.Key == fe.Key {
+				return usagef("--%s: %w", p.field.Flag, err)
+			}
+		}
+	}
+	return usagef("%w", err)
 }
 
 func progressWriter(quiet bool, stderr io.Writer) io.Writer {
@@ -180,7 +201,7 @@ func renderAndReport(ctx context.Context, r scene.Resolved, band, quiet bool, st
 	}
 	bar := newProgress(progressWriter(quiet, stderr), "tracing rows")
 	rows := r.Screen.Height
-	sum, err := outputs.Run(ctx, r, outputs.Options{Version: version, Progress: func(n int) { bar.set(n, rows) }, Band: band})
+	sum, err := outputs.Run(ctx, r, outputs.Options{Version: version, Progress: func(n int) { bar.set(n, rows) }, Band: band, Scales: maps.FromScene(r.Scales)})
 	bar.done()
 	if err != nil {
 		return interrupted(ctx, err, "no file in "+r.Output.Directory+" was changed")

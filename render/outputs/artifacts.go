@@ -412,7 +412,7 @@ func tableWriter(a Artifact, job Job, spec *pixels.Spectrum) func(io.Writer) err
 			return WriteCSV(w, spec, f.Res.Caption(), f.Res)
 		}
 	case Manifest:
-		return func(w io.Writer) error { return writeManifest(w, f, job.Version) }
+		return func(w io.Writer) error { return writeManifest(w, f, job.Version, job.Scales.Fill(f)) }
 	case BandJSON, BandText, BandFITS:
 		if job.Band == nil {
 			return func(io.Writer) error { return fmt.Errorf("no band was located") }
