@@ -136,6 +136,7 @@ func runSweepMerge(ctx context.Context, args []string, stdout, stderr io.Writer)
 	var maps []string
 	f.fs.Var(mapsFlag{&maps}, "gif", "comma-separated maps to animate, or none (default: the sweep's first map)")
 	delay := f.fs.Int("delay-ms", 100, "time each GIF frame is shown, in ms: a multiple of 10 from 10 to 655350")
+	bare := f.fs.Bool("bare-gif", false, "GIF frames as the maps alone, without the strip below each with its swept values and colour bar")
 	if err := f.parse(args); err != nil {
 		return err
 	}
@@ -151,7 +152,7 @@ func runSweepMerge(ctx context.Context, args []string, stdout, stderr io.Writer)
 	if !f.given("gif") {
 		maps = nil
 	}
-	files, err := sweep.Merge(ctx, *dir, sweep.MergeOptions{GIFs: maps, DelayMS: *delay})
+	files, err := sweep.Merge(ctx, *dir, sweep.MergeOptions{GIFs: maps, DelayMS: *delay, Bare: *bare})
 	if err != nil {
 		return interrupted(ctx, err, "nothing was written")
 	}

@@ -132,6 +132,33 @@ func (p *Plan) label(values []float64) string {
 	return strings.Join(parts, ", ")
 }
 
+// valueLabel writes swept values as figures show them: each axis's
+// symbol, value (6 significant digits) and unit (scene.QuantityOf),
+// e.g. "a = 0.998, i = 60°".
+func (p *Plan) valueLabel(values []float64) string {
+	var parts []string
+	for i, v := range values {
+		parts = append(parts, scene.QuantityOf(p.Axes[i].Key).Value(strconv.FormatFloat(v, 'g', 6, 64)))
+	}
+	return strings.Join(parts, ", ")
+}
+
+// captionKeys are the scene values the scene's caption on every figure
+// shows already (scene.Resolved.Caption).
+var captionKeys = []string{"black_hole.spin", "observer.inclination_deg", "disk.inner_radius", "disk.outer_radius"}
+
+// figureNote is the swept values a frame's figures add to the scene's
+// caption: those it does not show (valueLabel).
+func (p *Plan) figureNote(values []float64) string {
+	var parts []string
+	for i, v := range values {
+		if !slices.Contains(captionKeys, p.Axes[i].Key) {
+			parts = append(parts, scene.QuantityOf(p.Axes[i].Key).Value(strconv.FormatFloat(v, 'g', 6, 64)))
+		}
+	}
+	return strings.Join(parts, ", ")
+}
+
 // Dir returns the output directory.
 func (p *Plan) Dir() string { return p.Base.Output.Directory }
 
