@@ -158,14 +158,14 @@ func Fields() []Field {
 		{Flag: "formats", Key: "output.formats", Usage: "comma-separated outputs: png (figures), bare (pixel-exact PNG), fits, csv (spectrum)", set: list(func(s *Scene) *[]string { return &s.Output.Formats })},
 		{Flag: "intensity-scale", Key: "output.intensity_scale", Usage: "intensity map scale: log or linear", set: text(func(s *Scene) *string { return &s.Output.IntensityScale })},
 		{Flag: "orientation-marks", Key: "output.orientation_marks", Usage: "draw the projected spin axis and the disk's orbital direction on every map figure", Bool: true, set: boolean(func(s *Scene) *bool { return &s.Output.OrientationMarks }, true)},
-		{Flag: "g-min", Key: "scales.g_min", Usage: "redshift colour scale lower end, 0 < g < 1 (default: from the image; sweep: from a pre-pass)", set: optNum(func(s *Scene) **float64 { return &s.Scales.GMin })},
-		{Flag: "g-max", Key: "scales.g_max", Usage: "redshift colour scale upper end, g > 1 (default: from the image; sweep: from a pre-pass)", set: optNum(func(s *Scene) **float64 { return &s.Scales.GMax })},
-		{Flag: "intensity-max", Key: "scales.intensity_max", Usage: "intensity colour scale maximum in relative units, > 0 (default: from the image; sweep: from a pre-pass)", set: optNum(func(s *Scene) **float64 { return &s.Scales.IntensityMax })},
-		{Flag: "intensity-decades", Key: "scales.intensity_decades", Usage: "decades on the log intensity scale, 0 < d ≤ 30 (default 4)", set: optNum(func(s *Scene) **float64 { return &s.Scales.IntensityDecades })},
-		{Flag: "radius-min", Key: "scales.radius_min", Usage: "radius colour scale lower end in M, > 0 (default: the disk's inner edge; sweep: the smallest)", set: optNum(func(s *Scene) **float64 { return &s.Scales.RadiusMin })},
-		{Flag: "radius-max", Key: "scales.radius_max", Usage: "radius colour scale upper end in M, above --radius-min (default: the disk's outer edge; sweep: the largest)", set: optNum(func(s *Scene) **float64 { return &s.Scales.RadiusMax })},
-		{Flag: "flux-max", Key: "scales.flux_max", Usage: "spectrum plot's upper flux limit per keV, > 0 (default: from the spectrum; sweep: from a pre-pass)", set: optNum(func(s *Scene) **float64 { return &s.Scales.FluxMax })},
-		{Flag: "scale-percentile", Key: "scales.percentile", Usage: "colour ranges not fixed span the p-th to (100−p)-th percentile of the values by screen area, 0 ≤ p < 50 (default: 0, the whole range; sweep: 0.5)", set: optNum(func(s *Scene) **float64 { return &s.Scales.Percentile })},
+		{Flag: "g-min", Key: "scales.g_min", Usage: "redshift colour scale lower end, 0 < g < 1", set: optNum(func(s *Scene) **float64 { return &s.Scales.GMin })},
+		{Flag: "g-max", Key: "scales.g_max", Usage: "redshift colour scale upper end, g > 1", set: optNum(func(s *Scene) **float64 { return &s.Scales.GMax })},
+		{Flag: "intensity-max", Key: "scales.intensity_max", Usage: "intensity colour scale maximum in relative units, > 0", set: optNum(func(s *Scene) **float64 { return &s.Scales.IntensityMax })},
+		{Flag: "intensity-decades", Key: "scales.intensity_decades", Usage: "decades on the log intensity scale, 0 < d ≤ 30", set: optNum(func(s *Scene) **float64 { return &s.Scales.IntensityDecades })},
+		{Flag: "radius-min", Key: "scales.radius_min", Usage: "radius colour scale lower end in M, > 0", set: optNum(func(s *Scene) **float64 { return &s.Scales.RadiusMin })},
+		{Flag: "radius-max", Key: "scales.radius_max", Usage: "radius colour scale upper end in M, above --radius-min", set: optNum(func(s *Scene) **float64 { return &s.Scales.RadiusMax })},
+		{Flag: "flux-max", Key: "scales.flux_max", Usage: "spectrum plot's upper flux limit per keV, > 0", set: optNum(func(s *Scene) **float64 { return &s.Scales.FluxMax })},
+		{Flag: "scale-percentile", Key: "scales.percentile", Usage: "colour ranges not fixed span the p-th to (100−p)-th percentile of the values by screen area, 0 ≤ p < 50", set: optNum(func(s *Scene) **float64 { return &s.Scales.Percentile })},
 	}
 }
 

@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"strconv"
 	"strings"
 
 	"github.com/pelletier/go-toml/v2"
@@ -73,6 +74,35 @@ func without(prefixes ...string) func(scene.Field) bool {
 
 // locateOnly are the scene values only the locate command reads.
 const locateOnly = "band."
+
+// scaleDefaults states in --help what each command chooses for the
+// colour scales left to it: a render from its own image, a sweep from its
+// pre-pass.
+func scaleDefaults(f *flags, sweep bool) {
+	notes := map[string]string{
+		"g-min": "from the image", "g-max": "from the image", "intensity-max": "from the image",
+		"intensity-decades": "4", "radius-min": "the disk's inner edge", "radius-max": "the disk's outer edge",
+		"flux-max": "from the spectrum", "scale-percentile": "0, the whole range",
+	}
+	if sweep {
+		for _, k := range []string{"g-min", "g-max", "intensity-max", "flux-max"} {
+			notes[k] = "from a pre-pass"
+		}
+		notes["radius-min"], notes["radius-max"] = "the smallest inner edge of the frames", "the largest outer edge"
+		notes["scale-percentile"] = strconv.FormatFloat(scene.DefaultSweepPercentile, 'g', -1, 64) + ", in the pre-pass"
+	}
+	for name, note := range notes {
+		if fl := f.fs.Lookup(name); fl != nil {
+			sep := ": "
+			if _, err := strconv.ParseFloat(strings.SplitN(note, ",", 2)[0], 64); err == nil {
+				sep = " "
+			}
+			// Before the scene key, which ends the usage (sceneFlags).
+			i := strings.LastIndex(fl.Usage, " [")
+			fl.Usage = fl.Usage[:i] + " (default" + sep + note + ")" + fl.Usage[i:]
+		}
+	}
+}
 
 // scalesKeys are the colour scales of maps and spectra, which the spot
 // movie does not read (it has its own intensity scale).
@@ -146,6 +176,7 @@ func runRender(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	f := newFlags("render", stdout)
 	base := scene.Default()
 	path, vals := sceneFlags(f, base, without(locateOnly))
+	scaleDefaults(f, false)
 	quiet := f.fs.Bool("quiet", false, "no progress bar")
 	if err := f.parse(args); err != nil {
 		return err
@@ -161,6 +192,7 @@ func runLocate(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	f := newFlags("locate", stdout)
 	base := locateBase()
 	path, vals := sceneFlags(f, base, without("spot."))
+	scaleDefaults(f, false)
 	quiet := f.fs.Bool("quiet", false, "no progress bar")
 	if err := f.parse(args); err != nil {
 		return err
@@ -179,6 +211,7 @@ func runDemo(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	}
 	f := newFlags("demo", stdout)
 	path, vals := sceneFlags(f, demo, without(locateOnly))
+	scaleDefaults(f, false)
 	f.hide("scene") // the demo's scene is built in
 	quiet := f.fs.Bool("quiet", false, "no progress bar")
 	if err := f.parse(args); err != nil {

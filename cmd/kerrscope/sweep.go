@@ -44,6 +44,7 @@ func runSweep(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	f := newFlags("sweep", stdout)
 	base := scene.Default()
 	path, vals := sceneFlags(f, base, without(locateOnly))
+	scaleDefaults(f, true)
 	quiet := f.fs.Bool("quiet", false, "no progress bar")
 	var axes []sweep.Axis
 	f.fs.Var(axesFlag{&axes}, "vary", "swept value KEY=FROM:TO:COUNT[:SPACING], SPACING linear (default), log or log1m (1 − v log-spaced); KEY a flag or scene key, e.g. spin=0.5:0.999999:60:log1m; give it twice for a grid (required)")
@@ -101,8 +102,8 @@ func runSweep(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		fmt.Fprintf(stdout, "restart: removed %d files that the old sweep wrote and recorded\n", rep.Removed)
 	}
 	fmt.Fprintf(stdout, "shard %s: %d frames, %d already finished, %d rendered now\n", rep.Shard, rep.Frames, rep.Skipped, len(rep.Rendered))
-	fmt.Fprintf(stdout, "scales: g %g–%g, intensity max %g (%g decades), radius %g–%g M, flux max %g per keV\n",
-		s.GMin, s.GMax, s.IMax, s.IDecades, s.RMin, s.RMax, s.FluxMax)
+	fmt.Fprintf(stdout, "scales: g %g–%g, intensity max %g (%g decades), radius %g–%g M, flux max %g per keV (pre-pass percentile %g)\n",
+		s.GMin, s.GMax, s.IMax, s.IDecades, s.RMin, s.RMax, s.FluxMax, plan.Percentile())
 	fmt.Fprintf(stdout, "manifest: %s\nwhen every shard is done: kerrscope sweep-merge --out %s\n", rep.Manifest, plan.Dir())
 	return nil
 }

@@ -270,12 +270,12 @@ func (p *Plan) chooseScales(ctx context.Context) (maps.Scales, error) {
 			fmax = math.Max(fmax, v*unit/spec.Width())
 		}
 	}
-	return prepassScales(sc, gs, is, fmax, p.percentile()), nil
+	return prepassScales(sc, gs, is, fmax, p.Percentile()), nil
 }
 
-// percentile is the percentile of the pre-pass: the scene's
-// scales.percentile, else scene.DefaultSweepPercentile.
-func (p *Plan) percentile() float64 {
+// Percentile is the percentile of the pre-pass (prepassScales): the
+// scene's scales.percentile, else scene.DefaultSweepPercentile.
+func (p *Plan) Percentile() float64 {
 	if v := p.Base.Scales.Percentile; v != nil {
 		return *v
 	}

@@ -57,7 +57,7 @@ func TestPrepassRobustToExtremePixels(t *testing.T) {
 // of the whole range.
 func TestPrepassPercentileOfScene(t *testing.T) {
 	p := testPlan(t, t.TempDir(), []string{"spin=0.5:0.998:3"}, nil, maps.Scales{})
-	if got := p.percentile(); got != scene.DefaultSweepPercentile {
+	if got := p.Percentile(); got != scene.DefaultSweepPercentile {
 		t.Errorf("default percentile %v", got)
 	}
 	robust, err := p.chooseScales(context.Background())
