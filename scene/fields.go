@@ -158,5 +158,89 @@ func Fields() []Field {
 		{Flag: "formats", Key: "output.formats", Usage: "comma-separated outputs: png (figures), bare (pixel-exact PNG), fits, csv (spectrum)", set: list(func(s *Scene) *[]string { return &s.Output.Formats })},
 		{Flag: "intensity-scale", Key: "output.intensity_scale", Usage: "intensity map scale: log or linear", set: text(func(s *Scene) *string { return &s.Output.IntensityScale })},
 		{Flag: "orientation-marks", Key: "output.orientation_marks", Usage: "draw the projected spin axis and the disk's orbital direction on every map figure", Bool: true, set: boolean(func(s *Scene) *bool { return &s.Output.OrientationMarks }, true)},
+		{Flag: "g-min", Key: "scales.g_min", Usage: "redshift colour scale lower end, 0 < g < 1", set: optNum(func(s *Scene) **float64 { return &s.Scales.GMin })},
+		{Flag: "g-max", Key: "scales.g_max", Usage: "redshift colour scale upper end, g > 1", set: optNum(func(s *Scene) **float64 { return &s.Scales.GMax })},
+		{Flag: "intensity-max", Key: "scales.intensity_max", Usage: "intensity colour scale maximum in relative units, > 0", set: optNum(func(s *Scene) **float64 { return &s.Scales.IntensityMax })},
+		{Flag: "intensity-decades", Key: "scales.intensity_decades", Usage: "decades on the log intensity scale, 0 < d ≤ 30", set: optNum(func(s *Scene) **float64 { return &s.Scales.IntensityDecades })},
+		{Flag: "radius-min", Key: "scales.radius_min", Usage: "radius colour scale lower end in M, > 0", set: optNum(func(s *Scene) **float64 { return &s.Scales.RadiusMin })},
+		{Flag: "radius-max", Key: "scales.radius_max", Usage: "radius colour scale upper end in M, above --radius-min", set: optNum(func(s *Scene) **float64 { return &s.Scales.RadiusMax })},
+		{Flag: "flux-max", Key: "scales.flux_max", Usage: "spectrum plot's upper flux limit per keV, > 0", set: optNum(func(s *Scene) **float64 { return &s.Scales.FluxMax })},
+		{Flag: "scale-percentile", Key: "scales.percentile", Usage: "colour ranges not fixed span the p-th to (100−p)-th percentile of the values by screen area, 0 ≤ p < 50", set: optNum(func(s *Scene) **float64 { return &s.Scales.Percentile })},
 	}
+}
+
+// Quantity is how figures name a scene value: Name in words, Symbol as in
+// the formulas (subscripts written with _, as in the figures' labels)
+// and Unit ("" for a pure number).
+type Quantity struct {
+	Name, Symbol, Unit string
+}
+
+// quantities names the numeric scene values a sweep can vary, by key
+// (Fields), for the labels of animation frames and colour bars.
+var quantities = map[string]Quantity{
+	"black_hole.spin":                {"spin", "a", ""},
+	"black_hole.mass_msun":           {"mass", "M", "M_sun"},
+	"black_hole.distance_kpc":        {"distance", "D", "kpc"},
+	"black_hole.distance_mpc":        {"distance", "D", "Mpc"},
+	"black_hole.ra_deg":              {"right ascension", "RA", "deg"},
+	"black_hole.dec_deg":             {"declination", "Dec", "deg"},
+	"observer.inclination_deg":       {"inclination", "i", "deg"},
+	"observer.position_angle_deg":    {"position angle", "PA", "deg"},
+	"disk.inner_radius":              {"inner edge", "r_in", "M"},
+	"disk.outer_radius":              {"outer edge", "r_out", "M"},
+	"emission.line_kev":              {"line energy", "E_line", "keV"},
+	"emission.index":                 {"emissivity index", "q", ""},
+	"emission.index_inner":           {"inner emissivity index", "q_in", ""},
+	"emission.index_outer":           {"outer emissivity index", "q_out", ""},
+	"emission.break_radius":          {"break radius", "r_br", "M"},
+	"emission.line_luminosity_erg_s": {"line luminosity", "L", "erg s⁻¹"},
+	"spectrum.instrument_fwhm_ev":    {"instrument FWHM", "ΔE", "eV"},
+	"refine.tolerance_r":             {"refinement tolerance in r", "δr/r", ""},
+	"refine.tolerance_g":             {"refinement tolerance in g", "δg", ""},
+	"spot.radius":                    {"spot radius", "r_s", "M"},
+	"spot.size":                      {"spot size", "σ_s", "M"},
+	"spot.contrast":                  {"spot contrast", "C", ""},
+	"spot.phase_deg":                 {"spot phase", "φ_s", "deg"},
+	"spot.arc_deg":                   {"spot arc", "Δφ", "deg"},
+	"spot.periods":                   {"time span", "Δt", "orbits"},
+}
+
+// QuantityOf returns how figures name the scene value of key; a key
+// without an entry is named by the key itself.
+func QuantityOf(key string) Quantity {
+	if q, ok := quantities[key]; ok {
+		return q
+	}
+	return Quantity{Name: key}
+}
+
+// Title is the quantity's name for an axis or colour bar: name, symbol
+// and unit in brackets, e.g. "spin a", "inclination i [deg]".
+func (q Quantity) Title() string {
+	t := q.Name
+	if q.Symbol != "" {
+		t += " " + q.Symbol
+	}
+	if q.Unit != "" {
+		t += " [" + q.Unit + "]"
+	}
+	return t
+}
+
+// Value writes a value of the quantity as the symbol, the value and the
+// unit, e.g. "a = 0.998", "i = 60°", "r_out = 30 M" (the key when there
+// is no symbol).
+func (q Quantity) Value(v string) string {
+	sym := q.Symbol
+	if sym == "" {
+		sym = q.Name
+	}
+	switch q.Unit {
+	case "":
+		return sym + " = " + v
+	case "deg":
+		return sym + " = " + v + "°"
+	}
+	return sym + " = " + v + " " + q.Unit
 }

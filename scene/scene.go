@@ -30,6 +30,7 @@ type Scene struct {
 	Band     Band     `toml:"band"`
 	Spot     Spot     `toml:"spot"`
 	Output   Output   `toml:"output"`
+	Scales   Scales   `toml:"scales,omitempty"`
 
 	// given holds the keys set by the user (scene file or flags); see
 	// markGiven. It is not part of the scene's TOML.
@@ -747,6 +748,15 @@ func (s Scene) Resolve() (Resolved, error) {
 	}
 	if o.IntensityScale != "log" && o.IntensityScale != "linear" {
 		return r, fieldErr("output.intensity_scale", strconv.Quote(o.IntensityScale), "must be log or linear")
+	}
+	if err := s.Scales.check(); err != nil {
+		return r, err
+	}
+	if sc := s.Scales; sc.RadiusMin != nil && sc.RadiusMax == nil && !(*sc.RadiusMin < s.Disk.OuterRadius) {
+		return r, fieldErr("scales.radius_min", *sc.RadiusMin, "must be below the disk's outer edge %v M (or give scales.radius_max too)", s.Disk.OuterRadius)
+	}
+	if sc := s.Scales; sc.RadiusMax != nil && sc.RadiusMin == nil && !(*sc.RadiusMax > r.Inner) {
+		return r, fieldErr("scales.radius_max", *sc.RadiusMax, "must be above the disk's inner edge %.6g M (or give scales.radius_min too)", r.Inner)
 	}
 	if r.AutoField {
 		r = r.provisionalWindow()

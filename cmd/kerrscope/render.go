@@ -2,15 +2,18 @@ package main
 
 import (
 	"context"
+	"errors"
 	"flag"
 	"fmt"
 	"io"
 	"os"
+	"strconv"
 	"strings"
 
 	"github.com/pelletier/go-toml/v2"
 	"golang.org/x/term"
 
+	"kerrscope/render/maps"
 	"kerrscope/render/outputs"
 	"kerrscope/scene"
 )
@@ -72,6 +75,39 @@ func without(prefixes ...string) func(scene.Field) bool {
 // locateOnly are the scene values only the locate command reads.
 const locateOnly = "band."
 
+// scaleDefaults states in --help what each command chooses for the
+// colour scales left to it: a render from its own image, a sweep from its
+// pre-pass.
+func scaleDefaults(f *flags, sweep bool) {
+	notes := map[string]string{
+		"g-min": "from the image", "g-max": "from the image", "intensity-max": "from the image",
+		"intensity-decades": "4", "radius-min": "the disk's inner edge", "radius-max": "the disk's outer edge",
+		"flux-max": "from the spectrum", "scale-percentile": "0, the whole range",
+	}
+	if sweep {
+		for _, k := range []string{"g-min", "g-max", "intensity-max", "flux-max"} {
+			notes[k] = "from a pre-pass"
+		}
+		notes["radius-min"], notes["radius-max"] = "the smallest inner edge of the frames", "the largest outer edge"
+		notes["scale-percentile"] = strconv.FormatFloat(scene.DefaultSweepPercentile, 'g', -1, 64) + ", in the pre-pass"
+	}
+	for name, note := range notes {
+		if fl := f.fs.Lookup(name); fl != nil {
+			sep := ": "
+			if _, err := strconv.ParseFloat(strings.SplitN(note, ",", 2)[0], 64); err == nil {
+				sep = " "
+			}
+			// Before the scene key, which ends the usage (sceneFlags).
+			i := strings.LastIndex(fl.Usage, " [")
+			fl.Usage = fl.Usage[:i] + " (default" + sep + note + ")" + fl.Usage[i:]
+		}
+	}
+}
+
+// scalesKeys are the colour scales of maps and spectra, which the spot
+// movie does not read (it has its own intensity scale).
+const scalesKeys = "scales."
+
 // locateBase is the scene locate starts from: the built-in one, refined,
 // because the bands it looks for are thin.
 func locateBase() scene.Scene {
@@ -106,9 +142,24 @@ func buildScene(path string, base scene.Scene, vals []pending) (scene.Resolved, 
 	}
 	r, err := s.Resolve()
 	if err != nil {
-		return r, usagef("%w", err)
+		return r, flagError(err, vals)
 	}
 	return r, nil
+}
+
+// flagError is a usage error of a refused scene value; a colour scale
+// given as a flag is named by its flag too, as its range depends on the
+// other scale values.
+func flagError(err error, vals []pending) error {
+	var fe *scene.FieldError
+	if errors.As(err, &fe) && strings.HasPrefix(fe.Key, "scales.") {
+		for _, p := range vals {
+			if p.field.Key == fe.Key {
+				return usagef("--%s: %w", p.field.Flag, err)
+			}
+		}
+	}
+	return usagef("%w", err)
 }
 
 func progressWriter(quiet bool, stderr io.Writer) io.Writer {
@@ -125,6 +176,7 @@ func runRender(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	f := newFlags("render", stdout)
 	base := scene.Default()
 	path, vals := sceneFlags(f, base, without(locateOnly))
+	scaleDefaults(f, false)
 	quiet := f.fs.Bool("quiet", false, "no progress bar")
 	if err := f.parse(args); err != nil {
 		return err
@@ -140,6 +192,7 @@ func runLocate(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	f := newFlags("locate", stdout)
 	base := locateBase()
 	path, vals := sceneFlags(f, base, without("spot."))
+	scaleDefaults(f, false)
 	quiet := f.fs.Bool("quiet", false, "no progress bar")
 	if err := f.parse(args); err != nil {
 		return err
@@ -158,6 +211,7 @@ func runDemo(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	}
 	f := newFlags("demo", stdout)
 	path, vals := sceneFlags(f, demo, without(locateOnly))
+	scaleDefaults(f, false)
 	f.hide("scene") // the demo's scene is built in
 	quiet := f.fs.Bool("quiet", false, "no progress bar")
 	if err := f.parse(args); err != nil {
@@ -180,7 +234,7 @@ func renderAndReport(ctx context.Context, r scene.Resolved, band, quiet bool, st
 	}
 	bar := newProgress(progressWriter(quiet, stderr), "tracing rows")
 	rows := r.Screen.Height
-	sum, err := outputs.Run(ctx, r, outputs.Options{Version: version, Progress: func(n int) { bar.set(n, rows) }, Band: band})
+	sum, err := outputs.Run(ctx, r, outputs.Options{Version: version, Progress: func(n int) { bar.set(n, rows) }, Band: band, Scales: maps.FromScene(r.Scales)})
 	bar.done()
 	if err != nil {
 		return interrupted(ctx, err, "no file in "+r.Output.Directory+" was changed")

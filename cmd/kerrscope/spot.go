@@ -18,7 +18,7 @@ import (
 func runSpot(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 	f := newFlags("spot", stdout)
 	base := scene.Default()
-	path, vals := sceneFlags(f, base, without(locateOnly))
+	path, vals := sceneFlags(f, base, without(locateOnly, scalesKeys))
 	quiet := f.fs.Bool("quiet", false, "no progress bar")
 	var sh sweep.Shard
 	f.fs.Var(shardFlag{&sh}, "shard", "render only the frames with index mod N = K−1, resumably, recorded in a sweep manifest; when every share is done, kerrscope sweep-merge --out DIR writes the GIF, light curve, centroid and line profile (1/1: one resumable process)")
@@ -28,8 +28,8 @@ func runSpot(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	if err := f.parse(args); err != nil {
 		return err
 	}
-	if err := checkScaleFlags(f, sc); err != nil {
-		return err
+	if f.given("intensity-max") && !(sc.IMax > 0) {
+		return usagef("--intensity-max %s: must be positive", f.fs.Lookup("intensity-max").Value)
 	}
 	sharded := f.given("shard")
 	for _, name := range []string{"restart", "intensity-max"} {

@@ -44,20 +44,13 @@ func runSweep(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	f := newFlags("sweep", stdout)
 	base := scene.Default()
 	path, vals := sceneFlags(f, base, without(locateOnly))
+	scaleDefaults(f, true)
 	quiet := f.fs.Bool("quiet", false, "no progress bar")
 	var axes []sweep.Axis
 	f.fs.Var(axesFlag{&axes}, "vary", "swept value KEY=FROM:TO:COUNT[:SPACING], SPACING linear (default), log or log1m (1 − v log-spaced); KEY a flag or scene key, e.g. spin=0.5:0.999999:60:log1m; give it twice for a grid (required)")
 	var sh sweep.Shard
 	f.fs.Var(shardFlag{&sh}, "shard", "render only share K of N (frames with index mod N = K−1), e.g. --shard $SLURM_ARRAY_TASK_ID/8 (default 1/1)")
 	restart := f.fs.Bool("restart", false, "start over: remove the files the output directory's sweep manifests record (unchanged ones only) and the manifests; unreadable manifests are renamed NAME.corrupt-TIME")
-	var sc maps.Scales
-	f.float(&sc.GMin, "g-min", 0, "redshift colour scale lower end, 0 < g < 1 (default: from a pre-pass)")
-	f.float(&sc.GMax, "g-max", 0, "redshift colour scale upper end, g > 1 (default: from a pre-pass)")
-	f.float(&sc.IMax, "intensity-max", 0, "intensity colour scale maximum, > 0 (default: from a pre-pass)")
-	f.float(&sc.IDecades, "intensity-decades", 0, "decades on the log intensity scale, 0 < d ≤ 30 (default 4)")
-	f.float(&sc.RMin, "radius-min", 0, "radius colour scale lower end in M, > 0 (default: the smallest inner edge)")
-	f.float(&sc.RMax, "radius-max", 0, "radius colour scale upper end in M (default: the largest outer edge)")
-	f.float(&sc.FluxMax, "flux-max", 0, "spectrum plots' upper flux limit per keV, > 0 (default: from a pre-pass)")
 	if err := f.parse(args); err != nil {
 		return err
 	}
@@ -69,14 +62,14 @@ func runSweep(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	case len(axes) == 2 && axes[0].Key == axes[1].Key:
 		return usagef("--vary: %s is varied twice", axes[0].Key)
 	}
-	if err := checkScaleFlags(f, sc); err != nil {
-		return err
-	}
 	base, err := loadScene(*path, base, *vals)
 	if err != nil {
 		return err
 	}
-	plan, err := sweep.NewPlan(base, axes, sc)
+	if err := base.Scales.Check(); err != nil {
+		return flagError(err, *vals)
+	}
+	plan, err := sweep.NewPlan(base, axes, maps.FromScene(base.Scales))
 	var pe *sweep.PointError
 	switch {
 	case errors.As(err, &pe):
@@ -109,32 +102,9 @@ func runSweep(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		fmt.Fprintf(stdout, "restart: removed %d files that the old sweep wrote and recorded\n", rep.Removed)
 	}
 	fmt.Fprintf(stdout, "shard %s: %d frames, %d already finished, %d rendered now\n", rep.Shard, rep.Frames, rep.Skipped, len(rep.Rendered))
-	fmt.Fprintf(stdout, "scales: g %g–%g, intensity max %g (%g decades), radius %g–%g M, flux max %g per keV\n",
-		s.GMin, s.GMax, s.IMax, s.IDecades, s.RMin, s.RMax, s.FluxMax)
+	fmt.Fprintf(stdout, "scales: g %g–%g, intensity max %g (%g decades), radius %g–%g M, flux max %g per keV (pre-pass percentile %g)\n",
+		s.GMin, s.GMax, s.IMax, s.IDecades, s.RMin, s.RMax, s.FluxMax, plan.Percentile())
 	fmt.Fprintf(stdout, "manifest: %s\nwhen every shard is done: kerrscope sweep-merge --out %s\n", rep.Manifest, plan.Dir())
-	return nil
-}
-
-// checkScaleFlags checks the scale flags that were given.
-func checkScaleFlags(f *flags, sc maps.Scales) error {
-	checks := []struct {
-		name string
-		ok   bool
-		want string
-	}{
-		{"g-min", sc.GMin > 0 && sc.GMin < 1, "between 0 and 1, exclusive"},
-		{"g-max", sc.GMax > 1, "above 1"},
-		{"intensity-max", sc.IMax > 0, "positive"},
-		{"intensity-decades", sc.IDecades > 0 && sc.IDecades <= 30, "above 0 and at most 30"},
-		{"radius-min", sc.RMin > 0, "positive"},
-		{"radius-max", sc.RMax > 0 && (!f.given("radius-min") || sc.RMax > sc.RMin), "positive and above --radius-min"},
-		{"flux-max", sc.FluxMax > 0, "positive"},
-	}
-	for _, c := range checks {
-		if f.given(c.name) && !c.ok {
-			return usagef("--%s %s: must be %s", c.name, f.fs.Lookup(c.name).Value, c.want)
-		}
-	}
 	return nil
 }
 
@@ -167,6 +137,7 @@ func runSweepMerge(ctx context.Context, args []string, stdout, stderr io.Writer)
 	var maps []string
 	f.fs.Var(mapsFlag{&maps}, "gif", "comma-separated maps to animate, or none (default: the sweep's first map)")
 	delay := f.fs.Int("delay-ms", 100, "time each GIF frame is shown, in ms: a multiple of 10 from 10 to 655350")
+	bare := f.fs.Bool("bare-gif", false, "GIF frames as the maps alone, without the strip below each with its swept values and colour bar")
 	if err := f.parse(args); err != nil {
 		return err
 	}
@@ -182,7 +153,7 @@ func runSweepMerge(ctx context.Context, args []string, stdout, stderr io.Writer)
 	if !f.given("gif") {
 		maps = nil
 	}
-	files, err := sweep.Merge(ctx, *dir, sweep.MergeOptions{GIFs: maps, DelayMS: *delay})
+	files, err := sweep.Merge(ctx, *dir, sweep.MergeOptions{GIFs: maps, DelayMS: *delay, Bare: *bare})
 	if err != nil {
 		return interrupted(ctx, err, "nothing was written")
 	}

@@ -23,26 +23,22 @@ type Scales struct {
 	TMin, TMax float64
 }
 
-// AutoScales returns the scales the frame would choose for itself. A
-// frame without redshift (or line) records gets the defaults for g (or
-// intensity).
+// AutoScales returns the scales the frame would choose for itself: the
+// redshift range and the intensity maximum span the values of the
+// pixels that see the disk, or with the scene's scales.percentile p the
+// p-th to (100 − p)-th percentile of them by screen area (Percentiles);
+// the redshift range always reaches 0.95 and 1.05. A frame without
+// redshift (or line) records gets the defaults for g (or intensity).
 func AutoScales(f *pixels.Frame) Scales {
 	r := f.Res
 	sc := Scales{IDecades: 4, RMin: r.Inner, RMax: r.Disk.OuterRadius}
-	gmin, gmax := math.Inf(1), math.Inf(-1)
-	for k := 0; f.G != nil && k < f.W*f.H; k++ {
-		if v := float64(f.FirstSeenAt(f.G, k)); !math.IsNaN(v) {
-			gmin, gmax = math.Min(gmin, v), math.Max(gmax, v)
-		}
-	}
+	p := percentileOf(r.Scales)
 	sc.GMin, sc.GMax = 1/1.5, 1.5
-	if gmax > 0 {
-		sc.GMin, sc.GMax = math.Min(0.95, gmin), math.Max(1.05, gmax)
+	if lo, hi, ok := Percentiles(GSamples(nil, f), p); ok && hi > 0 {
+		sc.GMin, sc.GMax = math.Min(0.95, lo), math.Max(1.05, hi)
 	}
-	for k := 0; f.Line != nil && k < f.W*f.H; k++ {
-		if x := float64(f.TotalAt(f.Line, k)); x > sc.IMax {
-			sc.IMax = x
-		}
+	if _, hi, ok := Percentiles(IntensitySamples(nil, f), p); ok && hi > 0 {
+		sc.IMax = hi
 	}
 	if sc.IMax == 0 {
 		sc.IMax = 1
@@ -59,14 +55,26 @@ func (s Scales) complete() bool {
 	return s.GMax > 1 && s.GMin > 0 && s.GMin < 1 && s.IMax > 0 && s.IDecades > 0 && s.RMin > 0 && s.RMax > s.RMin
 }
 
-// Fill completes s with the frame's own choices where s is zero.
+// Fill completes s where it is zero: first with the scales the frame's
+// scene fixes (scene.Scales), then with the frame's own choices
+// (AutoScales), each end of a range on its own.
 func (s Scales) Fill(f *pixels.Frame) Scales {
+	fixed := FromScene(f.Res.Scales)
+	for _, q := range []struct{ v, by *float64 }{{&s.GMin, &fixed.GMin}, {&s.GMax, &fixed.GMax}, {&s.IMax, &fixed.IMax},
+		{&s.IDecades, &fixed.IDecades}, {&s.RMin, &fixed.RMin}, {&s.RMax, &fixed.RMax}, {&s.FluxMax, &fixed.FluxMax}} {
+		if *q.v == 0 {
+			*q.v = *q.by
+		}
+	}
 	if s.complete() {
 		return s
 	}
 	auto := AutoScales(f)
-	if !(s.GMax > 1) || !(s.GMin > 0 && s.GMin < 1) {
-		s.GMin, s.GMax = auto.GMin, auto.GMax
+	if !(s.GMin > 0 && s.GMin < 1) {
+		s.GMin = auto.GMin
+	}
+	if !(s.GMax > 1) {
+		s.GMax = auto.GMax
 	}
 	if s.IMax <= 0 {
 		s.IMax = auto.IMax
@@ -74,7 +82,13 @@ func (s Scales) Fill(f *pixels.Frame) Scales {
 	if s.IDecades <= 0 {
 		s.IDecades = auto.IDecades
 	}
-	if !(s.RMin > 0) || !(s.RMax > s.RMin) {
+	if !(s.RMin > 0) {
+		s.RMin = auto.RMin
+	}
+	if !(s.RMax > 0) {
+		s.RMax = auto.RMax
+	}
+	if !(s.RMax > s.RMin) {
 		s.RMin, s.RMax = auto.RMin, auto.RMax
 	}
 	if !(s.TMax > s.TMin) {

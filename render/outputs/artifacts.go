@@ -117,6 +117,9 @@ type Job struct {
 	// SpectrumTitle titles the spectrum figure (default: "line profile
 	// collapsed from the image").
 	SpectrumTitle string
+	// Note is added to the subtitle of every map figure (a sweep frame's
+	// swept values); "" adds nothing.
+	Note string
 	// Band is the located band (pixels.Frame.LocateBand), for the band
 	// artifacts.
 	Band *Band
@@ -344,7 +347,7 @@ func mapImages(arts []Artifact, idx []int, job Job, s *scratch, encode func(int,
 			encode(i, img, nil)
 			continue
 		}
-		fig, err := m.Figure(f, job.Scales, img)
+		fig, err := m.NotedFigure(f, job.Scales, img, job.Note)
 		if err != nil {
 			err = fmt.Errorf("%s figure: %w", a.Map, err)
 		}
@@ -412,7 +415,7 @@ func tableWriter(a Artifact, job Job, spec *pixels.Spectrum) func(io.Writer) err
 			return WriteCSV(w, spec, f.Res.Caption(), f.Res)
 		}
 	case Manifest:
-		return func(w io.Writer) error { return writeManifest(w, f, job.Version) }
+		return func(w io.Writer) error { return writeManifest(w, f, job.Version, job.Scales.Fill(f)) }
 	case BandJSON, BandText, BandFITS:
 		if job.Band == nil {
 			return func(io.Writer) error { return fmt.Errorf("no band was located") }

@@ -11,6 +11,7 @@ import (
 	"fmt"
 	"io"
 	"slices"
+	"strconv"
 	"strings"
 
 	"kerrscope/render/maps"
@@ -121,13 +122,38 @@ func WriteManifest(w io.Writer, s scene.Scene, version string) error {
 }
 
 // writeManifest writes the frame's effective scene (WriteManifest), with
-// the ClipNote as a comment when the window clips the disk.
-func writeManifest(w io.Writer, f *pixels.Frame, version string) error {
+// the ClipNote as a comment when the window clips the disk and the colour
+// scales sc used, as comments in the scene's keys (ScalesNote).
+func writeManifest(w io.Writer, f *pixels.Frame, version string, sc maps.Scales) error {
 	note := ""
 	if f.Clip != nil {
 		note = "# " + ClipNote(*f.Clip) + "\n"
 	}
-	return writeManifestNote(w, f.Res.Scene, version, note)
+	return writeManifestNote(w, f.Res.Scene, version, note+ScalesNote(f.Res.Scales, sc))
+}
+
+// ScalesNote returns the colour scales sc of a run as TOML comments:
+// the [scales] keys with the values used, which the scene (fixed) either
+// gave or left to the program. A run of the same scene chooses the same
+// values again; copied into [scales] they fix them for another scene.
+func ScalesNote(fixed scene.Scales, sc maps.Scales) string {
+	p := 0.0
+	if fixed.Percentile != nil {
+		p = *fixed.Percentile
+	}
+	num := func(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
+	var b strings.Builder
+	fmt.Fprintf(&b, "# colour scales used (percentile %s); to fix them for another scene, copy into [scales]:\n", num(p))
+	for _, kv := range []struct {
+		key string
+		v   float64
+	}{{"g_min", sc.GMin}, {"g_max", sc.GMax}, {"intensity_max", sc.IMax}, {"intensity_decades", sc.IDecades},
+		{"radius_min", sc.RMin}, {"radius_max", sc.RMax}, {"flux_max", sc.FluxMax}} {
+		if kv.v > 0 {
+			fmt.Fprintf(&b, "#   %s = %s\n", kv.key, num(kv.v))
+		}
+	}
+	return b.String()
 }
 
 func writeManifestNote(w io.Writer, s scene.Scene, version, note string) error {

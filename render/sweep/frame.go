@@ -41,8 +41,8 @@ func (p *Plan) writeFrame(ctx context.Context, lk *outputs.DirLock, pt Point, sc
 	if err != nil {
 		return nil, nil, err
 	}
-	job := outputs.Job{Frame: f, Scales: sc, Version: version, Spectrum: spec,
-		SpectrumTitle: fmt.Sprintf("line profile collapsed from the image, frame %d of %d", pt.Index, len(p.Points))}
+	job := outputs.Job{Frame: f, Scales: sc, Version: version, Spectrum: spec, Note: p.figureNote(pt.Values),
+		SpectrumTitle: fmt.Sprintf("line profile collapsed from the image, frame %d of %d: %s", pt.Index, len(p.Points), p.valueLabel(pt.Values))}
 	files, err := p.commitFrame(ctx, lk, pt.Index, func(put outputs.Put) error {
 		return outputs.Write(ctx, p.artifacts(pt.Index), job, put)
 	})

@@ -33,6 +33,9 @@ type MergeOptions struct {
 	// DelayMS is the time each GIF frame is shown, a multiple of 10 ms
 	// from 10 to 655350; 0 means 100.
 	DelayMS int
+	// Bare keeps the GIF frames as the palette images are, without the
+	// strip below each that shows its swept values and the colour bar.
+	Bare bool
 }
 
 // Merge reads every shard manifest in dir, checks that they describe one
@@ -125,7 +128,7 @@ func Merge(ctx context.Context, dir string, opt MergeOptions) ([]string, error) 
 		if err := ctx.Err(); err != nil {
 			return fail(err)
 		}
-		anim, err := p.animation(m, delay/10)
+		anim, err := p.animation(ctx, m, delay/10, sc, opt.Bare)
 		if err != nil {
 			return fail(err)
 		}
@@ -201,16 +204,27 @@ func (p *Plan) checkComplete(ms []*manifest) error {
 }
 
 // animation assembles the palette images of map m into a looping GIF
-// with delay centiseconds per frame.
-func (p *Plan) animation(m string, delay int) (*gif.GIF, error) {
+// with delay centiseconds per frame; unless bare, each frame gets a strip
+// below it with its swept values and the map's colour bar for the
+// sweep's scales sc (labelledFrame).
+func (p *Plan) animation(ctx context.Context, m string, delay int, sc maps.Scales, bare bool) (*gif.GIF, error) {
 	mp, err := maps.Lookup(m)
 	if err != nil {
 		return nil, err
 	}
 	pal := mp.Palette()
 	r := p.Points[0].Scene
-	anim := &gif.GIF{Config: image.Config{ColorModel: pal, Width: r.Screen.Width, Height: r.Screen.Height}}
+	w, h := r.Screen.Width, r.Screen.Height
+	framePal := pal
+	if !bare {
+		h += stripHeight(w)
+		framePal = stripPalette(pal)
+	}
+	anim := &gif.GIF{Config: image.Config{ColorModel: framePal, Width: w, Height: h}}
 	for _, pt := range p.Points {
+		if err := ctx.Err(); err != nil {
+			return nil, err
+		}
 		name := p.framePrefix(pt.Index) + "-" + m + "-indexed.png"
 		data, err := os.ReadFile(filepath.Join(p.Dir(), name))
 		if err != nil {
@@ -225,6 +239,15 @@ func (p *Plan) animation(m string, delay int) (*gif.GIF, error) {
 			return nil, fmt.Errorf("%s is not a %d×%d palette image of the %s map", name, r.Screen.Width, r.Screen.Height, m)
 		}
 		pi.Palette = pal
+		if !bare {
+			bar, err := p.barFor(ctx, mp, pt, sc)
+			if err != nil {
+				return nil, fmt.Errorf("frame %d colour bar: %w", pt.Index, err)
+			}
+			if pi, err = labelledFrame(pi, framePal, p.valueLabel(pt.Values), bar); err != nil {
+				return nil, err
+			}
+		}
 		anim.Image = append(anim.Image, pi)
 		anim.Delay = append(anim.Delay, delay)
 	}
@@ -270,7 +293,8 @@ func (p *Plan) spectraPlots(sc maps.Scales) ([]namedPlot, error) {
 		}
 	}
 	base := p.Points[0].Scene
-	bar := &figure.ColorBar{Label: a.Key}
+	q := scene.QuantityOf(a.Key)
+	bar := &figure.ColorBar{Label: q.Title()}
 	for i := 0; i < 256; i++ {
 		bar.Colors = append(bar.Colors, colormap.Sequential.At(seqLo+(seqHi-seqLo)*float64(i)/255))
 	}
@@ -285,14 +309,14 @@ func (p *Plan) spectraPlots(sc maps.Scales) ([]namedPlot, error) {
 	for j, g := range groups {
 		pl := figure.Plot{
 			Title:    "line profiles over the sweep",
-			Subtitle: fmt.Sprintf("%d frames, %s from %s to %s (%s spacing)", len(g), a.Key, formatValue(a.From), formatValue(a.To), a.Spacing),
+			Subtitle: fmt.Sprintf("%d frames, %s (%s spacing)", len(g), rangeText(q, a.From, a.To), a.Spacing),
 			XLabel:   "observed energy E [keV]",
 			YLabel:   "photon flux density F_E [keV⁻¹, relative]",
 			YMax:     sc.FluxMax,
 			Bar:      bar,
 		}
 		if len(p.Axes) == 2 {
-			pl.Subtitle += fmt.Sprintf("; %s = %s", p.Axes[1].Key, formatValue(g[0].Values[1]))
+			pl.Subtitle += "; " + scene.QuantityOf(p.Axes[1].Key).Value(formatValue(g[0].Values[1]))
 		}
 		if !slices.Contains([]string{a.Key, axisKey(p, 1)}, "emission.line_kev") {
 			pl.VLines = []figure.VLine{{X: base.Emission.LineKeV, Label: fmt.Sprintf("%g keV rest", base.Emission.LineKeV), Color: color.RGBA{0x60, 0x60, 0x60, 0xff}, Dashed: true}}
@@ -323,6 +347,20 @@ func (p *Plan) spectraPlots(sc maps.Scales) ([]namedPlot, error) {
 		out = append(out, namedPlot{name, pl})
 	}
 	return out, nil
+}
+
+// rangeText describes an axis's range in words, e.g. "spin a from 0.5 to
+// 0.999", "inclination i from 20 to 80 deg".
+func rangeText(q scene.Quantity, from, to float64) string {
+	t := q.Name
+	if q.Symbol != "" {
+		t += " " + q.Symbol
+	}
+	t += " from " + formatValue(from) + " to " + formatValue(to)
+	if q.Unit != "" {
+		t += " " + q.Unit
+	}
+	return t
 }
 
 // axisKey returns the key of axis i, or "".

@@ -41,7 +41,7 @@ func TestMerge(t *testing.T) {
 			}
 		}
 	}
-	paths, err := Merge(context.Background(), dir, MergeOptions{DelayMS: 250})
+	paths, err := Merge(context.Background(), dir, MergeOptions{DelayMS: 250, Bare: true})
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -68,6 +68,14 @@ func NewPlan(base scene.Scene, axes []Axis, fixed maps.Scales) (*Plan, error) {
 	if strings.TrimSpace(base.Output.Directory) == "" {
 		return nil, errors.New("output.directory is empty")
 	}
+	// The scene's fixed scales fill what fixed leaves zero.
+	fromScene := maps.FromScene(base.Scales)
+	for _, q := range []struct{ v, by *float64 }{{&fixed.GMin, &fromScene.GMin}, {&fixed.GMax, &fromScene.GMax}, {&fixed.IMax, &fromScene.IMax},
+		{&fixed.IDecades, &fromScene.IDecades}, {&fixed.RMin, &fromScene.RMin}, {&fixed.RMax, &fromScene.RMax}, {&fixed.FluxMax, &fromScene.FluxMax}} {
+		if *q.v == 0 {
+			*q.v = *q.by
+		}
+	}
 	if err := validateScales(fixed); err != nil {
 		return nil, err
 	}
@@ -120,6 +128,33 @@ func (p *Plan) label(values []float64) string {
 	var parts []string
 	for i, v := range values {
 		parts = append(parts, p.Axes[i].Key+" = "+formatValue(v))
+	}
+	return strings.Join(parts, ", ")
+}
+
+// valueLabel writes swept values as figures show them: each axis's
+// symbol, value (6 significant digits) and unit (scene.QuantityOf),
+// e.g. "a = 0.998, i = 60°".
+func (p *Plan) valueLabel(values []float64) string {
+	var parts []string
+	for i, v := range values {
+		parts = append(parts, scene.QuantityOf(p.Axes[i].Key).Value(strconv.FormatFloat(v, 'g', 6, 64)))
+	}
+	return strings.Join(parts, ", ")
+}
+
+// captionKeys are the scene values the scene's caption on every figure
+// shows already (scene.Resolved.Caption).
+var captionKeys = []string{"black_hole.spin", "observer.inclination_deg", "disk.inner_radius", "disk.outer_radius"}
+
+// figureNote is the swept values a frame's figures add to the scene's
+// caption: those it does not show (valueLabel).
+func (p *Plan) figureNote(values []float64) string {
+	var parts []string
+	for i, v := range values {
+		if !slices.Contains(captionKeys, p.Axes[i].Key) {
+			parts = append(parts, scene.QuantityOf(p.Axes[i].Key).Value(strconv.FormatFloat(v, 'g', 6, 64)))
+		}
 	}
 	return strings.Join(parts, ", ")
 }
@@ -179,9 +214,8 @@ const (
 // spans every frame's emitting disk; the redshift range, the intensity
 // maximum and the spectrum's flux maximum come from up to prepassFrames
 // frames (ends and corners included) rendered at most prepassWidth pixels
-// across over the same window, widened by a margin and rounded outward
-// to two significant digits, so that every process of a sweep computes
-// the same values.
+// across over the same window (prepassScales), so that every process of
+// a sweep computes the same values.
 func (p *Plan) chooseScales(ctx context.Context) (maps.Scales, error) {
 	if p.spot != nil {
 		return p.spotScales(ctx)
@@ -206,7 +240,8 @@ func (p *Plan) chooseScales(ctx context.Context) (maps.Scales, error) {
 	if sc.GMin != 0 && sc.GMax != 0 && sc.IMax != 0 && sc.FluxMax != 0 {
 		return sc, nil
 	}
-	gmin, gmax, imax, fmax := math.Inf(1), math.Inf(-1), 0.0, 0.0
+	var gs, is []maps.Sample
+	fmax := 0.0
 	for _, k := range p.prepassIndices() {
 		r := p.Points[k].Scene
 		w := min(r.Screen.Width, prepassWidth)
@@ -223,16 +258,7 @@ func (p *Plan) chooseScales(ctx context.Context) (maps.Scales, error) {
 		if err != nil {
 			return sc, err
 		}
-		for _, g := range f.FirstSeen(f.G) {
-			if v := float64(g); !math.IsNaN(v) {
-				gmin, gmax = math.Min(gmin, v), math.Max(gmax, v)
-			}
-		}
-		for _, v := range f.Total(f.Line) {
-			if x := float64(v); x > imax { // NaN (no disk) is never larger
-				imax = x
-			}
-		}
+		gs, is = maps.GSamples(gs, f), maps.IntensitySamples(is, f)
 		// The spectrum's axis is in the units its figure shows: photons
 		// cm⁻² s⁻¹ keV⁻¹ when the scene is physical, else relative.
 		unit := r.SpectrumPerUnit()
@@ -244,21 +270,48 @@ func (p *Plan) chooseScales(ctx context.Context) (maps.Scales, error) {
 			fmax = math.Max(fmax, v*unit/spec.Width())
 		}
 	}
+	return prepassScales(sc, gs, is, fmax, p.Percentile()), nil
+}
+
+// Percentile is the percentile of the pre-pass (prepassScales): the
+// scene's scales.percentile, else scene.DefaultSweepPercentile.
+func (p *Plan) Percentile() float64 {
+	if v := p.Base.Scales.Percentile; v != nil {
+		return *v
+	}
+	return scene.DefaultSweepPercentile
+}
+
+// prepassScales completes the zero fields of sc from the pre-pass: the
+// redshift factors gs and line intensities is of the pixels that see the
+// disk, pooled over every pre-pass frame and weighted by screen area, and
+// the largest spectrum value fmax. The redshift range spans the pct-th to
+// (100 − pct)-th percentile of gs (maps.Percentiles), widened by 3 % and
+// reaching at least 0.95 to 1.05; the intensity maximum is 1.5 times the
+// (100 − pct)-th percentile of is (room for brighter frames between the
+// pre-pass ones); the flux maximum is 1.1 fmax. Each is rounded outward to
+// two significant digits. A pooled percentile, unlike the smallest value,
+// is not moved by a few pixels of light from just outside the horizon:
+// with pct = 0.5, up to 0.5 % of the disk's area at each end may lie off
+// the scale (drawn in its end colours).
+func prepassScales(sc maps.Scales, gs, is []maps.Sample, fmax, pct float64) maps.Scales {
+	gmin, gmax, okG := maps.Percentiles(gs, pct)
+	_, imax, okI := maps.Percentiles(is, pct)
 	if sc.GMin == 0 {
 		sc.GMin = 1 / 1.5
-		if gmin <= gmax {
+		if okG && gmin > 0 {
 			sc.GMin = roundSig(math.Min(0.95, gmin*0.97), false)
 		}
 	}
 	if sc.GMax == 0 {
 		sc.GMax = 1.5
-		if gmin <= gmax {
+		if okG && gmax > 0 {
 			sc.GMax = roundSig(math.Max(1.05, gmax*1.03), true)
 		}
 	}
 	if sc.IMax == 0 {
 		sc.IMax = 1
-		if imax > 0 {
+		if okI && imax > 0 {
 			sc.IMax = roundSig(imax*1.5, true)
 		}
 	}
@@ -268,7 +321,7 @@ func (p *Plan) chooseScales(ctx context.Context) (maps.Scales, error) {
 			sc.FluxMax = roundSig(fmax*1.1, true)
 		}
 	}
-	return sc, nil
+	return sc
 }
 
 // prepassIndices returns up to prepassFrames frame indices spread evenly
