@@ -92,9 +92,9 @@ type Screen struct {
 
 // Disk is the thin equatorial disk.
 type Disk struct {
-	// InnerRadius is the inner edge in M; nil means the ISCO. Inside the
-	// ISCO gas shines only when Plunging is set (otherwise the edge is
-	// raised to the ISCO).
+	// InnerRadius is the inner edge in M; nil means the ISCO, or the
+	// horizon when Plunging is set. Inside the ISCO gas shines only when
+	// Plunging is set (otherwise the edge is raised to the ISCO).
 	InnerRadius *float64 `toml:"inner_radius,omitempty"`
 	OuterRadius float64  `toml:"outer_radius"`
 	Opaque      bool     `toml:"opaque"` // stop at the first landing; else every crossing adds light
@@ -618,6 +618,12 @@ func (s Scene) Resolve() (Resolved, error) {
 	r.Horizon = raytrace.Horizon(a)
 	r.ISCO = raytrace.ISCO(a)
 	r.Inner = r.ISCO
+	if d.Plunging {
+		// Plunging gas fills the whole region inside the ISCO unless an
+		// inner edge is given: the disk reaches the horizon (crossings
+		// must lie outside it, r > r₊, where Gas.Redshift is defined).
+		r.Inner = r.Horizon
+	}
 	if d.InnerRadius != nil {
 		in := *d.InnerRadius
 		if !(in > r.Horizon && in < MaxLength) {
@@ -634,6 +640,8 @@ func (s Scene) Resolve() (Resolved, error) {
 		}
 		inner := fmt.Sprintf("the inner edge %.6g M", r.Inner)
 		switch {
+		case d.InnerRadius == nil && d.Plunging:
+			inner = fmt.Sprintf("the inner edge, the horizon at %.6g M (disk.plunging without disk.inner_radius)", r.Inner)
 		case d.InnerRadius == nil:
 			inner = fmt.Sprintf("the inner edge, the ISCO at %.6g M", r.Inner)
 		case r.Inner != *d.InnerRadius:
