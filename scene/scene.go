@@ -30,6 +30,7 @@ type Scene struct {
 	Band     Band     `toml:"band"`
 	Spot     Spot     `toml:"spot"`
 	Output   Output   `toml:"output"`
+	Thermal  Thermal  `toml:"thermal"`
 
 	// given holds the keys set by the user (scene file or flags); see
 	// markGiven. It is not part of the scene's TOML.
@@ -174,6 +175,7 @@ func Default() Scene {
 		Refine:   Refine{Depth: 0, TolR: 0.05, TolG: 0.01},
 		Band:     Band{RMin: "isco", RMax: "isco*1.1"},
 		Spot:     DefaultSpot(),
+		Thermal:  Thermal{ColorCorrection: DefaultColorCorrection, Bins: 200},
 		Output: Output{Directory: "kerrscope-out", Maps: append([]string(nil), defaultMaps...),
 			Formats: append([]string(nil), FormatNames...), IntensityScale: "log"},
 	}
@@ -423,6 +425,9 @@ type Resolved struct {
 	// photon number intensity (resolvePhotonRate in flux.go), when
 	// emission.line_luminosity_erg_s is given (else 0).
 	PhotonRate, PhotonNorm float64
+	// Thermal is the disk's thermal continuum, when the scene gives an
+	// accretion rate ([thermal]; else off).
+	Thermal ThermalDisk
 	// AutoField is set when the scene leaves the field of view automatic
 	// (Screen.FieldOfView = AutoField). Resolve then gives the window a
 	// provisional field, ImageBox around the hole as seen from the centre,
@@ -684,6 +689,9 @@ func (s Scene) Resolve() (Resolved, error) {
 	}
 	r.Limb = Limb{Kind: lk}
 	if err := r.resolvePhotonRate(); err != nil {
+		return r, err
+	}
+	if err := r.resolveThermal(); err != nil {
 		return r, err
 	}
 	if r.Gas, err = NewGas(a); err != nil {
