@@ -140,14 +140,22 @@ type Output struct {
 
 // Map names and format names accepted in Output.
 var (
-	MapNames    = []string{"redshift", "intensity", "radius", "order", "shadow", "delay", "rings"}
+	MapNames    = []string{"redshift", "intensity", "radius", "order", "shadow", "delay", "rings", "temperature", "color-temperature"}
 	FormatNames = []string{"png", "bare", "fits", "csv"}
 	// defaultMaps are the maps rendered when the scene names none: all
 	// but delay, which doubles the cost of every photon (time delays).
 	defaultMaps = []string{"redshift", "intensity", "radius", "order", "shadow"}
 	// TimingMaps are the maps that need each crossing's time delay.
 	TimingMaps = []string{"delay"}
+	// ThermalMaps are the maps that need a thermal disk ([thermal]).
+	ThermalMaps = []string{"temperature", "color-temperature"}
 )
+
+// HasThermal reports whether the scene asks for the disk's thermal
+// continuum (an accretion rate given in [thermal]).
+func (s Scene) HasThermal() bool {
+	return s.Thermal.EddingtonRatio != nil || s.Thermal.AccretionRateGS != nil
+}
 
 // NeedsTiming reports whether the scene asks for a map that needs the time
 // delays of the crossings (TimingMaps).
@@ -754,6 +762,13 @@ func (s Scene) Resolve() (Resolved, error) {
 	}
 	if err := checkNames("output.maps", o.Maps, MapNames); err != nil {
 		return r, err
+	}
+	for _, m := range o.Maps {
+		for _, t := range ThermalMaps {
+			if m == t && !r.Thermal.On {
+				return r, fieldErr("output.maps", strconv.Quote(m), "needs a thermal disk: give thermal.eddington_ratio or thermal.accretion_rate_g_s (with mass and distance)")
+			}
+		}
 	}
 	if s.NeedsTiming() && s.Refine.Depth > 0 {
 		return r, fmt.Errorf("output.maps includes delay with refine.depth = %d: the adaptive sampler does not record time delays; use refine.depth = 0", s.Refine.Depth)

@@ -106,3 +106,34 @@ func (f *Frame) Continuum() (Continuum, error) {
 	}
 	return c, nil
 }
+
+// TemperatureAt returns the effective temperature T(r) in K of the disk
+// at the source of the first image order seen at pixel k
+// (scene.ThermalDisk.TemperatureK), NaN where no order is seen or the
+// disk there does not shine (inside the ISCO, or no thermal disk). The
+// frame must hold R.
+func (f *Frame) TemperatureAt(k int) float32 {
+	o := f.First[k]
+	if o < 0 || f.R == nil {
+		return float32(math.NaN())
+	}
+	if t := f.Res.Thermal.TemperatureK(float64(f.R[o][k])); t > 0 {
+		return float32(t)
+	}
+	return float32(math.NaN())
+}
+
+// ColorTemperatureAt returns g k f_col T(r) in keV, the colour
+// temperature of the blackbody the observer sees at pixel k from the
+// first image order seen (its spectrum is n_E(E; g f_col T), Continuum),
+// NaN where TemperatureAt is. The frame must hold R and G.
+func (f *Frame) ColorTemperatureAt(k int) float32 {
+	o := f.First[k]
+	if o < 0 || f.R == nil || f.G == nil {
+		return float32(math.NaN())
+	}
+	if kt := f.Res.Thermal.ColorKeV(float64(f.R[o][k])); kt > 0 {
+		return float32(float64(f.G[o][k]) * kt)
+	}
+	return float32(math.NaN())
+}
