@@ -21,21 +21,21 @@ import (
 type Kind uint8
 
 const (
-	FITSMaps       Kind = iota + 1 // every map as a FITS image extension (maps.fits)
-	SpectrumCSV                    // the collapsed line spectrum (spectrum.csv)
-	MapFigure                      // decorated figure of one map (<map>.png)
-	MapBare                        // pixel-exact PNG of one map (<map>-bare.png)
-	MapIndexed                     // 8-bit palette PNG of one map (<map>-indexed.png), the source of sweep GIFs
-	SpectrumFigure                 // plot of the spectrum (spectrum.png)
-	BandJSON                       // band report for scripts (band.json)
-	BandText                       // band report for people (band.txt)
-	BandFITS                       // band masks per image order (band.fits)
-	BandBare                       // pixel-exact band image (band-bare.png)
-	BandFigure                     // decorated band figure (band.png)
-	BandRedshift                   // redshift factor of the band's light (band-redshift.png)
-	Manifest                       // the effective scene (kerrscope-run.toml)
-	ContinuumCSV                   // the collapsed thermal continuum (continuum.csv)
-	ContinuumFigure                // plot of the continuum (continuum.png)
+	FITSMaps        Kind = iota + 1 // every map as a FITS image extension (maps.fits)
+	SpectrumCSV                     // the collapsed line spectrum (spectrum.csv)
+	MapFigure                       // decorated figure of one map (<map>.png)
+	MapBare                         // pixel-exact PNG of one map (<map>-bare.png)
+	MapIndexed                      // 8-bit palette PNG of one map (<map>-indexed.png), the source of sweep GIFs
+	SpectrumFigure                  // plot of the spectrum (spectrum.png)
+	BandJSON                        // band report for scripts (band.json)
+	BandText                        // band report for people (band.txt)
+	BandFITS                        // band masks per image order (band.fits)
+	BandBare                        // pixel-exact band image (band-bare.png)
+	BandFigure                      // decorated band figure (band.png)
+	BandRedshift                    // redshift factor of the band's light (band-redshift.png)
+	Manifest                        // the effective scene (kerrscope-run.toml)
+	ContinuumCSV                    // the collapsed thermal continuum (continuum.csv)
+	ContinuumFigure                 // plot of the continuum (continuum.png)
 )
 
 // Artifact is one file a run writes.
