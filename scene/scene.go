@@ -151,11 +151,6 @@ var (
 	ThermalMaps = []string{"temperature", "color-temperature"}
 )
 
-// HasThermal reports whether the scene asks for the disk's thermal
-// continuum (an accretion rate given in [thermal]).
-func (s Scene) HasThermal() bool {
-	return s.Thermal.EddingtonRatio != nil || s.Thermal.AccretionRateGS != nil
-}
 
 // NeedsTiming reports whether the scene asks for a map that needs the time
 // delays of the crossings (TimingMaps).

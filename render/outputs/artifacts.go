@@ -52,7 +52,7 @@ type Set struct {
 	Indexed  bool   // an 8-bit palette PNG of every map
 	Band     bool   // the band report, masks and figures
 	Manifest bool   // kerrscope-run.toml
-	// Thermal: the scene has a thermal disk (scene.Scene.HasThermal), whose
+	// Thermal: the scene has a thermal disk (scene.Resolved.Thermal.On), whose
 	// continuum is written with the spectrum (csv, and its plot with png).
 	Thermal bool
 }
