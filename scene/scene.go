@@ -151,7 +151,6 @@ var (
 	ThermalMaps = []string{"temperature", "color-temperature"}
 )
 
-
 // NeedsTiming reports whether the scene asks for a map that needs the time
 // delays of the crossings (TimingMaps).
 func (s Scene) NeedsTiming() bool {
