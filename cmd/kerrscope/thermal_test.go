@@ -53,6 +53,9 @@ func TestSweepThermalKeys(t *testing.T) {
 	if !(b0 > 0) || math.Abs(b2/b0/100-1) > 1e-6 {
 		t.Errorf("bolometric flux at Eddington ratios 0.01 and 1: %g and %g, ratio %g, want 100", b0, b2, b2/b0)
 	}
+	if code, out, errs := runCLI("sweep-merge", "--out", dir); code != 0 || !strings.Contains(out, "sweep-continua.png") {
+		t.Errorf("merge: exit %d\n%s%s", code, out, errs)
+	}
 	dir = filepath.Join(t.TempDir(), "fcol")
 	if code, out, errs := runCLI(append([]string{"sweep", "--vary", "fcol=1.5:2.5:2", "--eddington-ratio", "0.1",
 		"--continuum-emin", "0.01", "--continuum-emax", "50", "--continuum-bins", "2000", "--out", dir}, common...)...); code != 0 {

@@ -27,7 +27,7 @@ func WriteContinuumCSV(w io.Writer, c *pixels.Continuum, title string, r scene.R
 	bw := bufio.NewWriter(w)
 	fmt.Fprintf(bw, "# %s\n", title)
 	fmt.Fprintf(bw, "# thermal continuum of the Novikov-Thorne disk (Page-Thorne flux), colour-corrected blackbody, f_col = %g, limb law %s\n", th.FCol, r.Emission.Limb)
-	fmt.Fprintf(bw, "# accretion rate %.10g g/s; efficiency 1 - E_isco = %.10g; luminosity emitted %.10g erg/s = %.6g L_Edd (both faces, %g to %g M)\n",
+	fmt.Fprintf(bw, "# accretion rate %.10g g/s; efficiency 1 - E_isco = %.10g; luminosity emitted %.10g erg/s = %.6g L_Edd (both faces, %.6g to %.6g M)\n",
 		th.MdotGS, th.Efficiency, th.EmittedLuminosity(), th.EmittedLuminosity()/scene.EddingtonLuminosity(th.GravRadiusCm), th.Inner, th.Outer)
 	fmt.Fprintf(bw, "# distance %.10g cm; pixel solid angle %.10g sr\n", r.DistanceCm, r.PixelSolidAngle())
 	fmt.Fprintf(bw, "# bolometric flux in the image %.10g erg cm^-2 s^-1 (all energies)\n", c.BolometricTotal())
