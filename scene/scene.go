@@ -31,6 +31,7 @@ type Scene struct {
 	Spot     Spot     `toml:"spot"`
 	Output   Output   `toml:"output"`
 	Scales   Scales   `toml:"scales,omitempty"`
+	Thermal  Thermal  `toml:"thermal"`
 
 	// given holds the keys set by the user (scene file or flags); see
 	// markGiven. It is not part of the scene's TOML.
@@ -93,9 +94,9 @@ type Screen struct {
 
 // Disk is the thin equatorial disk.
 type Disk struct {
-	// InnerRadius is the inner edge in M; nil means the ISCO. Inside the
-	// ISCO gas shines only when Plunging is set (otherwise the edge is
-	// raised to the ISCO).
+	// InnerRadius is the inner edge in M; nil means the ISCO, or the
+	// horizon when Plunging is set. Inside the ISCO gas shines only when
+	// Plunging is set (otherwise the edge is raised to the ISCO).
 	InnerRadius *float64 `toml:"inner_radius,omitempty"`
 	OuterRadius float64  `toml:"outer_radius"`
 	Opaque      bool     `toml:"opaque"` // stop at the first landing; else every crossing adds light
@@ -140,13 +141,15 @@ type Output struct {
 
 // Map names and format names accepted in Output.
 var (
-	MapNames    = []string{"redshift", "intensity", "radius", "order", "shadow", "delay", "rings"}
+	MapNames    = []string{"redshift", "intensity", "radius", "order", "shadow", "delay", "rings", "temperature", "color-temperature"}
 	FormatNames = []string{"png", "bare", "fits", "csv"}
 	// defaultMaps are the maps rendered when the scene names none: all
 	// but delay, which doubles the cost of every photon (time delays).
 	defaultMaps = []string{"redshift", "intensity", "radius", "order", "shadow"}
 	// TimingMaps are the maps that need each crossing's time delay.
 	TimingMaps = []string{"delay"}
+	// ThermalMaps are the maps that need a thermal disk ([thermal]).
+	ThermalMaps = []string{"temperature", "color-temperature"}
 )
 
 // NeedsTiming reports whether the scene asks for a map that needs the time
@@ -175,6 +178,7 @@ func Default() Scene {
 		Refine:   Refine{Depth: 0, TolR: 0.05, TolG: 0.01},
 		Band:     Band{RMin: "isco", RMax: "isco*1.1"},
 		Spot:     DefaultSpot(),
+		Thermal:  Thermal{ColorCorrection: DefaultColorCorrection, Bins: 200},
 		Output: Output{Directory: "kerrscope-out", Maps: append([]string(nil), defaultMaps...),
 			Formats: append([]string(nil), FormatNames...), IntensityScale: "log"},
 	}
@@ -424,6 +428,9 @@ type Resolved struct {
 	// photon number intensity (resolvePhotonRate in flux.go), when
 	// emission.line_luminosity_erg_s is given (else 0).
 	PhotonRate, PhotonNorm float64
+	// Thermal is the disk's thermal continuum, when the scene gives an
+	// accretion rate ([thermal]; else off).
+	Thermal ThermalDisk
 	// AutoField is set when the scene leaves the field of view automatic
 	// (Screen.FieldOfView = AutoField). Resolve then gives the window a
 	// provisional field, ImageBox around the hole as seen from the centre,
@@ -619,6 +626,12 @@ func (s Scene) Resolve() (Resolved, error) {
 	r.Horizon = raytrace.Horizon(a)
 	r.ISCO = raytrace.ISCO(a)
 	r.Inner = r.ISCO
+	if d.Plunging {
+		// Plunging gas fills the whole region inside the ISCO unless an
+		// inner edge is given: the disk reaches the horizon (crossings
+		// must lie outside it, r > r₊, where Gas.Redshift is defined).
+		r.Inner = r.Horizon
+	}
 	if d.InnerRadius != nil {
 		in := *d.InnerRadius
 		if !(in > r.Horizon && in < MaxLength) {
@@ -635,6 +648,8 @@ func (s Scene) Resolve() (Resolved, error) {
 		}
 		inner := fmt.Sprintf("the inner edge %.6g M", r.Inner)
 		switch {
+		case d.InnerRadius == nil && d.Plunging:
+			inner = fmt.Sprintf("the inner edge, the horizon at %.6g M (disk.plunging without disk.inner_radius)", r.Inner)
 		case d.InnerRadius == nil:
 			inner = fmt.Sprintf("the inner edge, the ISCO at %.6g M", r.Inner)
 		case r.Inner != *d.InnerRadius:
@@ -677,6 +692,9 @@ func (s Scene) Resolve() (Resolved, error) {
 	}
 	r.Limb = Limb{Kind: lk}
 	if err := r.resolvePhotonRate(); err != nil {
+		return r, err
+	}
+	if err := r.resolveThermal(); err != nil {
 		return r, err
 	}
 	if r.Gas, err = NewGas(a); err != nil {
@@ -739,6 +757,13 @@ func (s Scene) Resolve() (Resolved, error) {
 	}
 	if err := checkNames("output.maps", o.Maps, MapNames); err != nil {
 		return r, err
+	}
+	for _, m := range o.Maps {
+		for _, t := range ThermalMaps {
+			if m == t && !r.Thermal.On {
+				return r, fieldErr("output.maps", strconv.Quote(m), "needs a thermal disk: give thermal.eddington_ratio or thermal.accretion_rate_g_s (with mass and distance)")
+			}
+		}
 	}
 	if s.NeedsTiming() && s.Refine.Depth > 0 {
 		return r, fmt.Errorf("output.maps includes delay with refine.depth = %d: the adaptive sampler does not record time delays; use refine.depth = 0", s.Refine.Depth)

@@ -107,6 +107,16 @@ func TestInnerEdgeInsideISCO(t *testing.T) {
 	if r, _ = s.Resolve(); r.Inner != in {
 		t.Errorf("with plunging gas the edge should stay at %v, got %v", in, r.Inner)
 	}
+	// Plunging gas with no inner edge given reaches the horizon,
+	// r₊ = 1 + sqrt(1 − a²) (Bardeen, Press & Teukolsky 1972).
+	s.Disk.InnerRadius = nil
+	if r, _ = s.Resolve(); math.Abs(r.Inner-(1+math.Sqrt(1-0.81))) > 1e-12 {
+		t.Errorf("plunging gas without an inner edge: edge %v, want the horizon", r.Inner)
+	}
+	s.Disk.OuterRadius = 1.2
+	if _, err := s.Resolve(); err == nil || !strings.Contains(err.Error(), "the horizon") {
+		t.Errorf("outer edge inside the horizon-reaching disk: error %v, want it to name the horizon", err)
+	}
 }
 
 func TestManifestRoundTrip(t *testing.T) {

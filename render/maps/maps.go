@@ -1,5 +1,6 @@
 // Package maps is the table of the renderer's maps: for each map (redshift,
-// intensity, radius, order, shadow, delay, rings) the quantity it shows, how a pixel is
+// intensity, radius, order, shadow, delay, rings, temperature,
+// color-temperature) the quantity it shows, how a pixel is
 // placed on its colour scale, its colours, its 8-bit palette, and its
 // decorated figure (title, colour bar, contours, overlays). Adding a map is
 // adding one entry to the table in this file (and its name to
@@ -109,6 +110,18 @@ var table = []Map{
 		palette:  orderPalette,
 		decorate: ringsBar,
 		grid:     ringsGrid,
+	},
+	{
+		Name: "temperature", Title: "disk effective temperature at the first image seen", Scale: colormap.Sequential, needs: pixels.KeepR,
+		scale:    &onScaleMap{value: pixelRow(temperatureAt), position: logPosition(temperatureAt)},
+		palette:  scalePalette(colormap.Sequential),
+		decorate: logBar(temperatureAt, "T_eff [K] (Page–Thorne flux)"),
+	},
+	{
+		Name: "color-temperature", Title: "observed colour temperature g f_col kT", Scale: colormap.Sequential, needs: pixels.KeepR | pixels.KeepG,
+		scale:    &onScaleMap{value: pixelRow(colorTemperatureAt), position: logPosition(colorTemperatureAt)},
+		palette:  scalePalette(colormap.Sequential),
+		decorate: logBar(colorTemperatureAt, "g f_col kT [keV]"),
 	},
 }
 

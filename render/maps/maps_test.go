@@ -36,6 +36,8 @@ func TestIndexedMatchesBare(t *testing.T) {
 	s := scene.Default()
 	s.Screen.Width, s.Screen.Height, s.Screen.FieldOfView = 48, 40, 40
 	s.Observer.InclinationDeg = 75
+	mass, dist, edd := 10.0, 8.0, 0.1 // a thermal disk, for the temperature maps
+	s.Hole.MassSolar, s.Hole.DistanceKpc, s.Thermal.EddingtonRatio = &mass, &dist, &edd
 	s.Output.Maps = scene.MapNames
 	r, err := s.Resolve()
 	if err != nil {
@@ -54,7 +56,7 @@ func TestIndexedMatchesBare(t *testing.T) {
 		}
 		bare := m.Image(f, sc)
 		idx := m.Indexed(f, sc)
-		continuous := name == "redshift" || name == "intensity" || name == "radius" || name == "delay"
+		continuous := name == "redshift" || name == "intensity" || name == "radius" || name == "delay" || name == "temperature" || name == "color-temperature"
 		seen := map[uint8]bool{}
 		for k := 0; k < f.W*f.H; k++ {
 			x, y := k%f.W, k/f.W

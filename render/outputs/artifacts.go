@@ -21,19 +21,21 @@ import (
 type Kind uint8
 
 const (
-	FITSMaps       Kind = iota + 1 // every map as a FITS image extension (maps.fits)
-	SpectrumCSV                    // the collapsed line spectrum (spectrum.csv)
-	MapFigure                      // decorated figure of one map (<map>.png)
-	MapBare                        // pixel-exact PNG of one map (<map>-bare.png)
-	MapIndexed                     // 8-bit palette PNG of one map (<map>-indexed.png), the source of sweep GIFs
-	SpectrumFigure                 // plot of the spectrum (spectrum.png)
-	BandJSON                       // band report for scripts (band.json)
-	BandText                       // band report for people (band.txt)
-	BandFITS                       // band masks per image order (band.fits)
-	BandBare                       // pixel-exact band image (band-bare.png)
-	BandFigure                     // decorated band figure (band.png)
-	BandRedshift                   // redshift factor of the band's light (band-redshift.png)
-	Manifest                       // the effective scene (kerrscope-run.toml)
+	FITSMaps        Kind = iota + 1 // every map as a FITS image extension (maps.fits)
+	SpectrumCSV                     // the collapsed line spectrum (spectrum.csv)
+	MapFigure                       // decorated figure of one map (<map>.png)
+	MapBare                         // pixel-exact PNG of one map (<map>-bare.png)
+	MapIndexed                      // 8-bit palette PNG of one map (<map>-indexed.png), the source of sweep GIFs
+	SpectrumFigure                  // plot of the spectrum (spectrum.png)
+	BandJSON                        // band report for scripts (band.json)
+	BandText                        // band report for people (band.txt)
+	BandFITS                        // band masks per image order (band.fits)
+	BandBare                        // pixel-exact band image (band-bare.png)
+	BandFigure                      // decorated band figure (band.png)
+	BandRedshift                    // redshift factor of the band's light (band-redshift.png)
+	Manifest                        // the effective scene (kerrscope-run.toml)
+	ContinuumCSV                    // the collapsed thermal continuum (continuum.csv)
+	ContinuumFigure                 // plot of the continuum (continuum.png)
 )
 
 // Artifact is one file a run writes.
@@ -50,6 +52,9 @@ type Set struct {
 	Indexed  bool   // an 8-bit palette PNG of every map
 	Band     bool   // the band report, masks and figures
 	Manifest bool   // kerrscope-run.toml
+	// Thermal: the scene has a thermal disk (scene.Resolved.Thermal.On), whose
+	// continuum is written with the spectrum (csv, and its plot with png).
+	Thermal bool
 }
 
 // Artifacts lists the files a run of a scene with outputs o writes, in
@@ -66,6 +71,9 @@ func Artifacts(o scene.Output, s Set) []Artifact {
 	if o.Has("csv") {
 		add("spectrum.csv", SpectrumCSV, "")
 	}
+	if s.Thermal && o.Has("csv") {
+		add("continuum.csv", ContinuumCSV, "")
+	}
 	for _, m := range o.Maps {
 		if o.Has("png") {
 			add(m+".png", MapFigure, m)
@@ -79,6 +87,9 @@ func Artifacts(o scene.Output, s Set) []Artifact {
 	}
 	if o.Has("png") && o.Has("csv") {
 		add("spectrum.png", SpectrumFigure, "")
+		if s.Thermal {
+			add("continuum.png", ContinuumFigure, "")
+		}
 	}
 	if s.Band {
 		add("band.json", BandJSON, "")
@@ -150,6 +161,8 @@ func Needs(arts []Artifact) pixels.Keep {
 			k |= pixels.KeepAll
 		case SpectrumCSV, SpectrumFigure:
 			k |= pixels.KeepG | pixels.KeepLine
+		case ContinuumCSV, ContinuumFigure:
+			k |= pixels.KeepR | pixels.KeepG | pixels.KeepLine
 		case MapFigure, MapBare, MapIndexed:
 			if m, err := maps.Lookup(a.Map); err == nil {
 				k |= m.Needs()
@@ -213,6 +226,15 @@ func Write(ctx context.Context, arts []Artifact, job Job, put Put) error {
 			break
 		}
 	}
+	var cont pixels.Continuum
+	var contErr error
+	var contTask *task
+	for _, a := range arts {
+		if a.Kind == ContinuumCSV || a.Kind == ContinuumFigure {
+			contTask = add(func(*scratch) { cont, contErr = f.Continuum() })
+			break
+		}
+	}
 	encoded := make([][]byte, len(arts))
 	errs := make([]error, len(arts))
 	producer := make([]*task, len(arts))
@@ -253,6 +275,19 @@ func Write(ctx context.Context, arts []Artifact, job Job, put Put) error {
 			producer[i] = add(func(*scratch) {
 				if a.Kind == SpectrumFigure {
 					<-specTask.done // an earlier task: already running or done
+				}
+				if a.Kind == ContinuumFigure {
+					<-contTask.done // likewise
+					if contErr != nil {
+						encode(i, nil, contErr)
+						return
+					}
+					img, err := figure.DrawPlot(ContinuumPlot(&cont, "thermal continuum collapsed from the image", f.Res.Caption()))
+					if err != nil {
+						err = fmt.Errorf("continuum figure: %w", err)
+					}
+					encode(i, img, err)
+					return
 				}
 				img, err := drawImage(a, job, &spec)
 				encode(i, img, err)
@@ -306,6 +341,14 @@ func Write(ctx context.Context, arts []Artifact, job Job, put Put) error {
 			data := encoded[i]
 			encoded[i] = nil // put holds the only reference
 			write = func(w io.Writer) error { _, err := w.Write(data); return err }
+		case a.Kind == ContinuumCSV:
+			if err := wait(contTask); err != nil {
+				return err
+			}
+			if contErr != nil {
+				return contErr
+			}
+			write = func(w io.Writer) error { return WriteContinuumCSV(w, &cont, f.Res.Caption(), f.Res) }
 		case a.Kind == SpectrumCSV:
 			if err := wait(specTask); err != nil {
 				return err
@@ -371,7 +414,7 @@ func keepNames(k pixels.Keep) string {
 
 func isImage(k Kind) bool {
 	switch k {
-	case MapFigure, MapBare, MapIndexed, SpectrumFigure, BandBare, BandFigure, BandRedshift:
+	case MapFigure, MapBare, MapIndexed, SpectrumFigure, BandBare, BandFigure, BandRedshift, ContinuumFigure:
 		return true
 	}
 	return false

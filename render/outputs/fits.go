@@ -177,6 +177,7 @@ func fitsImages(f *pixels.Frame) []fits.Image {
 			inMNote(f, mk("R_ORD"+suffix, "", "source radius in M of image order "+suffix, fitsCopyRows(f, f.R[o]))),
 			rel(mk("I_ORD"+suffix, lu, "line intensity g^3 eps limb of image order "+suffix, scaledRows(f, f.Line[o], lf))))
 	}
+	ims = append(ims, thermalImages(f, mk)...)
 	return append(ims, timingImages(f, mk)...)
 }
 
@@ -243,6 +244,7 @@ func fitsHeader(f *pixels.Frame, version string) []fits.Card {
 			fits.Card{Key: "UASPERM", Value: r.MicroArcsecPerM, Comment: "angle of 1 M at the distance [uas]"})
 	}
 	cards = append(cards, clipCards(f)...)
+	cards = append(cards, thermalCards(r)...)
 	return append(cards, skyCards(r)...)
 }
 

@@ -65,6 +65,7 @@ const (
 // FITS and CSV are streamed row by row and add nothing that grows with
 // the image. It depends only on its arguments, never on the machine.
 func MemoryEstimate(r scene.Resolved, s Set, workers int) int64 {
+	s.Thermal = s.Thermal || r.Thermal.On
 	arts := Artifacts(r.Output, s)
 	px := int64(r.Screen.Width) * int64(r.Screen.Height)
 	n := int64(r.Disk.Orders)

@@ -54,14 +54,17 @@ type Axis struct {
 }
 
 // fixedKeys are numeric scene values a sweep may not vary: the screen
-// (every frame shares one window and layout) and the spectrum's energy
-// range (every spectrum shares one energy axis).
+// (every frame shares one window and layout) and the energy ranges of
+// the spectrum and of the continuum (every spectrum shares one energy
+// axis).
 var fixedKeys = map[string]string{
 	"screen.field_of_view":    "every frame of a sweep shares one field of view",
 	"screen.center_alpha":     "every frame of a sweep shares one window",
 	"screen.center_beta":      "every frame of a sweep shares one window",
 	"spectrum.energy_min_kev": "every spectrum of a sweep shares one energy range",
 	"spectrum.energy_max_kev": "every spectrum of a sweep shares one energy range",
+	"thermal.energy_min_kev":  "every continuum of a sweep shares one energy range",
+	"thermal.energy_max_kev":  "every continuum of a sweep shares one energy range",
 }
 
 // numericField returns the scene field named by a flag name ("spin") or

@@ -44,7 +44,8 @@ type MergeOptions struct {
 // frames' 8-bit palette images in frame order, looping), the line
 // profiles of all frames in one plot colour-coded by the first axis
 // (sweep-spectra.png; for a grid, sweep-spectra-NN.png for each value NN
-// of the second axis), if the sweep wrote spectra, and sweep-frames.csv,
+// of the second axis), if the sweep wrote spectra, and likewise the
+// thermal continua (sweep-continua.png) if it has a thermal disk, and sweep-frames.csv,
 // the frame numbers with their swept values. It returns the paths
 // written; on error, or when ctx is done, nothing is written. The files of
 // the last merge that this one does not write again are removed. For a
@@ -141,7 +142,11 @@ func Merge(ctx context.Context, dir string, opt MergeOptions) ([]string, error) 
 		if err != nil {
 			return fail(err)
 		}
-		for _, pl := range plots {
+		continua, err := p.continuaPlots()
+		if err != nil {
+			return fail(err)
+		}
+		for _, pl := range append(plots, continua...) {
 			img, err := figure.DrawPlot(pl.plot)
 			if err != nil {
 				return fail(fmt.Errorf("%s: %w", pl.name, err))

@@ -171,9 +171,10 @@ func (p *Plan) framePrefix(k int) string { return fmt.Sprintf("frame-%0*d", p.di
 // artifacts returns the files of frame k, in writing order: for every
 // map of the scene, the figure (format png), the pixel-exact image (bare)
 // and the 8-bit palette image the GIFs are made from (always); the
-// spectrum as CSV (csv) and plot (png and csv); the FITS maps (fits).
+// spectrum as CSV (csv) and plot (png and csv), and so the thermal
+// continuum when the scene has one; the FITS maps (fits).
 func (p *Plan) artifacts(k int) []outputs.Artifact {
-	return outputs.Artifacts(p.Base.Output, outputs.Set{Prefix: p.framePrefix(k) + "-", Indexed: true})
+	return outputs.Artifacts(p.Base.Output, outputs.Set{Prefix: p.framePrefix(k) + "-", Indexed: true, Thermal: p.Points[k].Scene.Thermal.On})
 }
 
 // fileNames returns the names of the files of frame k, sorted.
