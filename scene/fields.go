@@ -210,6 +210,11 @@ var quantities = map[string]Quantity{
 	"spot.phase_deg":                 {"spot phase", "φ_s", "deg"},
 	"spot.arc_deg":                   {"spot arc", "Δφ", "deg"},
 	"spot.periods":                   {"time span", "Δt", "orbits"},
+	"thermal.eddington_ratio":        {"Eddington ratio", "L/L_Edd", ""},
+	"thermal.accretion_rate_g_s":     {"accretion rate", "Ṁ", "g s⁻¹"},
+	"thermal.color_correction":       {"colour correction", "f_col", ""},
+	"thermal.energy_min_kev":         {"continuum lower energy", "E_min", "keV"},
+	"thermal.energy_max_kev":         {"continuum upper energy", "E_max", "keV"},
 }
 
 // QuantityOf returns how figures name the scene value of key; a key
