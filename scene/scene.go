@@ -29,7 +29,9 @@ type Scene struct {
 	Refine   Refine   `toml:"refine"`
 	Band     Band     `toml:"band"`
 	Spot     Spot     `toml:"spot"`
-	Output   Output   `toml:"output"`
+	// Polarisation is the emission model of the polarisation map.
+	Polarisation Polarisation `toml:"polarisation"`
+	Output       Output       `toml:"output"`
 
 	// given holds the keys set by the user (scene file or flags); see
 	// markGiven. It is not part of the scene's TOML.
@@ -139,7 +141,7 @@ type Output struct {
 
 // Map names and format names accepted in Output.
 var (
-	MapNames    = []string{"redshift", "intensity", "radius", "order", "shadow", "delay", "rings"}
+	MapNames    = []string{"redshift", "intensity", "radius", "order", "shadow", "delay", "rings", PolarisationMap}
 	FormatNames = []string{"png", "bare", "fits", "csv"}
 	// defaultMaps are the maps rendered when the scene names none: all
 	// but delay, which doubles the cost of every photon (time delays).
@@ -170,10 +172,11 @@ func Default() Scene {
 		Disk:     Disk{OuterRadius: 30, Opaque: true, Orders: 3},
 		Emission: Emission{LineKeV: 6.4, Emissivity: "powerlaw", Index: DefaultPowerLawIndex,
 			IndexInner: 6, IndexOuter: 3, BreakRad: 6, Limb: "isotropic"},
-		Spectrum: Spectrum{Bins: 240},
-		Refine:   Refine{Depth: 0, TolR: 0.05, TolG: 0.01},
-		Band:     Band{RMin: "isco", RMax: "isco*1.1"},
-		Spot:     DefaultSpot(),
+		Spectrum:     Spectrum{Bins: 240},
+		Refine:       Refine{Depth: 0, TolR: 0.05, TolG: 0.01},
+		Band:         Band{RMin: "isco", RMax: "isco*1.1"},
+		Spot:         DefaultSpot(),
+		Polarisation: DefaultPolarisation(),
 		Output: Output{Directory: "kerrscope-out", Maps: append([]string(nil), defaultMaps...),
 			Formats: append([]string(nil), FormatNames...), IntensityScale: "log"},
 	}
@@ -414,6 +417,10 @@ type Resolved struct {
 	Gas              Gas
 	Emissivity       Emissivity
 	Limb             Limb
+	// Polar is the validated polarisation model (always resolved; the
+	// renderer uses it for the polarisation map and when
+	// polarisation.sin_power makes the intensity depend on the field).
+	Polar PolarisationModel
 
 	// GravRadiusCm (GM/c²) and DistanceCm are in cm, if mass and distance
 	// are given (else 0).
@@ -676,6 +683,9 @@ func (s Scene) Resolve() (Resolved, error) {
 	}
 	r.Limb = Limb{Kind: lk}
 	if err := r.resolvePhotonRate(); err != nil {
+		return r, err
+	}
+	if r.Polar, err = s.Polarisation.resolve(); err != nil {
 		return r, err
 	}
 	if r.Gas, err = NewGas(a); err != nil {

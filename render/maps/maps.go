@@ -1,5 +1,5 @@
 // Package maps is the table of the renderer's maps: for each map (redshift,
-// intensity, radius, order, shadow, delay, rings) the quantity it shows, how a pixel is
+// intensity, radius, order, shadow, delay, rings, polarisation) the quantity it shows, how a pixel is
 // placed on its colour scale, its colours, its 8-bit palette, and its
 // decorated figure (title, colour bar, contours, overlays). Adding a map is
 // adding one entry to the table in this file (and its name to
@@ -16,6 +16,7 @@ import (
 	"kerrscope/raytrace"
 	"kerrscope/render/internal/figure"
 	"kerrscope/render/pixels"
+	"kerrscope/scene"
 )
 
 // Class is what a map pixel shows.
@@ -109,6 +110,13 @@ var table = []Map{
 		palette:  orderPalette,
 		decorate: ringsBar,
 		grid:     ringsGrid,
+	},
+	{
+		Name: scene.PolarisationMap, Title: "linear polarisation over the line intensity", Scale: colormap.Sequential,
+		needs:    pixels.KeepLine | pixels.KeepStokes,
+		scale:    &onScaleMap{value: totalRow(func(f *pixels.Frame) [][]float32 { return f.Line }), position: intensityPosition},
+		palette:  scalePalette(colormap.Sequential),
+		decorate: polarisationDecoration,
 	},
 }
 

@@ -54,7 +54,7 @@ func TestIndexedMatchesBare(t *testing.T) {
 		}
 		bare := m.Image(f, sc)
 		idx := m.Indexed(f, sc)
-		continuous := name == "redshift" || name == "intensity" || name == "radius" || name == "delay"
+		continuous := name == "redshift" || name == "intensity" || name == "radius" || name == "delay" || name == scene.PolarisationMap
 		seen := map[uint8]bool{}
 		for k := 0; k < f.W*f.H; k++ {
 			x, y := k%f.W, k/f.W
@@ -113,7 +113,7 @@ func TestMapNeedsAreEnough(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	full, err := pixels.Render(context.Background(), r, nil, pixels.KeepAll|pixels.KeepBehind)
+	full, err := pixels.Render(context.Background(), r, nil, pixels.KeepAll|pixels.KeepBehind|pixels.KeepStokes)
 	if err != nil {
 		t.Fatal(err)
 	}
