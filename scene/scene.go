@@ -752,6 +752,9 @@ func (s Scene) Resolve() (Resolved, error) {
 	if s.NeedsTiming() && s.Refine.Depth > 0 {
 		return r, fmt.Errorf("output.maps includes delay with refine.depth = %d: the adaptive sampler does not record time delays; use refine.depth = 0", s.Refine.Depth)
 	}
+	if s.NeedsPolarisation() && s.Refine.Depth > 0 {
+		return r, fmt.Errorf("output.maps includes %s with refine.depth = %d: the adaptive sampler does not record Stokes Q and U; use refine.depth = 0", PolarisationMap, s.Refine.Depth)
+	}
 	if err := checkNames("output.formats", o.Formats, FormatNames); err != nil {
 		return r, err
 	}
