@@ -31,7 +31,7 @@ func angleDiff(x, y float64) float64 {
 //   - in the static frame the photon of impact parameter b = sqrt(η) has
 //     k = (k_r, k_z) = (±sqrt(1 − b²(1 − 2/r)/r²), b sqrt(1 − 2/r)/r)
 //     (Schwarzschild 1916; e.g. Misner, Thorne & Wheeler 1973, §25.6),
-//   - for a photon moving outward;
+//     with k_r > 0 for a photon moving outward;
 //   - the gas moves along +φ at v = 1/sqrt(r − 2) (Bardeen, Press &
 //     Teukolsky 1972, a = 0), and the Lorentz boost gives its k̂';
 //   - f' = k̂' × B̂ is boosted back and made spatial by subtracting a
