@@ -259,3 +259,42 @@ func TestNetPolarisationSynthetic(t *testing.T) {
 		t.Errorf("toroidal: β₂ = %v, want %v", n.Beta2, -m)
 	}
 }
+
+// The probe's observed angle is the angle of the Stokes parameters the
+// renderer records for the same photon, ½ atan2(U, Q), and the probe
+// gives none off the disk.
+func TestPolarisationAtMatchesShade(t *testing.T) {
+	r := resolve(t, func(s *scene.Scene) {
+		s.Hole.Spin, s.Observer.InclinationDeg, s.Observer.PositionAngleDeg = 0.7, 50, -35
+		s.Disk.Opaque = false
+		s.Polarisation.FieldRadial, s.Polarisation.FieldVertical = 0.4, -0.6
+	})
+	m, err := NewModel(r)
+	if err != nil {
+		t.Fatal(err)
+	}
+	m.Stokes = true
+	var p raytrace.Path
+	var s Sample
+	checked := 0
+	for _, ab := range [][2]float64{{3, 4}, {-7, 1}, {2, -5}, {-1.5, -2.2}, {11, 9}, {5.2, 0.3}, {-4, -6}, {0.5, 7}} {
+		m.Shade(ab[0], ab[1], &p, &s)
+		for n, c := range p.Crossings {
+			h := s.Hits[n]
+			_, obs, ok := m.PolarisationAt(ab[0], ab[1], n, c, p.Lambda, p.Eta)
+			if ok != h.Seen {
+				t.Fatalf("(%v, %v) order %d: probe ok %v, seen %v", ab[0], ab[1], n, ok, h.Seen)
+			}
+			if !ok {
+				continue
+			}
+			checked++
+			if d := angleDiff(obs, math.Atan2(h.U, h.Q)/2); d > 1e-12 {
+				t.Errorf("(%v, %v) order %d: probe angle %v, Stokes angle %v", ab[0], ab[1], n, obs, math.Atan2(h.U, h.Q)/2)
+			}
+		}
+	}
+	if checked < 5 {
+		t.Fatalf("only %d crossings checked", checked)
+	}
+}
