@@ -69,9 +69,8 @@ func EquatorialMomentum(a, lambda, eta, r float64, outbound, up bool) Vector {
 //	A = (k^t f^r − k^r f^t) + a sin²θ (k^r f^φ − k^φ f^r)
 //	B = [(r² + a²)(k^φ f^θ − k^θ f^φ) − a(k^t f^θ − k^θ f^t)] sin θ
 //
-// (Walker & Penrose 1970, Commun. Math. Phys. 18, 265; in this form
-// Himwich et al. 2020, Phys. Rev. D 101, 084020, eqs. 6–8 up to their
-// normalisation). κ is constant along the ray under parallel transport of
+// (Walker & Penrose 1970, Commun. Math. Phys. 18, 265; in this form as in
+// Himwich et al. 2020, Phys. Rev. D 101, 084020). κ is constant along the ray under parallel transport of
 // f, unchanged by f → f + c k, and linear in k and f. Domain: any point
 // outside the horizon.
 func WalkerPenrose(a, r, theta float64, k, f Vector) complex128 {
@@ -91,9 +90,8 @@ func WalkerPenrose(a, r, theta float64, k, f Vector) complex128 {
 //	Eα = (β κ2 − ν κ1) / sqrt((κ1² + κ2²)(β² + ν²))
 //	Eβ = (β κ1 + ν κ2) / sqrt((κ1² + κ2²)(β² + ν²))
 //
-// (Himwich et al. 2020, Phys. Rev. D 101, 084020, eq. 9; Chandrasekhar
-// 1983, The Mathematical Theory of Black Holes, sec. 63), exact for an
-// observer at infinity, with α along +e_φ and β along −e_θ as in Constants.
+// (Himwich et al. 2020, Phys. Rev. D 101, 084020), exact for an observer
+// at infinity, with α along +e_φ and β along −e_θ as in Constants.
 // The sign of (Eα, Eβ) carries no meaning (κ → −κ flips it): the
 // polarisation is a direction, defined modulo π. ok is false where the
 // angle is undefined: κ = 0 (no polarisation) or β = ν = 0 (the one

@@ -28,8 +28,8 @@ type Polarisation struct {
 const (
 	// MaxSinPower bounds polarisation.sin_power: synchrotron emissivity
 	// goes as sin^{(s+1)/2} θ_B for electrons of power-law index s
-	// (Rybicki & Lightman 1979, eq. 6.36), so a few units cover every
-	// physical case.
+	// (Rybicki & Lightman 1979, Radiative Processes in Astrophysics,
+	// sec. 6.4), so a few units cover every physical case.
 	MaxSinPower = 10
 	// MaxFieldComponent bounds the field components (only the direction
 	// counts; the bound keeps their squares finite).
@@ -38,9 +38,8 @@ const (
 
 // DefaultPolarisation is a purely azimuthal (toroidal) field and the
 // maximum fraction of optically thin synchrotron light from electrons of
-// power-law index 3, (s + 1)/(s + 7/3) = 0.75 (Rybicki & Lightman 1979,
-// eq. 6.38 gives ≈ 0.7–0.75 for usual indices), with no angle dependence
-// of the intensity.
+// power-law index s = 3, (s + 1)/(s + 7/3) = 0.75 (Rybicki & Lightman
+// 1979, sec. 6.5), with no angle dependence of the intensity.
 func DefaultPolarisation() Polarisation {
 	return Polarisation{FieldAzimuthal: 1, Fraction: 0.75}
 }
@@ -129,8 +128,9 @@ type Emitted struct {
 	SinB float64
 	// Angle is the emitted electric-vector angle in the gas frame, in
 	// radians in (−π/2, π/2]: from the disk normal +z projected across
-	// the ray (n̂ ∝ ẑ − (ẑ·k̂) k̂) toward k̂ × n̂, the right-handed turn
-	// seen by an observer looking back along the ray.
+	// the ray (n̂ ∝ ẑ − (ẑ·k̂) k̂) toward k̂ × n̂ — the sense of the IAU
+	// angle (north through east) for a viewer looking back along the
+	// ray, with n̂ as north. For a ray along ±z the reference is +r.
 	Angle float64
 	OK    bool // false where k̂ ∥ B̂ (no polarisation) or the frame fails
 }
@@ -187,8 +187,8 @@ func (m PolarisationModel) String() string {
 // SkyAngle returns the polarisation angle on the sky of the screen
 // electric vector (Eα, Eβ), in the IAU convention: radians from north
 // through east, folded into (−π/2, π/2], with the projected spin axis
-// (+β) at position angle paDeg (SkyOffset gives east and north; IAU
-// Commission 40, Transactions of the IAU XVB, 1974, p. 166).
+// (+β) at position angle paDeg (SkyOffset gives east and north; the IAU
+// definition of polarisation angles, Transactions of the IAU XVB, 1974).
 func SkyAngle(ea, eb, paDeg float64) float64 {
 	east, north := SkyOffset(ea, eb, paDeg)
 	return foldAngle(math.Atan2(east, north))

@@ -25,7 +25,7 @@ type NetPolarisation struct {
 	// ½ atan2(U, Q), radians from north through east in (−π/2, π/2].
 	Fraction, Angle float64
 	// Beta2 is the azimuthal-mode coefficient β₂ of the polarisation
-	// pattern (Palumbo, Wong & Prather 2020, ApJ 894, 156, eq. 7):
+	// pattern (Palumbo, Wong & Prather 2020, ApJ 894, 156):
 	//
 	//	β₂ = Σ_k (Q_k + iU_k) e^{−2iφ_k} / Σ_k I_k
 	//
