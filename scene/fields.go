@@ -159,6 +159,11 @@ func Fields() []Field {
 		{Flag: "continuum-emin", Key: "thermal.energy_min_kev", Usage: "thermal continuum: lowest energy in keV (default: from the disk's coolest ring)", set: optNum(func(s *Scene) **float64 { return &s.Thermal.MinKeV })},
 		{Flag: "continuum-emax", Key: "thermal.energy_max_kev", Usage: "thermal continuum: highest energy in keV (default: from the disk's hottest ring)", set: optNum(func(s *Scene) **float64 { return &s.Thermal.MaxKeV })},
 		{Flag: "continuum-bins", Key: "thermal.bins", Usage: "thermal continuum: energies, equally spaced in log E", set: whole(func(s *Scene) *int { return &s.Thermal.Bins })},
+		{Flag: "field-radial", Key: "polarisation.field_radial", Usage: "polarisation: radial component of the magnetic field in the gas frame (only the direction counts)", set: num(func(s *Scene) *float64 { return &s.Polarisation.FieldRadial })},
+		{Flag: "field-azimuthal", Key: "polarisation.field_azimuthal", Usage: "polarisation: azimuthal (toroidal) field component, + along the orbit", set: num(func(s *Scene) *float64 { return &s.Polarisation.FieldAzimuthal })},
+		{Flag: "field-vertical", Key: "polarisation.field_vertical", Usage: "polarisation: vertical field component, + along the spin axis", set: num(func(s *Scene) *float64 { return &s.Polarisation.FieldVertical })},
+		{Flag: "pol-fraction", Key: "polarisation.fraction", Usage: "polarisation: emitted linear polarisation fraction, 0 to 1", set: num(func(s *Scene) *float64 { return &s.Polarisation.Fraction })},
+		{Flag: "sin-power", Key: "polarisation.sin_power", Usage: "polarisation: emitted intensity ∝ sin^p of the photon–field angle (0: none; it then shapes every map)", set: num(func(s *Scene) *float64 { return &s.Polarisation.SinPower })},
 		{Flag: "out", Key: "output.directory", Usage: "output directory", set: text(func(s *Scene) *string { return &s.Output.Directory })},
 		{Flag: "maps", Key: "output.maps", Usage: "comma-separated maps: " + strings.Join(MapNames, ","), set: list(func(s *Scene) *[]string { return &s.Output.Maps })},
 		{Flag: "formats", Key: "output.formats", Usage: "comma-separated outputs: png (figures), bare (pixel-exact PNG), fits, csv (spectrum)", set: list(func(s *Scene) *[]string { return &s.Output.Formats })},
@@ -215,6 +220,11 @@ var quantities = map[string]Quantity{
 	"thermal.color_correction":       {"colour correction", "f_col", ""},
 	"thermal.energy_min_kev":         {"continuum lower energy", "E_min", "keV"},
 	"thermal.energy_max_kev":         {"continuum upper energy", "E_max", "keV"},
+	"polarisation.field_radial":      {"radial field component", "B_r", ""},
+	"polarisation.field_azimuthal":   {"azimuthal field component", "B_φ", ""},
+	"polarisation.field_vertical":    {"vertical field component", "B_z", ""},
+	"polarisation.fraction":          {"emitted polarisation fraction", "p", ""},
+	"polarisation.sin_power":         {"field-angle power", "s", ""},
 }
 
 // QuantityOf returns how figures name the scene value of key; a key

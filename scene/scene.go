@@ -32,6 +32,8 @@ type Scene struct {
 	Output   Output   `toml:"output"`
 	Scales   Scales   `toml:"scales,omitempty"`
 	Thermal  Thermal  `toml:"thermal"`
+	// Polarisation is the emission model of the polarisation map.
+	Polarisation Polarisation `toml:"polarisation"`
 
 	// given holds the keys set by the user (scene file or flags); see
 	// markGiven. It is not part of the scene's TOML.
@@ -141,7 +143,7 @@ type Output struct {
 
 // Map names and format names accepted in Output.
 var (
-	MapNames    = []string{"redshift", "intensity", "radius", "order", "shadow", "delay", "rings", "temperature", "color-temperature"}
+	MapNames    = []string{"redshift", "intensity", "radius", "order", "shadow", "delay", "rings", "temperature", "color-temperature", PolarisationMap}
 	FormatNames = []string{"png", "bare", "fits", "csv"}
 	// defaultMaps are the maps rendered when the scene names none: all
 	// but delay, which doubles the cost of every photon (time delays).
@@ -174,11 +176,12 @@ func Default() Scene {
 		Disk:     Disk{OuterRadius: 30, Opaque: true, Orders: 3},
 		Emission: Emission{LineKeV: 6.4, Emissivity: "powerlaw", Index: DefaultPowerLawIndex,
 			IndexInner: 6, IndexOuter: 3, BreakRad: 6, Limb: "isotropic"},
-		Spectrum: Spectrum{Bins: 240},
-		Refine:   Refine{Depth: 0, TolR: 0.05, TolG: 0.01},
-		Band:     Band{RMin: "isco", RMax: "isco*1.1"},
-		Spot:     DefaultSpot(),
-		Thermal:  Thermal{ColorCorrection: DefaultColorCorrection, Bins: 200},
+		Spectrum:     Spectrum{Bins: 240},
+		Refine:       Refine{Depth: 0, TolR: 0.05, TolG: 0.01},
+		Band:         Band{RMin: "isco", RMax: "isco*1.1"},
+		Spot:         DefaultSpot(),
+		Thermal:      Thermal{ColorCorrection: DefaultColorCorrection, Bins: 200},
+		Polarisation: DefaultPolarisation(),
 		Output: Output{Directory: "kerrscope-out", Maps: append([]string(nil), defaultMaps...),
 			Formats: append([]string(nil), FormatNames...), IntensityScale: "log"},
 	}
@@ -419,6 +422,10 @@ type Resolved struct {
 	Gas              Gas
 	Emissivity       Emissivity
 	Limb             Limb
+	// Polar is the validated polarisation model (always resolved; the
+	// renderer uses it for the polarisation map and when
+	// polarisation.sin_power makes the intensity depend on the field).
+	Polar PolarisationModel
 
 	// GravRadiusCm (GM/c²) and DistanceCm are in cm, if mass and distance
 	// are given (else 0).
@@ -697,6 +704,9 @@ func (s Scene) Resolve() (Resolved, error) {
 	if err := r.resolveThermal(); err != nil {
 		return r, err
 	}
+	if r.Polar, err = s.Polarisation.resolve(); err != nil {
+		return r, err
+	}
 	if r.Gas, err = NewGas(a); err != nil {
 		return r, fieldErr("black_hole.spin", a, "%v", err)
 	}
@@ -767,6 +777,9 @@ func (s Scene) Resolve() (Resolved, error) {
 	}
 	if s.NeedsTiming() && s.Refine.Depth > 0 {
 		return r, fmt.Errorf("output.maps includes delay with refine.depth = %d: the adaptive sampler does not record time delays; use refine.depth = 0", s.Refine.Depth)
+	}
+	if s.NeedsPolarisation() && s.Refine.Depth > 0 {
+		return r, fmt.Errorf("output.maps includes %s with refine.depth = %d: the adaptive sampler does not record Stokes Q and U; use refine.depth = 0", PolarisationMap, s.Refine.Depth)
 	}
 	if err := checkNames("output.formats", o.Formats, FormatNames); err != nil {
 		return r, err

@@ -42,7 +42,10 @@ const (
 type Artifact struct {
 	Name string // file name in the output directory
 	Kind Kind
-	Map  string // the map, for MapFigure, MapBare and MapIndexed
+	// Map is the map, for MapFigure, MapBare and MapIndexed; for
+	// FITSMaps and SpectrumCSV it is scene.PolarisationMap when the scene
+	// asks for that map, and the file then carries Stokes Q and U too.
+	Map string
 }
 
 // Set chooses the artifacts a run writes besides those the scene's
@@ -65,11 +68,15 @@ func Artifacts(o scene.Output, s Set) []Artifact {
 	add := func(name string, k Kind, m string) {
 		out = append(out, Artifact{Name: s.Prefix + name, Kind: k, Map: m})
 	}
+	pol := ""
+	if slices.Contains(o.Maps, scene.PolarisationMap) {
+		pol = scene.PolarisationMap
+	}
 	if o.Has("fits") {
-		add("maps.fits", FITSMaps, "")
+		add("maps.fits", FITSMaps, pol)
 	}
 	if o.Has("csv") {
-		add("spectrum.csv", SpectrumCSV, "")
+		add("spectrum.csv", SpectrumCSV, pol)
 	}
 	if s.Thermal && o.Has("csv") {
 		add("continuum.csv", ContinuumCSV, "")
@@ -158,9 +165,9 @@ func Needs(arts []Artifact) pixels.Keep {
 	for _, a := range arts {
 		switch a.Kind {
 		case FITSMaps:
-			k |= pixels.KeepAll
+			k |= pixels.KeepAll | stokesOf(a)
 		case SpectrumCSV, SpectrumFigure:
-			k |= pixels.KeepG | pixels.KeepLine
+			k |= pixels.KeepG | pixels.KeepLine | stokesOf(a)
 		case ContinuumCSV, ContinuumFigure:
 			k |= pixels.KeepR | pixels.KeepG | pixels.KeepLine
 		case MapFigure, MapBare, MapIndexed:
@@ -172,6 +179,14 @@ func Needs(arts []Artifact) pixels.Keep {
 		}
 	}
 	return k
+}
+
+// stokesOf is KeepStokes for a table that carries the polarisation.
+func stokesOf(a Artifact) pixels.Keep {
+	if a.Map == scene.PolarisationMap {
+		return pixels.KeepStokes
+	}
+	return 0
 }
 
 // task is one piece of Write's work done on the worker pool; done is
@@ -404,7 +419,7 @@ func keepNames(k pixels.Keep) string {
 	for _, c := range [...]struct {
 		k    pixels.Keep
 		name string
-	}{{pixels.KeepR, "R"}, {pixels.KeepG, "G"}, {pixels.KeepLine, "Line"}, {pixels.KeepBol, "Bol"}, {pixels.KeepBand, "Band"}, {pixels.KeepBehind, "Behind"}} {
+	}{{pixels.KeepR, "R"}, {pixels.KeepG, "G"}, {pixels.KeepLine, "Line"}, {pixels.KeepBol, "Bol"}, {pixels.KeepBand, "Band"}, {pixels.KeepBehind, "Behind"}, {pixels.KeepStokes, "Q, U"}} {
 		if k&c.k != 0 {
 			out = append(out, c.name)
 		}
@@ -454,6 +469,10 @@ func tableWriter(a Artifact, job Job, spec *pixels.Spectrum) func(io.Writer) err
 		return func(w io.Writer) error {
 			if err := writeClipComment(w, f); err != nil {
 				return err
+			}
+			if a.Map == scene.PolarisationMap {
+				q, u := f.StokesSpectrum()
+				return writeCSV(w, spec, &q, &u, f.Res.Caption(), f.Res)
 			}
 			return WriteCSV(w, spec, f.Res.Caption(), f.Res)
 		}
