@@ -1,0 +1,111 @@
+package scene
+
+import (
+	"math"
+	"testing"
+
+	"gonum.org/v1/gonum/integrate/quad"
+
+	"kerrscope/raytrace"
+)
+
+func illuminate(t *testing.T, a, h, gamma, inner, outer float64) *Illumination {
+	t.Helper()
+	gas, err := NewGas(a)
+	if err != nil {
+		t.Fatal(err)
+	}
+	il, err := Illuminate(gas, h, gamma, inner, outer)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return il
+}
+
+// TestLampCaptureFraction checks the fraction of a lamp's photons that fall
+// into a Schwarzschild hole against Synge (1966, MNRAS 131, 463): a source
+// at rest at radius h loses the cone of half-angle ψc about the inward
+// direction, sin ψc = (3√3 M/h) sqrt(1 − 2M/h), ψc > 90° below 3 M, so the
+// captured fraction of an isotropic source is (1 − cos ψc)/2. The disk is
+// a thin ring far out, which no captured photon reaches; the fractions
+// must sum to 1.
+func TestLampCaptureFraction(t *testing.T) {
+	for _, h := range []float64{2.3, 2.8, 3, 4, 6, 10, 40} {
+		il := illuminate(t, 0, h, 2, 1e4, 1.001e4)
+		s := 3 * math.Sqrt(3) / h * math.Sqrt(1-2/h)
+		cos := math.Sqrt(1 - s*s)
+		if h < 3 {
+			cos = -cos
+		}
+		want := (1 - cos) / 2
+		if e := math.Abs(il.Horizon - want); e > 1e-11 {
+			t.Errorf("h = %v: captured fraction %.14f, Synge %.14f (error %.1e)", h, il.Horizon, want, e)
+		}
+		if sum := il.Disk + il.Escape + il.Horizon; math.Abs(sum-1) > 1e-14 {
+			t.Errorf("h = %v: fractions sum to %v", h, sum)
+		}
+	}
+}
+
+// TestLampFlatSpace checks the lamp far from the hole against the
+// flat-space law (common practice): the fraction landing on the disk tends
+// to FlatDiskFraction and each bin's photons per area to the flat law's bin
+// average of h/(4π (r² + h²)^{3/2}), with the corrections of light bending
+// and redshift, O(M/h) and, where photons pass the hole, O(M/r): measured
+// below 1.5 M/r + 3 M/h per bin, and the disk fraction within 3 M/h.
+func TestLampFlatSpace(t *testing.T) {
+	for _, h := range []float64{100, 1000, 10000} {
+		il := illuminate(t, 0.7, h, 2, 20, 100*h)
+		fd := FlatDiskFraction(h, il.Inner, il.Outer)
+		worst, worstFar := 0.0, 0.0
+		for i := range il.Photons {
+			r0, r1 := il.Edges[i], il.Edges[i+1]
+			flat := FlatDiskFraction(h, r0, r1) / (math.Pi * (r1*r1 - r0*r0))
+			d := math.Abs(il.Photons[i]/flat - 1)
+			worst = math.Max(worst, d/(1.5/r0+3/h))
+			if r0 > h {
+				worstFar = math.Max(worstFar, d)
+			}
+		}
+		ed := math.Abs(il.Disk/fd - 1)
+		t.Logf("h = %v M: disk fraction %.8f, flat %.8f (relative %.2e); worst bin beyond r = h %.2e; worst bin / (1.5 M/r + 3 M/h) %.2f",
+			h, il.Disk, fd, ed, worstFar, worst)
+		if worst > 1 || ed*h > 3 {
+			t.Errorf("h = %v: deviation from flat space %.2f of the bound per bin, %.2e of the disk fraction", h, worst, ed)
+		}
+	}
+}
+
+// TestLampProfileIntegral checks that the profile integrated over the disk
+// gives the disk fraction: the binned photons times their areas exactly
+// (bookkeeping), and the interpolated profile integrated by Gauss–Legendre
+// quadrature in ln r (an independent integration) to 2e-3.
+func TestLampProfileIntegral(t *testing.T) {
+	for _, c := range []struct{ a, h float64 }{{0, 3}, {0.998, 2}, {0.9, 6}, {-0.5, 20}} {
+		inner := raytrace.ISCO(c.a)
+		il := illuminate(t, c.a, c.h, 2, inner, 400)
+		sum := 0.0
+		for i, n := range il.Photons {
+			sum += n * math.Pi * (il.Edges[i+1]*il.Edges[i+1] - il.Edges[i]*il.Edges[i])
+		}
+		f := func(u float64) float64 { r := math.Exp(u); return il.interp(il.Photons, r) * 2 * math.Pi * r * r }
+		q := 0.0
+		lin, lout := math.Log(il.Inner), math.Log(il.Outer)
+		const panels = 400
+		for k := range panels {
+			u0 := lin + (lout-lin)*float64(k)/panels
+			q += quad.Fixed(f, u0, u0+(lout-lin)/panels, 8, quad.Legendre{}, 0)
+		}
+		t.Logf("a = %v h = %v: disk %.6f escape %.6f horizon %.6f (disk/escape %.4f); ∑ %.2e, ∫ %.2e off; %d photons",
+			c.a, c.h, il.Disk, il.Escape, il.Horizon, il.Reflection(), sum/il.Disk-1, q/il.Disk-1, il.Traced)
+		if math.Abs(sum/il.Disk-1) > 1e-12 {
+			t.Errorf("a = %v h = %v: binned profile sums to %v, disk fraction %v", c.a, c.h, sum, il.Disk)
+		}
+		if math.Abs(q/il.Disk-1) > 2e-3 {
+			t.Errorf("a = %v h = %v: interpolated profile integrates to %v, disk fraction %v", c.a, c.h, q, il.Disk)
+		}
+		if s := il.Disk + il.Escape + il.Horizon; math.Abs(s-1) > 1e-14 {
+			t.Errorf("fractions sum to %v", s)
+		}
+	}
+}
