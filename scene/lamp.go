@@ -309,3 +309,33 @@ func FlatPhotons(h, r float64) float64 {
 func FlatDiskFraction(h, r0, r1 float64) float64 {
 	return (h/math.Hypot(r0, h) - h/math.Hypot(r1, h)) / 2
 }
+
+// resolveLamp validates emission.lamp_height and photon_index and traces
+// the lamp over the disk (Illuminate) into r.Emissivity.
+func (r *Resolved) resolveLamp() error {
+	em := r.Emission
+	if em.LampHeight == nil {
+		return &FieldError{Key: "emission.lamp_height", Allowed: "needed with emissivity = lamp: the source's height on the spin axis, in M"}
+	}
+	h := *em.LampHeight
+	if !(h >= r.Horizon+MinLampClearance && h <= MaxLampHeight) {
+		return fieldErr("emission.lamp_height", h, "must be from %.6g M (%g M above the horizon) to %g M", r.Horizon+MinLampClearance, MinLampClearance, MaxLampHeight)
+	}
+	gamma := DefaultPhotonIndex
+	if em.PhotonIndex != nil {
+		gamma = *em.PhotonIndex
+		if !(gamma >= MinPhotonIndex && gamma <= MaxPhotonIndex) {
+			return fieldErr("emission.photon_index", gamma, "must be from %g to %g", MinPhotonIndex, MaxPhotonIndex)
+		}
+	}
+	gas, err := NewGas(r.Hole.Spin)
+	if err != nil {
+		return fieldErr("black_hole.spin", r.Hole.Spin, "%v", err)
+	}
+	il, err := Illuminate(gas, h, gamma, r.Inner, r.Disk.OuterRadius)
+	if err != nil {
+		return fieldErr("emission.lamp_height", h, "%v", err)
+	}
+	r.Emissivity.Height, r.Emissivity.PhotonIndex, r.Emissivity.Illumination = h, gamma, il
+	return nil
+}
