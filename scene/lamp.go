@@ -55,8 +55,10 @@ const (
 // because a power law N(E) ∝ E^−Γ shifted by g has g^(Γ−1) E^−Γ photons
 // per unit energy and the rate's own factor g is already in Photons (so ε
 // is Wilkins & Fabian's N g^Γ/A per unit lamp time, up to a constant).
-// Shift and Delay (the coordinate time from the lamp to the disk) are the
-// photon-weighted means of each bin.
+// Shift is the photon-weighted mean of each bin; Delay is the coordinate
+// time from the lamp to the disk at the bin's centre: sqrt(r² + h²) there
+// plus the photon-weighted mean of t − sqrt(r² + h²) over the bin (small
+// and smooth: the bending and Shapiro parts).
 type Illumination struct {
 	Height, Index float64 // h in M and Γ
 	Inner, Outer  float64 // disk edges, M
@@ -152,7 +154,8 @@ func Illuminate(gas Gas, h, gamma, inner, outer float64) (*Illumination, error) 
 			la, lb = lb, la
 		}
 		g := (a.g + b.g) / 2
-		tt := (a.t + b.t) / 2
+		// The delay less the straight path sqrt(r² + h²): small and smooth.
+		tt := (a.t - math.Hypot(a.r, h) + b.t - math.Hypot(b.r, h)) / 2
 		ge := math.Pow(g, gamma-1)
 		// Spread w uniformly in ln r over [la, lb].
 		pos := func(l float64) float64 { return (l - lin) / (lout - lin) * float64(nb) }
@@ -226,7 +229,7 @@ func Illuminate(gas Gas, h, gamma, inner, outer float64) (*Illumination, error) 
 		il.Emission[i] = sumWE[i] / area
 		if sumW[i] > 0 {
 			il.Shift[i] = sumWG[i] / sumW[i]
-			il.Delay[i] = sumWT[i] / sumW[i]
+			il.Delay[i] = sumWT[i]/sumW[i] + math.Hypot(il.Centre(i), h)
 		} else {
 			il.Shift[i], il.Delay[i] = math.NaN(), math.NaN()
 		}
@@ -265,9 +268,10 @@ func (il *Illumination) interp(v []float64, r float64) float64 {
 // EmissionAt returns the emissivity ε(r) interpolated between bins.
 func (il *Illumination) EmissionAt(r float64) float64 { return il.interp(il.Emission, r) }
 
-// DelayAt returns the lamp-to-disk time at r, M, interpolated linearly in
-// ln r between bin centres (a bin no photon reached takes its neighbour's
-// value); NaN outside the disk.
+// DelayAt returns the lamp-to-disk time at r, M: sqrt(r² + h²) plus the
+// bins' t − sqrt(r² + h²) at their centres interpolated linearly in ln r
+// (a bin no photon reached takes its neighbour's value); NaN outside the
+// disk.
 func (il *Illumination) DelayAt(r float64) float64 {
 	if il == nil {
 		return math.NaN()
@@ -276,22 +280,24 @@ func (il *Illumination) DelayAt(r float64) float64 {
 	if !(r >= il.Inner && r <= il.Outer) || n == 0 {
 		return math.NaN()
 	}
+	res := func(i int) float64 { return il.Delay[i] - math.Hypot(il.Centre(i), il.Height) }
+	straight := math.Hypot(r, il.Height)
+	if n == 1 {
+		return straight + res(0)
+	}
 	lin, lout := math.Log(il.Inner), math.Log(il.Outer)
 	x := (math.Log(r)-lin)/(lout-lin)*float64(n) - 0.5
 	x = math.Max(0, math.Min(float64(n-1), x))
 	i := min(n-2, int(x))
-	if n == 1 {
-		return il.Delay[0]
-	}
 	f := x - float64(i)
-	a, b := il.Delay[i], il.Delay[i+1]
+	a, b := res(i), res(i+1)
 	switch {
 	case math.IsNaN(a):
-		return b
+		return straight + b
 	case math.IsNaN(b):
-		return a
+		return straight + a
 	}
-	return (1-f)*a + f*b
+	return straight + (1-f)*a + f*b
 }
 
 // FlatPhotons returns the flat-space photon fraction per unit area of a
