@@ -1,8 +1,14 @@
 package echo
 
 import (
+	"bytes"
 	"context"
+	"fmt"
 	"math"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"strings"
 	"testing"
 
 	"kerrscope/raytrace"
@@ -142,5 +148,60 @@ func TestEchoIntegralAndCausality(t *testing.T) {
 		if math.Abs(lag[0]-resp.MeanLag()) > 0.05*resp.MeanLag() {
 			t.Errorf("%+v: lag %v at f = %v, mean lag %v", c, lag[0], fr[0], resp.MeanLag())
 		}
+	}
+}
+
+// TestRunWritesFiles runs the echo twice into one directory: every file is
+// written, the FITS image reads back through astropy when it is installed
+// (outputs' tests do the same), and the second run gives the same bytes.
+func TestRunWritesFiles(t *testing.T) {
+	r := lampScene(t, 0.9, 4, 30, raytrace.ISCO(0.9), 100, 48)
+	r.Output.Directory = t.TempDir()
+	var first map[string][]byte
+	for run := range 2 {
+		sum, err := Run(context.Background(), r, Options{TimeBins: 64})
+		if err != nil {
+			t.Fatal(err)
+		}
+		got := map[string][]byte{}
+		for _, f := range sum.Files {
+			b, err := os.ReadFile(f)
+			if err != nil {
+				t.Fatal(err)
+			}
+			got[filepath.Base(f)] = b
+		}
+		for _, name := range []string{ProfileCSV, ProfilePNG, ResponseFITS, ResponsePNG, LagFrequencyCSV, LagEnergyCSV, SceneTOML} {
+			if len(got[name]) == 0 {
+				t.Errorf("run %d: %s not written", run, name)
+			}
+		}
+		if run == 0 {
+			first = got
+			continue
+		}
+		for name, b := range got {
+			if !bytes.Equal(b, first[name]) {
+				t.Errorf("%s differs between two runs", name)
+			}
+		}
+	}
+	if _, err := exec.LookPath("python3"); err != nil {
+		t.Skip("no python3 to read the FITS file back")
+	}
+	script := `import sys
+from astropy.io import fits
+h = fits.open(sys.argv[1])
+d = h['ECHO'].data
+print(d.shape[0], d.shape[1], h['ECHO'].header['CTYPE2'], h[0].header['LAMPH'])`
+	out, err := exec.Command("python3", "-c", script, filepath.Join(r.Output.Directory, ResponseFITS)).CombinedOutput()
+	if err != nil {
+		if strings.Contains(string(out), "No module named") {
+			t.Skip("astropy not installed")
+		}
+		t.Fatalf("astropy: %v\n%s", err, out)
+	}
+	if got := strings.TrimSpace(string(out)); got != fmt.Sprintf("%d 64 EOBS 4.0", r.Spectrum.Bins) {
+		t.Errorf("astropy reads %q", got)
 	}
 }
