@@ -78,8 +78,8 @@ func (r *Response) WriteFiles(put outputs.Put, version string, f float64) error 
 	if err := put(ProfileCSV, func(w io.Writer) error { return WriteProfileCSV(w, il, title) }); err != nil {
 		return err
 	}
-	if err := putFigure(put, ProfilePNG, func() (image.Image, error) {
-		return figure.DrawPlot(ProfilePlot([]*scene.Illumination{il}, "Lamp illumination of the disk", title))
+	if err := put(ProfilePNG, func(w io.Writer) error {
+		return WriteProfileFigure(w, []*scene.Illumination{il}, "Lamp illumination of the disk", title)
 	}); err != nil {
 		return err
 	}
@@ -132,6 +132,16 @@ func WriteProfileCSV(w io.Writer, il *scene.Illumination, title string) error {
 		fmt.Fprintf(bw, "%.10g,%.10g,%.10g,%.10g,%.10g,%.10g,%.10g,%.10g\n", r0, r1, il.Centre(i), il.Photons[i], flat, il.Emission[i], il.Shift[i], il.Delay[i])
 	}
 	return bw.Flush()
+}
+
+// WriteProfileFigure draws ProfilePlot of one or more lamps and writes it
+// as PNG to w.
+func WriteProfileFigure(w io.Writer, ils []*scene.Illumination, title, subtitle string) error {
+	img, err := figure.DrawPlot(ProfilePlot(ils, title, subtitle))
+	if err != nil {
+		return err
+	}
+	return figure.EncodePNG(w, img)
 }
 
 // ProfilePlot draws the photons per unit area of one or more lamps against
