@@ -56,8 +56,13 @@ func runEcho(ctx context.Context, args []string, stdout, stderr io.Writer) error
 		return interrupted(ctx, err, "no file in "+r.Output.Directory+" was changed")
 	}
 	il := sum.Illum
-	fmt.Fprintf(stdout, "lamp at %g M: photons to the disk %.6f, to infinity %.6f, into the hole %.6f (disk/infinity %.4g)\n", il.Height, il.Disk, il.Escape, il.Horizon, il.Reflection())
+	fmt.Fprintln(stdout, lampLine(il))
 	fmt.Fprintf(stdout, "echo: first %.4g M, mean lag %.4g M after the direct flash; lag–energy at %.4g c³/GM\n", sum.First, sum.Mean, sum.Frequency)
 	fmt.Fprintf(stdout, "traced %d lamp photons and %d screen photons; wrote %d files in %s\n", il.Traced, sum.Photons, len(sum.Files), r.Output.Directory)
 	return nil
+}
+
+// lampLine reports where the lamp's photons go.
+func lampLine(il *scene.Illumination) string {
+	return fmt.Sprintf("lamp at %g M: photons to the disk %.6f, to infinity %.6f, into the hole %.6f (disk/infinity %.4g)", il.Height, il.Disk, il.Escape, il.Horizon, il.Reflection())
 }

@@ -55,3 +55,19 @@ func TestEchoCLI(t *testing.T) {
 		}
 	}
 }
+
+// A sweep over the lamp's height and the spin renders every frame with its
+// own lamp: the line profiles of different heights differ.
+func TestLampSweepCLI(t *testing.T) {
+	out := filepath.Join(t.TempDir(), "sw")
+	code, stdout, stderr := runCLI("sweep", "--emissivity", "lamp", "--lamp-height", "3", "--vary", "lamp-height=2:10:2", "--vary", "spin=0.5:0.9:2",
+		"--width", "24", "--height", "24", "--maps", "intensity", "--formats", "csv", "--out", out, "--quiet")
+	if code != 0 || !strings.Contains(stdout, "4 rendered now") {
+		t.Fatalf("sweep: exit %d: %s%s", code, stdout, stderr)
+	}
+	a, err1 := os.ReadFile(filepath.Join(out, "frame-0000-spectrum.csv"))
+	b, err2 := os.ReadFile(filepath.Join(out, "frame-0001-spectrum.csv"))
+	if err1 != nil || err2 != nil || string(a) == string(b) {
+		t.Errorf("frames 0 and 1, one swept value apart, have the same spectrum (%v, %v)", err1, err2)
+	}
+}
