@@ -160,3 +160,30 @@ func TestLampScene(t *testing.T) {
 	}
 	t.Logf("AreaIntegral %.8g, bins %.8g (%.1e)", ai, bins, ai/bins-1)
 }
+
+// TestLampPhotonCount checks the emissivity at Γ = 1, where g^(Γ−1) = 1 and
+// every landing photon counts once: the emissivity equals the photons per
+// area bin by bin, and 2π ∫ ε r dr over the disk (AreaIntegral, the
+// normalisation of the physical units) is the disk fraction, the share of
+// the lamp's photons the disk reflects, to the 2e-3 of the interpolation.
+func TestLampPhotonCount(t *testing.T) {
+	s := Default()
+	h, g := 3.0, 1.0
+	s.Emission.Emissivity = "lamp"
+	s.Emission.LampHeight, s.Emission.PhotonIndex = &h, &g
+	r, err := s.Resolve()
+	if err != nil {
+		t.Fatal(err)
+	}
+	il := r.Emissivity.Illumination
+	for i := range il.Photons {
+		if il.Emission[i] != il.Photons[i] {
+			t.Fatalf("bin %d: emissivity %v, photons %v", i, il.Emission[i], il.Photons[i])
+		}
+	}
+	got := 2 * math.Pi * r.Emissivity.AreaIntegral(r.Inner, r.Disk.OuterRadius, r.ISCO)
+	t.Logf("2π ∫ε r dr = %.8f, disk fraction %.8f (%.1e)", got, il.Disk, got/il.Disk-1)
+	if math.Abs(got/il.Disk-1) > 2e-3 {
+		t.Errorf("2π ∫ε r dr = %v, disk fraction %v", got, il.Disk)
+	}
+}

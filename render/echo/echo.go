@@ -29,6 +29,10 @@ const (
 	MaxTimeBins     = 1 << 14
 	// MaxDuration bounds Options.Duration, in M.
 	MaxDuration = 1e8
+	// MaxImages bounds pixels × image orders of an echo: Compute keeps
+	// every lit image (40 bytes each) to bin it once the time range is
+	// known, about 670 MB at the bound.
+	MaxImages = 1 << 24
 )
 
 // Options control an echo.
@@ -145,6 +149,10 @@ func Compute(ctx context.Context, r scene.Resolved, opt Options) (*Response, err
 		return nil, err
 	}
 	w, h, orders := r.Screen.Width, r.Screen.Height, r.Disk.Orders
+	if n := int64(w) * int64(h) * int64(orders); n > MaxImages {
+		return nil, &scene.FieldError{Key: "screen.width", Value: fmt.Sprint(w),
+			Allowed: fmt.Sprintf("%d×%d pixels × %d orders is %d images, more than the %d an echo may hold; use fewer pixels or orders", w, h, orders, n, MaxImages)}
+	}
 	area := r.PixelSize * r.PixelSize
 	hits := make([]Hit, w*h*orders)
 	for i := range hits {
