@@ -98,6 +98,12 @@ type lampOutcome struct {
 // the fractions and the binned profile. Errors name the offending value;
 // Resolve checks the ranges first (emission.lamp_height, photon_index).
 func Illuminate(gas Gas, h, gamma, inner, outer float64) (*Illumination, error) {
+	return illuminate(gas, h, gamma, inner, outer, lampGrid, lampStep)
+}
+
+// illuminate is Illuminate with the initial grid in cos ψ and the largest
+// step in ln r of the landing radius as parameters.
+func illuminate(gas Gas, h, gamma, inner, outer float64, grid int, step float64) (*Illumination, error) {
 	src, err := raytrace.NewAxisSource(gas.Spin(), h)
 	if err != nil {
 		return nil, err
@@ -188,7 +194,7 @@ func Illuminate(gas Gas, h, gamma, inner, outer float64) (*Illumination, error) 
 			frac[a.class] += w
 			return
 		}
-		if same && math.Abs(math.Log(a.r/b.r)) <= lampStep {
+		if same && math.Abs(math.Log(a.r/b.r)) <= step {
 			deposit(w, a, b)
 			return
 		}
@@ -213,8 +219,8 @@ func Illuminate(gas Gas, h, gamma, inner, outer float64) (*Illumination, error) 
 	}
 	prevMu := -1.0
 	prev := shoot(prevMu)
-	for i := 1; i <= lampGrid; i++ {
-		mu := -1 + 2*float64(i)/lampGrid
+	for i := 1; i <= grid; i++ {
+		mu := -1 + 2*float64(i)/float64(grid)
 		o := shoot(mu)
 		refine(prevMu, mu, prev, o)
 		prevMu, prev = mu, o

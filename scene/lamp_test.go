@@ -10,7 +10,7 @@ import (
 	"kerrscope/raytrace"
 )
 
-func illuminate(t *testing.T, a, h, gamma, inner, outer float64) *Illumination {
+func lit(t *testing.T, a, h, gamma, inner, outer float64) *Illumination {
 	t.Helper()
 	gas, err := NewGas(a)
 	if err != nil {
@@ -32,7 +32,7 @@ func illuminate(t *testing.T, a, h, gamma, inner, outer float64) *Illumination {
 // must sum to 1.
 func TestLampCaptureFraction(t *testing.T) {
 	for _, h := range []float64{2.3, 2.8, 3, 4, 6, 10, 40} {
-		il := illuminate(t, 0, h, 2, 1e4, 1.001e4)
+		il := lit(t, 0, h, 2, 1e4, 1.001e4)
 		s := 3 * math.Sqrt(3) / h * math.Sqrt(1-2/h)
 		cos := math.Sqrt(1 - s*s)
 		if h < 3 {
@@ -56,7 +56,7 @@ func TestLampCaptureFraction(t *testing.T) {
 // below 1.5 M/r + 3 M/h per bin, and the disk fraction within 3 M/h.
 func TestLampFlatSpace(t *testing.T) {
 	for _, h := range []float64{100, 1000, 10000} {
-		il := illuminate(t, 0.7, h, 2, 20, 100*h)
+		il := lit(t, 0.7, h, 2, 20, 100*h)
 		fd := FlatDiskFraction(h, il.Inner, il.Outer)
 		worst, worstFar := 0.0, 0.0
 		for i := range il.Photons {
@@ -84,7 +84,7 @@ func TestLampFlatSpace(t *testing.T) {
 func TestLampProfileIntegral(t *testing.T) {
 	for _, c := range []struct{ a, h float64 }{{0, 3}, {0.998, 2}, {0.9, 6}, {-0.5, 20}} {
 		inner := raytrace.ISCO(c.a)
-		il := illuminate(t, c.a, c.h, 2, inner, 400)
+		il := lit(t, c.a, c.h, 2, inner, 400)
 		sum := 0.0
 		for i, n := range il.Photons {
 			sum += n * math.Pi * (il.Edges[i+1]*il.Edges[i+1] - il.Edges[i]*il.Edges[i])
@@ -185,5 +185,33 @@ func TestLampPhotonCount(t *testing.T) {
 	t.Logf("2π ∫ε r dr = %.8f, disk fraction %.8f (%.1e)", got, il.Disk, got/il.Disk-1)
 	if math.Abs(got/il.Disk-1) > 2e-3 {
 		t.Errorf("2π ∫ε r dr = %v, disk fraction %v", got, il.Disk)
+	}
+}
+
+// TestLampSamplingConverges checks that the profile has converged in the
+// sampling of emission angles: a grid four times finer and a step in ln r
+// four times smaller change no bin's photons by more than 1e-4 (relative)
+// and the fractions by 1e-12 (their edges are bisected to 1e-13 in cos ψ).
+func TestLampSamplingConverges(t *testing.T) {
+	for _, c := range []struct{ a, h float64 }{{0.998, 2}, {0, 6}, {-0.9, 30}} {
+		gas, _ := NewGas(c.a)
+		in := raytrace.ISCO(c.a)
+		coarse, err := illuminate(gas, c.h, 2, in, 500, lampGrid, lampStep)
+		if err != nil {
+			t.Fatal(err)
+		}
+		fine, err := illuminate(gas, c.h, 2, in, 500, 4*lampGrid, lampStep/4)
+		if err != nil {
+			t.Fatal(err)
+		}
+		worst := 0.0
+		for i := range coarse.Photons {
+			worst = math.Max(worst, math.Abs(coarse.Photons[i]/fine.Photons[i]-1))
+		}
+		df := math.Max(math.Abs(coarse.Disk-fine.Disk), math.Max(math.Abs(coarse.Escape-fine.Escape), math.Abs(coarse.Horizon-fine.Horizon)))
+		t.Logf("a = %v h = %v: worst bin %.1e, fractions %.1e; %d and %d photons", c.a, c.h, worst, df, coarse.Traced, fine.Traced)
+		if worst > 1e-4 || df > 1e-12 {
+			t.Errorf("a = %v h = %v: finer sampling moves a bin by %.2e, the fractions by %.2e", c.a, c.h, worst, df)
+		}
 	}
 }
