@@ -109,12 +109,17 @@ type Disk struct {
 // Emission is the line and how the disk emits it.
 type Emission struct {
 	LineKeV    float64 `toml:"line_kev"`
-	Emissivity string  `toml:"emissivity"` // powerlaw, broken, novikov-thorne
+	Emissivity string  `toml:"emissivity"` // powerlaw, broken, novikov-thorne, lamp
 	Index      float64 `toml:"index"`      // powerlaw q
 	IndexInner float64 `toml:"index_inner"`
 	IndexOuter float64 `toml:"index_outer"`
 	BreakRad   float64 `toml:"break_radius"`
-	Limb       string  `toml:"limb"` // isotropic, laor
+	// LampHeight (M) and PhotonIndex Γ of the lamp emissivity: a point
+	// source on the spin axis lighting the disk (Illuminate). Γ defaults
+	// to DefaultPhotonIndex.
+	LampHeight  *float64 `toml:"lamp_height,omitempty"`
+	PhotonIndex *float64 `toml:"photon_index,omitempty"`
+	Limb        string   `toml:"limb"` // isotropic, laor
 	// LineLuminosityErgS is the line luminosity L in erg/s, both faces
 	// (defined at resolvePhotonRate in flux.go); with mass and distance
 	// it puts the maps and the spectrum in physical units. nil: relative
@@ -688,6 +693,11 @@ func (s Scene) Resolve() (Resolved, error) {
 		}
 		if _, qout := r.Emissivity.IndexLimits(d.OuterRadius); !(math.Abs(em.IndexOuter) <= qout) {
 			return r, fieldErr("emission.index_outer", em.IndexOuter, "must be within ±%.4g with index_inner = %v, break_radius = %v M and disk.outer_radius = %v M (ε within 10^±%d across the disk)", qout, em.IndexInner, em.BreakRad, d.OuterRadius, EmissivityDecades)
+		}
+	}
+	if kind == Lamp {
+		if err := r.resolveLamp(); err != nil {
+			return r, err
 		}
 	}
 	if err := r.Emissivity.Validate(); err != nil {
