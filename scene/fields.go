@@ -155,8 +155,15 @@ func Fields() []Field {
 		{Flag: "periods", Key: "spot.periods", Usage: "spot: observer time covered, in orbital periods", set: num(func(s *Scene) *float64 { return &s.Spot.Periods })},
 		{Flag: "out", Key: "output.directory", Usage: "output directory", set: text(func(s *Scene) *string { return &s.Output.Directory })},
 		{Flag: "maps", Key: "output.maps", Usage: "comma-separated maps: " + strings.Join(MapNames, ","), set: list(func(s *Scene) *[]string { return &s.Output.Maps })},
-		{Flag: "formats", Key: "output.formats", Usage: "comma-separated outputs: png (figures), bare (pixel-exact PNG), fits, csv (spectrum)", set: list(func(s *Scene) *[]string { return &s.Output.Formats })},
+		{Flag: "formats", Key: "output.formats", Usage: "comma-separated outputs: png (figures), bare (pixel-exact PNG), fits, csv (spectrum), svg (figures as vector graphics)", set: list(func(s *Scene) *[]string { return &s.Output.Formats })},
 		{Flag: "intensity-scale", Key: "output.intensity_scale", Usage: "intensity map scale: log or linear", set: text(func(s *Scene) *string { return &s.Output.IntensityScale })},
+		{Flag: "column", Key: "output.column", Usage: "figure width preset: single (86 mm) or double (178 mm) journal column", set: text(func(s *Scene) *string { return &s.Output.Column })},
+		{Flag: "width-mm", Key: "output.width_mm", Usage: "figure width in mm (0: from --column)", set: num(func(s *Scene) *float64 { return &s.Output.WidthMM })},
+		{Flag: "dpi", Key: "output.dpi", Usage: "figure resolution in dots per inch (text is 8 pt at any size)", set: num(func(s *Scene) *float64 { return &s.Output.DPI })},
+		{Flag: "redshift-scale", Key: "output.redshift_scale", Usage: "redshift colours: split (log g, each side of g = 1 on its own half) or linear (linear in g)", set: text(func(s *Scene) *string { return &s.Output.RedshiftScale })},
+		{Flag: "spectrum-axis", Key: "output.spectrum_axis", Usage: "spectrum figure y axis: linear or log", set: text(func(s *Scene) *string { return &s.Output.SpectrumAxis })},
+		{Flag: "spectrum-norm", Key: "output.spectrum_norm", Usage: "spectrum figure curves: flux, area (unit integral) or peak (maximum 1)", set: text(func(s *Scene) *string { return &s.Output.SpectrumNorm })},
+		{Flag: "spectrum-overlay", Key: "output.spectrum_overlay", Usage: "CSV of energy [keV], flux to draw over the spectrum figure", set: text(func(s *Scene) *string { return &s.Output.SpectrumOverlay })},
 		{Flag: "orientation-marks", Key: "output.orientation_marks", Usage: "draw the projected spin axis and the disk's orbital direction on every map figure", Bool: true, set: boolean(func(s *Scene) *bool { return &s.Output.OrientationMarks }, true)},
 	}
 }

@@ -61,8 +61,9 @@ func delayPosition(_ *pixels.Frame, sc Scales) func(float64) float64 {
 
 // delayBar labels the colour bar in M after the earliest-leaving light.
 func delayBar(_ *pixels.Frame, sc Scales, p *figure.Panel) {
-	bar := &figure.ColorBar{Colors: colormap.Sequential.Table(256), Label: "t_obs − t_emit − min [M]"}
+	bar := &figure.ColorBar{Colors: colormap.Sequential.Table(256), Label: "arrival delay Δ*{t} [M]", Note: "after the earliest light"}
 	span := sc.TMax - sc.TMin
+	bar.Ticks = endTicks(0, span)
 	for _, v := range linearTicks(span) {
 		bar.Ticks = append(bar.Ticks, figure.Tick{T: v / span, Label: strconv.FormatFloat(v, 'g', 3, 64)})
 	}

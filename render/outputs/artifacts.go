@@ -34,6 +34,8 @@ const (
 	BandFigure                     // decorated band figure (band.png)
 	BandRedshift                   // redshift factor of the band's light (band-redshift.png)
 	Manifest                       // the effective scene (kerrscope-run.toml)
+	MapSVG                         // decorated figure of one map as vector graphics (<map>.svg)
+	SpectrumSVG                    // plot of the spectrum as vector graphics (spectrum.svg)
 )
 
 // Artifact is one file a run writes.
@@ -76,9 +78,15 @@ func Artifacts(o scene.Output, s Set) []Artifact {
 		if s.Indexed {
 			add(m+"-indexed.png", MapIndexed, m)
 		}
+		if o.Has("svg") {
+			add(m+".svg", MapSVG, m)
+		}
 	}
 	if o.Has("png") && o.Has("csv") {
 		add("spectrum.png", SpectrumFigure, "")
+	}
+	if o.Has("svg") && o.Has("csv") {
+		add("spectrum.svg", SpectrumSVG, "")
 	}
 	if s.Band {
 		add("band.json", BandJSON, "")
@@ -145,9 +153,9 @@ func Needs(arts []Artifact) pixels.Keep {
 		switch a.Kind {
 		case FITSMaps:
 			k |= pixels.KeepAll
-		case SpectrumCSV, SpectrumFigure:
+		case SpectrumCSV, SpectrumFigure, SpectrumSVG:
 			k |= pixels.KeepG | pixels.KeepLine
-		case MapFigure, MapBare, MapIndexed:
+		case MapFigure, MapBare, MapIndexed, MapSVG:
 			if m, err := maps.Lookup(a.Map); err == nil {
 				k |= m.Needs()
 			}
@@ -199,7 +207,7 @@ func Write(ctx context.Context, arts []Artifact, job Job, put Put) error {
 	var spec pixels.Spectrum
 	var specTask *task
 	for _, a := range arts {
-		if a.Kind == SpectrumCSV || a.Kind == SpectrumFigure {
+		if a.Kind == SpectrumCSV || a.Kind == SpectrumFigure || a.Kind == SpectrumSVG {
 			if job.Spectrum != nil {
 				spec = *job.Spectrum
 				specTask = &task{done: make(chan struct{})} // done already
@@ -221,18 +229,22 @@ func Write(ctx context.Context, arts []Artifact, job Job, put Put) error {
 		}
 		errs[i] = err
 	}
+	// store keeps a file made directly as bytes (SVG).
+	store := func(i int, data []byte, err error) {
+		encoded[i], errs[i] = data, err
+	}
 	// One task per map, in the order the maps first appear.
 	byMap := map[string][]int{}
 	var order []string
 	for i, a := range arts {
-		if a.Kind == MapFigure || a.Kind == MapBare || a.Kind == MapIndexed {
+		if a.Kind == MapFigure || a.Kind == MapBare || a.Kind == MapIndexed || a.Kind == MapSVG {
 			if byMap[a.Map] == nil {
 				order = append(order, a.Map)
 			}
 			byMap[a.Map] = append(byMap[a.Map], i)
 		}
 	}
-	for _, k := range []Kind{MapFigure, MapBare, MapIndexed} {
+	for _, k := range []Kind{MapFigure, MapBare, MapIndexed, MapSVG} {
 		if slices.ContainsFunc(arts, func(a Artifact) bool { return a.Kind == k }) {
 			job.Scales = job.Scales.Fill(f) // once for every map
 			break
@@ -240,7 +252,7 @@ func Write(ctx context.Context, arts []Artifact, job Job, put Put) error {
 	}
 	for _, name := range order {
 		idx := byMap[name]
-		t := add(func(s *scratch) { mapImages(arts, idx, job, s, encode) })
+		t := add(func(s *scratch) { mapImages(arts, idx, job, s, encode, store) })
 		for _, i := range idx {
 			producer[i] = t
 		}
@@ -248,8 +260,13 @@ func Write(ctx context.Context, arts []Artifact, job Job, put Put) error {
 	for i, a := range arts {
 		if isImage(a.Kind) && producer[i] == nil {
 			producer[i] = add(func(*scratch) {
-				if a.Kind == SpectrumFigure {
+				if a.Kind == SpectrumFigure || a.Kind == SpectrumSVG {
 					<-specTask.done // an earlier task: already running or done
+				}
+				if a.Kind == SpectrumSVG {
+					data, err := spectrumSVG(job, &spec)
+					store(i, data, err)
+					return
 				}
 				img, err := drawImage(a, job, &spec)
 				encode(i, img, err)
@@ -320,7 +337,7 @@ func Write(ctx context.Context, arts []Artifact, job Job, put Put) error {
 
 // mapImages draws one map once and makes its artifacts arts[i], i in idx
 // (all of the same map), with job.Scales complete.
-func mapImages(arts []Artifact, idx []int, job Job, s *scratch, encode func(int, image.Image, error)) {
+func mapImages(arts []Artifact, idx []int, job Job, s *scratch, encode func(int, image.Image, error), store func(int, []byte, error)) {
 	f := job.Frame
 	m, err := maps.Lookup(arts[idx[0]].Map)
 	if err != nil {
@@ -342,6 +359,15 @@ func mapImages(arts []Artifact, idx []int, job Job, s *scratch, encode func(int,
 		}
 		if a.Kind == MapBare {
 			encode(i, img, nil)
+			continue
+		}
+		if a.Kind == MapSVG {
+			var b bytes.Buffer
+			err := m.FigureSVG(&b, f, job.Scales, img)
+			if err != nil {
+				err = fmt.Errorf("%s vector figure: %w", a.Map, err)
+			}
+			store(i, b.Bytes(), err)
 			continue
 		}
 		fig, err := m.Figure(f, job.Scales, img)
@@ -368,7 +394,7 @@ func keepNames(k pixels.Keep) string {
 
 func isImage(k Kind) bool {
 	switch k {
-	case MapFigure, MapBare, MapIndexed, SpectrumFigure, BandBare, BandFigure, BandRedshift:
+	case MapFigure, MapBare, MapIndexed, SpectrumFigure, BandBare, BandFigure, BandRedshift, MapSVG, SpectrumSVG:
 		return true
 	}
 	return false
@@ -380,11 +406,11 @@ func drawImage(a Artifact, job Job, spec *pixels.Spectrum) (image.Image, error) 
 	f := job.Frame
 	switch a.Kind {
 	case SpectrumFigure:
-		title := job.SpectrumTitle
-		if title == "" {
-			title = "line profile collapsed from the image"
+		pl, err := jobSpectrumPlot(job, spec)
+		if err != nil {
+			return nil, fmt.Errorf("spectrum figure: %w", err)
 		}
-		img, err := figure.DrawPlot(SpectrumPlot(spec, title, f.Res.Caption(), job.Scales.FluxMax, f.Res.SpectrumPerUnit()))
+		img, err := figure.DrawPlot(pl)
 		if err != nil {
 			return nil, fmt.Errorf("spectrum figure: %w", err)
 		}

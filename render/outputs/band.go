@@ -127,13 +127,14 @@ func bandImage(k Kind, f *pixels.Frame, b *Band) (image.Image, error) {
 		}
 		p := shadow.Decorate(f, maps.Scales{}, bandOrders(f, b.Mask))
 		p.Title = fmt.Sprintf("where source radii %.6g–%.6g M land", rep.RMin, rep.RMax)
+		p.Fills = nil
 		_, key := maps.CriticalOverlay(f)
 		p.Legend = []figure.LegendEntry{key}
 		bar := &figure.ColorBar{Label: "image order"}
 		for ord := 0; ord < f.Orders; ord++ {
-			bar.Swatches = append(bar.Swatches, figure.Swatch{Color: colormap.Order(ord), Label: fmt.Sprintf("band, n = %d", ord)})
+			bar.Swatches = append(bar.Swatches, figure.Swatch{Color: colormap.Order(ord), Label: fmt.Sprintf("band, *{n} = %d", ord)})
 		}
-		bar.Swatches = append(bar.Swatches, figure.Swatch{Color: bandOther, Label: "other light"}, figure.Swatch{Color: colormap.Shadow, Label: "horizon"})
+		bar.Swatches = append(bar.Swatches, figure.Swatch{Color: bandOther, Label: "other light or no disk"}, figure.Swatch{Color: colormap.Shadow, Label: "captured by the horizon"})
 		p.Bar = bar
 		return figure.DrawPanel(p, 0)
 	}
@@ -147,7 +148,8 @@ func bandImage(k Kind, f *pixels.Frame, b *Band) (image.Image, error) {
 	}
 	sc = sc.Fill(f)
 	p := redshift.Decorate(f, sc, bandRedshift(f, b.Mask, sc))
-	p.Title = fmt.Sprintf("redshift factor g of the light from r = %.6g–%.6g M", rep.RMin, rep.RMax)
+	p.Title = fmt.Sprintf("redshift factor *{g} of the light from *{r} = %.6g–%.6g M", rep.RMin, rep.RMax)
+	p.Fills = []figure.Swatch{{Color: bandOther, Label: "other light or no disk"}, {Color: colormap.Shadow, Label: "captured by the horizon"}}
 	line, key := maps.CriticalOverlay(f)
 	p.Lines, p.Legend = []figure.Polyline{line}, []figure.LegendEntry{key}
 	return figure.DrawPanel(p, 0)

@@ -84,14 +84,14 @@ func MemoryEstimate(r scene.Resolved, s Set, workers int) int64 {
 	figures, contour, rings := false, false, false
 	for _, a := range arts {
 		switch a.Kind {
-		case MapFigure, MapBare, MapIndexed:
+		case MapFigure, MapBare, MapIndexed, MapSVG:
 			drawn[a.Map] = true
 			contour = contour || (a.Kind == MapFigure && a.Map == "radius")
 			rings = rings || (a.Kind == MapFigure && a.Map == "rings")
 		case BandBare, BandFigure, BandRedshift:
 			drawn["band"] = true
 		}
-		if (a.Kind == MapFigure && a.Map != "rings") || a.Kind == SpectrumFigure || a.Kind == BandFigure || a.Kind == BandRedshift {
+		if (a.Kind == MapFigure && a.Map != "rings") || a.Kind == SpectrumFigure || a.Kind == BandFigure || a.Kind == BandRedshift || a.Kind == MapSVG || a.Kind == SpectrumSVG {
 			figures = true
 		}
 	}

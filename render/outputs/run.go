@@ -64,6 +64,9 @@ func Run(ctx context.Context, r scene.Resolved, opt Options) (Summary, error) {
 	}
 	defer lk.Unlock()
 	arts := Artifacts(r.Output, Set{Band: opt.Band, Manifest: true})
+	if err := CheckInputs(r, arts); err != nil {
+		return Summary{}, err
+	}
 	framed, err := pixels.FrameWindow(ctx, r)
 	if err != nil {
 		return Summary{}, err

@@ -335,8 +335,9 @@ func (mv *Movie) LightCurvePlot() figure.Plot {
 	pl := figure.Plot{
 		Title:    "light curve of the orbiting spot",
 		Subtitle: mv.caption(),
-		XLabel:   "observer time t_obs [M]",
-		YLabel:   "line photon flux / time average",
+		XLabel:   "observer time *{t}_{obs} [M]",
+		YLabel:   "line flux / time average",
+		Size:     maps.FigureSize(t.Res.Output),
 		XMin:     0, XMax: t.Spot.Period() * t.Res.Spot.Periods,
 		Series: []figure.Series{{X: x, Y: y, Color: color.RGBA{0x10, 0x10, 0x10, 0xff}, Width: 2.5}},
 	}
@@ -367,9 +368,11 @@ func (mv *Movie) centroidPanel(mean []float64) figure.Panel {
 	}
 	return figure.Panel{
 		Image:    rgba,
-		X:        figure.Axis{Min: a0, Max: a1, Label: "α [M]"},
-		Y:        figure.Axis{Min: b0, Max: b1, Label: "β [M]"},
+		X:        figure.Axis{Min: a0, Max: a1, Label: "*{α} [M]"},
+		Y:        figure.Axis{Min: b0, Max: b1, Label: "*{β} [M]"},
 		Title:    "time-averaged image and the centroid track",
+		Size:     maps.FigureSize(t.Res.Output),
+		Fills:    []figure.Swatch{{Color: colormap.NoHit, Label: "no disk on the ray"}, {Color: colormap.Shadow, Label: "captured by the horizon"}},
 		Subtitle: mv.caption(),
 		Lines:    []figure.Polyline{{Points: track, Color: color.RGBA{0x00, 0xb4, 0xff, 0xff}, Width: 2, Closed: t.Res.Spot.Periods == math.Trunc(t.Res.Spot.Periods)}},
 		Legend:   []figure.LegendEntry{{Color: color.RGBA{0x00, 0xb4, 0xff, 0xff}, Label: "centroid"}},
@@ -403,14 +406,15 @@ func (mv *Movie) spectraPanel() figure.Panel {
 	}
 	p := mv.Table.Spot.Period()
 	dt := p * mv.Table.Res.Spot.Periods / float64(nf)
-	bar := &figure.ColorBar{Colors: colormap.Sequential.Table(256), Label: "F_E / max"}
+	bar := &figure.ColorBar{Colors: colormap.Sequential.Table(256), Label: "*{F}_{E} / maximum"}
 	for i := 0; i <= 4; i++ {
 		bar.Ticks = append(bar.Ticks, figure.Tick{T: float64(i) / 4, Label: strconv.FormatFloat(float64(i)/4, 'g', 3, 64)})
 	}
 	return figure.Panel{
 		Image:    img,
-		X:        figure.Axis{Min: s0.MinKeV, Max: s0.MaxKeV, Label: "observed energy E [keV]"},
-		Y:        figure.Axis{Min: -dt / 2, Max: float64(nf)*dt - dt/2, Label: "observer time t_obs [M]"},
+		X:        figure.Axis{Min: s0.MinKeV, Max: s0.MaxKeV, Label: "observed energy *{E}_{obs} [keV]"},
+		Y:        figure.Axis{Min: -dt / 2, Max: float64(nf)*dt - dt/2, Label: "observer time *{t}_{obs} [M]"},
+		Size:     maps.FigureSize(mv.Table.Res.Output),
 		Title:    "line profile of the spot against time",
 		Subtitle: mv.caption(),
 		Bar:      bar,

@@ -286,8 +286,9 @@ func (p *Plan) spectraPlots(sc maps.Scales) ([]namedPlot, error) {
 		pl := figure.Plot{
 			Title:    "line profiles over the sweep",
 			Subtitle: fmt.Sprintf("%d frames, %s from %s to %s (%s spacing)", len(g), a.Key, formatValue(a.From), formatValue(a.To), a.Spacing),
-			XLabel:   "observed energy E [keV]",
-			YLabel:   "photon flux density F_E [keV⁻¹, relative]",
+			XLabel:   "observed energy *{E}_{obs} [keV]",
+			YLabel:   "photon flux *{F}_{E} [keV⁻¹, relative]",
+			Size:     maps.FigureSize(base.Output),
 			YMax:     sc.FluxMax,
 			Bar:      bar,
 		}
@@ -305,7 +306,7 @@ func (p *Plan) spectraPlots(sc maps.Scales) ([]namedPlot, error) {
 				return nil, fmt.Errorf("%s: %w", name, err)
 			}
 			if physical {
-				pl.YLabel = "photon flux density F_E [photons cm⁻² s⁻¹ keV⁻¹]"
+				pl.YLabel = "photon flux *{F}_{E} [photons cm⁻² s⁻¹ keV⁻¹]"
 			}
 			xlo, xhi = math.Min(xlo, lo), math.Max(xhi, hi)
 			t := a.Position(pt.Values[0])

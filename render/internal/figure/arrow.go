@@ -4,7 +4,6 @@ import (
 	"fmt"
 	"math"
 
-	"github.com/fogleman/gg"
 )
 
 // Arrow is an arrow over the map in data coordinates: a line through
@@ -42,7 +41,7 @@ func (a Arrow) validate(i int) error {
 
 // drawArrow draws a (clipped to the map by the caller); toFig maps data
 // to figure coordinates and win is the data window.
-func drawArrow(dc *gg.Context, st *styles, a Arrow, win [4]float64, toFig func(x, y float64) (float64, float64)) {
+func drawArrow(dc canvas, st *styles, a Arrow, win [4]float64, toFig func(x, y float64) (float64, float64)) {
 	w := lineWidth(st, 0)
 	halo := Polyline{Points: a.Points, Color: darkGrey, Width: w + 2*math.Max(1, math.Round(0.5*w))}
 	line := Polyline{Points: a.Points, Color: white, Width: w}
@@ -80,7 +79,7 @@ func drawArrow(dc *gg.Context, st *styles, a Arrow, win [4]float64, toFig func(x
 		return
 	}
 	x, y := toFig(a.LabelAt[0], a.LabelAt[1])
-	ts, ns := st.small, st.small
+	ts, ns := st.text, st.text
 	ns.color = darkGrey
 	bw, bh := width(ts, a.Label), ts.height()
 	if a.Note != "" {
