@@ -9,10 +9,10 @@ import "image/color"
 // print, and the first orders (the ones every scene shows) sit far apart
 // in hue and lightness at once.
 var orderStops = []stop{
-	{l: 0.88, c: 0.42, h: 98},  // straw
-	{l: 0.30, c: 0.50, h: 290}, // indigo
 	{l: 0.66, c: 0.34, h: 228}, // glacier cyan
 	{l: 0.46, c: 0.62, h: 340}, // magenta
+	{l: 0.88, c: 0.42, h: 98},  // straw
+	{l: 0.30, c: 0.50, h: 290}, // indigo
 	{l: 0.76, c: 0.30, h: 160}, // mint
 	{l: 0.35, c: 0.30, h: 60},  // umber
 	{l: 0.58, c: 0.52, h: 28},  // coral

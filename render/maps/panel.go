@@ -136,8 +136,8 @@ func intensityBar(f *pixels.Frame, sc Scales, p *figure.Panel) {
 	hi := sc.IMax * unit
 	if f.Res.Output.IntensityScale == "linear" {
 		bar.Ticks = endTicks(0, hi)
-		for i := 1; i < 4; i++ {
-			bar.Ticks = append(bar.Ticks, figure.Tick{T: float64(i) / 4, Label: barNumber(hi*float64(i)/4)})
+		for _, v := range linearTicks(hi) {
+			bar.Ticks = append(bar.Ticks, figure.Tick{T: math.Min(1, v/hi), Label: barNumber(v)})
 		}
 	} else {
 		lo := hi * math.Pow(10, -sc.IDecades)

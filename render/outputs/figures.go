@@ -173,7 +173,7 @@ func trapezoid(x, y []float64) float64 {
 var (
 	totalColor   = color.RGBA{0x1c, 0x1b, 0x22, 0xff}
 	restColor    = color.RGBA{0x6e, 0x6a, 0x72, 0xff}
-	overlayColor = color.RGBA{0xc2, 0x3b, 0x8e, 0xff}
+	overlayColor = color.RGBA{0x5c, 0x6b, 0x00, 0xff}
 )
 
 // SpectrumPlot returns the figure of the spectrum: total and per order,
@@ -246,7 +246,7 @@ func SpectrumPlot(s *pixels.Spectrum, title, subtitle string, fluxMax, perUnit f
 		for i, v := range ov.Flux {
 			y[i] = k * v
 		}
-		p.Series = append(p.Series, figure.Series{X: ov.E, Y: y, Color: overlayColor, Width: 2, Label: "compared: " + ov.Name, Dashed: true})
+		p.Series = append(p.Series, figure.Series{X: ov.E, Y: y, Color: overlayColor, Width: 2, Label: "compared: " + ov.Name})
 	}
 	if opt.LogY {
 		top := 0.0

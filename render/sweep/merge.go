@@ -296,7 +296,7 @@ func (p *Plan) spectraPlots(sc maps.Scales) ([]namedPlot, error) {
 			pl.Subtitle += fmt.Sprintf("; %s = %s", p.Axes[1].Key, formatValue(g[0].Values[1]))
 		}
 		if !slices.Contains([]string{a.Key, axisKey(p, 1)}, "emission.line_kev") {
-			pl.VLines = []figure.VLine{{X: base.Emission.LineKeV, Label: fmt.Sprintf("%g keV rest", base.Emission.LineKeV), Color: color.RGBA{0x60, 0x60, 0x60, 0xff}, Dashed: true}}
+			pl.VLines = []figure.VLine{{X: base.Emission.LineKeV, Label: fmt.Sprintf("rest energy %g keV", base.Emission.LineKeV), Color: color.RGBA{0x60, 0x60, 0x60, 0xff}, Dashed: true}}
 		}
 		xlo, xhi := math.Inf(1), math.Inf(-1)
 		for _, pt := range g {

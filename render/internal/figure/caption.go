@@ -75,7 +75,7 @@ func (c caption) items(st *styles) []captionItem {
 		}
 	}
 	words(st.lead, sentence(leadCase(c.lead)), nil, sp)
-	words(st.text, sentence(c.text), nil, sp)
+	words(st.text, sentence(leadCase(c.text)), nil, sp)
 	for i, k := range c.keys {
 		space := math.Round(1.1 * st.em)
 		if i == 0 {
@@ -104,7 +104,7 @@ func captionWords(s string) []string {
 	return out
 }
 
-// leadCase starts a caption's lead with a capital when it starts with a
+// leadCase starts a caption's sentence with a capital when it starts with a
 // lowercase word (not a lone symbol such as "g").
 func leadCase(s string) string {
 	if len(s) >= 2 && s[0] >= 'a' && s[0] <= 'z' && s[1] >= 'a' && s[1] <= 'z' {

@@ -363,12 +363,12 @@ func TestDrawPlotVariants(t *testing.T) {
 	if err != nil {
 		t.Fatalf("with bar: %v", err)
 	}
-	if img.Bounds().Dx() != 640 || img.Bounds().Dy() <= 400 || img.Bounds().Dy() > 520 {
-		t.Errorf("size %v, want 640 wide, 400 above the caption", img.Bounds())
+	if img.Bounds().Dx() != 640 || img.Bounds().Dy() <= 400 || img.Bounds().Dy() > 640 {
+		t.Errorf("size %v, want 640 wide, 400 above the bar and caption", img.Bounds())
 	}
-	p.Title = ""
+	p.Title, p.Bar = "", nil
 	if img, err = DrawPlot(p); err != nil || img.Bounds().Dy() != 400 {
-		t.Errorf("without a caption: %v, %v; want 640×400", err, img.Bounds())
+		t.Errorf("without a bar and a caption: %v, %v; want 640×400", err, img.Bounds())
 	}
 	p = testPlot()
 	p.XMin, p.XMax, p.YMin, p.YMax = 5, 7, -0.5, 1.5

@@ -6,6 +6,7 @@ import (
 	"image"
 	"io"
 	"math"
+	"slices"
 )
 
 // minCellMM is the narrowest grid cell: a map with its axes and 8 pt
@@ -64,9 +65,19 @@ func layoutGrid(title, subtitle string, panels []Panel, cols int, scale float64)
 			}
 		}
 	}
+	// The flat colours are explained once, in the grid's caption.
+	var fills []Swatch
+	for _, p := range panels {
+		for _, f := range p.Fills {
+			if !slices.Contains(fills, f) {
+				fills = append(fills, f)
+			}
+		}
+	}
 	cw, ch := 0, 0
 	for i, p := range panels {
 		p.Size = cell
+		p.Fills = nil
 		d, _, err := layoutPanel(p, scale)
 		if err != nil {
 			release()
@@ -86,6 +97,9 @@ func layoutGrid(title, subtitle string, panels []Panel, cols int, scale float64)
 		fw = cols * cw
 	}
 	capn := caption{lead: title, text: subtitle}
+	for _, f := range fills {
+		capn.keys = append(capn.keys, keyEntry{sample: &keySample{color: f.Color}, label: f.Label})
+	}
 	capW := float64(fw) - 2*st.pad
 	capH := 0.0
 	if !capn.empty() {

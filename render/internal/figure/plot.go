@@ -51,10 +51,11 @@ type Plot struct {
 	// coloured by a parameter.
 	Bar *ColorBar
 	// Size is the printed size: the figure is Size.Pixels() wide and the
-	// axes with their labels 0.7 times as tall, with the caption below.
+	// axes with their labels 0.7 times as tall, then the colour bar and the caption, with the caption below.
 	Size Size
 	// Width and Height, when not zero, override Size: the width of the
-	// figure and the height of everything above the caption, in pixels.
+	// figure and the height of the axes with their labels (the colour
+	// bar and the caption are added below), in pixels.
 	Width, Height int
 }
 
@@ -269,7 +270,7 @@ func layoutPlot(p Plot) (drawing, error) {
 		l = math.Ceil(st.pad + math.Max(ax.depth(sideLeft), ol))
 		r := math.Ceil(st.pad + math.Max(st.frame, or))
 		t = math.Ceil(st.pad + math.Max(st.frame, math.Max(ot, markers)))
-		b := math.Ceil(math.Max(ax.depth(sideBottom), ob) + below)
+		b := math.Ceil(math.Max(ax.depth(sideBottom), ob))
 		w, h = float64(fw)-l-r, float64(fh)-t-b
 	}
 	if w < 3*st.em || h < 3*st.em {
@@ -282,7 +283,7 @@ func layoutPlot(p Plot) (drawing, error) {
 	if !capn.empty() {
 		capH = math.Round(1.1*st.em) + captionHeight(st, capn, capW)
 	}
-	total := fh
+	total := fh + int(math.Ceil(below))
 	if capH > 0 {
 		total += int(math.Ceil(capH + st.pad))
 	}
