@@ -39,7 +39,7 @@ type SpectrumOptions struct {
 
 // Overlay is a user spectrum read by ReadOverlay.
 type Overlay struct {
-	Name   string // the file's base name, for the key
+	Name    string // the file's base name, for the key
 	E, Flux []float64
 }
 

@@ -3,7 +3,6 @@ package figure
 import (
 	"fmt"
 	"math"
-
 )
 
 // Arrow is an arrow over the map in data coordinates: a line through

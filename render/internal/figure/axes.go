@@ -2,7 +2,6 @@ package figure
 
 import (
 	"math"
-
 )
 
 // Sides of a frame.

@@ -66,12 +66,11 @@ func loadFonts() error {
 // fontSet is the family at one body size: each face at full size and at
 // script size.
 type fontSet struct {
-	size          float64
-	body, script  [faceCount]font.Face
-	ascent        float64 // ink above the baseline of ordinary text
-	descent       float64 // ink below it
-	capH          float64 // height of a digit
-	supTop, subBo float64 // extra reach of raised and lowered scripts
+	size         float64
+	body, script [faceCount]font.Face
+	ascent       float64 // ink above the baseline of ordinary text
+	descent      float64 // ink below it
+	capH         float64 // height of a digit
 }
 
 // newFontSet makes the faces of the family at size pixels.
