@@ -113,6 +113,19 @@ func endTicks(lo, hi float64) []figure.Tick {
 	return []figure.Tick{{T: 0, Label: barNumber(lo)}, {T: 1, Label: barNumber(hi)}}
 }
 
+// decadeLabel writes a power of ten v as 10 with a superscript exponent
+// (1 and 10 as they are).
+func decadeLabel(v float64) string {
+	n := int(math.Round(math.Log10(v)))
+	switch n {
+	case 0:
+		return "1"
+	case 1:
+		return "10"
+	}
+	return "10^{" + strings.ReplaceAll(strconv.Itoa(n), "-", "−") + "}"
+}
+
 // barNumber writes a colour-bar end value with three significant digits,
 // a typographic minus and a power of ten for very large or small values.
 func barNumber(v float64) string {
@@ -137,13 +150,16 @@ func intensityBar(f *pixels.Frame, sc Scales, p *figure.Panel) {
 	if f.Res.Output.IntensityScale == "linear" {
 		bar.Ticks = endTicks(0, hi)
 		for _, v := range linearTicks(hi) {
+			if !(hi > 0) || math.IsInf(hi, 0) {
+				break
+			}
 			bar.Ticks = append(bar.Ticks, figure.Tick{T: math.Min(1, v/hi), Label: barNumber(v)})
 		}
 	} else {
 		lo := hi * math.Pow(10, -sc.IDecades)
 		bar.Ticks = endTicks(lo, hi)
 		for _, v := range decadeTicks(lo, hi) {
-			bar.Ticks = append(bar.Ticks, figure.Tick{T: colormap.Log(v, lo, hi), Label: barNumber(v)})
+			bar.Ticks = append(bar.Ticks, figure.Tick{T: colormap.Log(v, lo, hi), Label: decadeLabel(v)})
 		}
 	}
 	p.Bar = bar

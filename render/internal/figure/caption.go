@@ -89,13 +89,21 @@ func (c caption) items(st *styles) []captionItem {
 	return out
 }
 
-// captionWords splits s at spaces, keeping a relation such as "i = 63°"
-// or "2 × 10⁸" in one piece so that a line never breaks inside it.
+// captionWords splits s at spaces, keeping a relation such as "i = 63°",
+// a product such as "2 × 10⁸" and a number with its unit ("30 M") in one
+// piece so that a line never breaks inside them.
 func captionWords(s string) []string {
 	var out []string
 	glue := func(w string) bool { return w == "=" || w == "×" || w == "≈" || w == "±" || w == "−" }
+	// unit reports whether w is a short unit word after a number, as in
+	// "30 M." or "6.4 keV".
+	unit := func(prev, w string) bool {
+		last := prev[len(prev)-1]
+		core := strings.TrimRight(w, ".,;:)")
+		return last >= '0' && last <= '9' && core != "" && len(core) <= 3 && strings.ContainsAny(core[:1], "MkmµGcsº°")
+	}
 	for _, w := range strings.Fields(s) {
-		if n := len(out); n > 0 && (glue(w) || glue(out[n-1]) || strings.HasSuffix(out[n-1], " =") || strings.HasSuffix(out[n-1], " ×")) {
+		if n := len(out); n > 0 && (glue(w) || glue(out[n-1]) || strings.HasSuffix(out[n-1], " =") || strings.HasSuffix(out[n-1], " ×") || unit(out[n-1], w)) {
 			out[n-1] += " " + w
 			continue
 		}
