@@ -349,15 +349,20 @@ func layoutPanel(p Panel, zoom float64) (drawing, image.Rectangle, error) {
 		for _, l := range p.Lines {
 			drawPolyline(dc, st, l, win, toFig)
 		}
+		for _, a := range p.Arrows {
+			drawArrow(dc, st, a, win, toFig)
+		}
+		// Labels after the clip: they are placed inside the map, and
+		// text under a clip region is slow to rasterise.
+		dc.ResetClip()
 		area := labelBox{ax.x0, ax.y0, ax.x0 + mw, ax.y0 + mh}
 		var placed []labelBox
 		for i, c := range p.Contours {
 			drawContourLabel(dc, st, c, paths[i], area, &placed)
 		}
 		for _, a := range p.Arrows {
-			drawArrow(dc, st, a, win, toFig)
+			drawArrowLabel(dc, st, a, toFig)
 		}
-		dc.ResetClip()
 		ax.drawFrame(dc)
 		ax.drawSides(dc)
 		y := ax.y0 + mh + math.Max(ax.depth(sideBottom), ob)
