@@ -201,15 +201,56 @@ func plotCaption(p *Plot, st *styles) caption {
 	return c
 }
 
-// markerRow is the height of the row of marker labels above a plot.
-func markerRow(st *styles, p *Plot) float64 {
-	for _, v := range p.VLines {
-		if v.Label != "" {
-			return st.text.height() + st.gap
+// maxMarkerRows bounds the rows of marker labels above a plot; a label
+// that finds no room in them is left out.
+const maxMarkerRows = 3
+
+// markerPlace is where a marker label goes: its left edge and its row
+// above the frame (0 nearest).
+type markerPlace struct {
+	x   float64
+	row int
+}
+
+// markerLayout places the marker labels of p over a plot area at x0 of
+// width w, each centred on its line where it fits, kept over the area,
+// in the lowest row where it clears the labels already placed. It
+// returns the places (ok false: not drawn) and the rows used.
+func markerLayout(st *styles, p *Plot, x0, w, xlo, xhi float64) ([]markerPlace, []bool, int) {
+	places := make([]markerPlace, len(p.VLines))
+	shown := make([]bool, len(p.VLines))
+	var taken [maxMarkerRows][][2]float64
+	rows := 0
+	for i, v := range p.VLines {
+		if v.Label == "" {
+			continue
+		}
+		x := x0 + (v.X-xlo)/(xhi-xlo)*w
+		if x < x0 || x > x0+w {
+			continue
+		}
+		tw := width(st.text, v.Label)
+		lx := math.Max(x0, math.Min(x-tw/2, x0+w-tw))
+		for row := range maxMarkerRows {
+			clash := false
+			for _, o := range taken[row] {
+				if lx < o[1]+st.em && o[0] < lx+tw+st.em {
+					clash = true
+				}
+			}
+			if !clash {
+				taken[row] = append(taken[row], [2]float64{lx, lx + tw})
+				places[i], shown[i] = markerPlace{lx, row}, true
+				rows = max(rows, row+1)
+				break
+			}
 		}
 	}
-	return 0
+	return places, shown, rows
 }
+
+// markerPitch is the height of one row of marker labels.
+func markerPitch(st *styles) float64 { return st.text.height() + st.gap }
 
 // layoutPlot lays p out: the axes fill the width and the plot height,
 // the marker labels sit above the frame, the colour bar and the caption
@@ -236,7 +277,6 @@ func layoutPlot(p Plot) (drawing, error) {
 		return drawing{}, err
 	}
 	ax := &axes{st: st}
-	markers := markerRow(st, &p)
 	below := 0.0
 	if p.Bar.continuous() {
 		below = barTop(st) + barHeight(st, p.Bar, float64(fw)-8*st.em)
@@ -269,7 +309,8 @@ func layoutPlot(p Plot) (drawing, error) {
 		}
 		l = math.Ceil(st.pad + math.Max(ax.depth(sideLeft), ol))
 		r := math.Ceil(st.pad + math.Max(st.frame, or))
-		t = math.Ceil(st.pad + math.Max(st.frame, math.Max(ot, markers)))
+		_, _, rows := markerLayout(st, &p, l, w, xlo, xhi)
+		t = math.Ceil(st.pad + math.Max(st.frame, math.Max(ot, float64(rows)*markerPitch(st))))
 		b := math.Ceil(math.Max(ax.depth(sideBottom), ob))
 		w, h = float64(fw)-l-r, float64(fh)-t-b
 	}
@@ -369,33 +410,16 @@ func drawPlotArea(dc canvas, st *styles, p *Plot, ax *axes, xlo, xhi, ylo, yhi f
 	dc.ResetClip()
 	ax.drawFrame(dc)
 	ax.drawSides(dc)
-	// Marker labels: in a row above the frame, centred on their line
-	// where it is inside the plot, kept inside the figure, never on the
-	// data; a label that would overlap an earlier one is left out.
-	var taken [][2]float64
-	for _, v := range p.VLines {
-		if v.Label == "" {
-			continue
-		}
-		x := fx(v.X)
-		if x < ax.x0 || x > ax.x0+w {
+	// Marker labels: in rows above the frame, never on the data.
+	places, shown, _ := markerLayout(st, p, ax.x0, w, xlo, xhi)
+	for i, v := range p.VLines {
+		if !shown[i] {
 			continue
 		}
 		ts := st.text
 		ts.color = orBlack(v.Color)
-		tw := width(ts, v.Label)
-		lx := math.Max(ax.x0, math.Min(x-tw/2, ax.x0+w-tw))
-		clash := false
-		for _, o := range taken {
-			if lx < o[1]+st.em && o[0] < lx+tw+st.em {
-				clash = true
-			}
-		}
-		if clash {
-			continue
-		}
-		taken = append(taken, [2]float64{lx, lx + tw})
-		drawText(dc, ts, v.Label, lx, ax.y0-st.frame-st.gap, 0, 1)
+		y := ax.y0 - st.frame - st.gap - float64(places[i].row)*markerPitch(st)
+		drawText(dc, ts, v.Label, places[i].x, y, 0, 1)
 	}
 }
 

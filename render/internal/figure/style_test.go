@@ -3,6 +3,8 @@ package figure
 import (
 	"bytes"
 	"encoding/xml"
+	"image"
+	"image/color"
 	"io"
 	"slices"
 	"strings"
@@ -228,5 +230,85 @@ func TestBarEndsAndCaption(t *testing.T) {
 	}
 	if lines[0][0].text != "The" {
 		t.Errorf("caption lead starts with %q, want the capitalised The", lines[0][0].text)
+	}
+}
+
+// recorder is a canvas that keeps the clip rectangles and the boxes of
+// the text drawn, for layout tests.
+type recorder struct {
+	rect  labelBox // the last rectangle added to the path
+	clips []labelBox
+	texts []labelBox
+	words []string
+}
+
+func (r *recorder) SetColor(color.Color)                        {}
+func (r *recorder) SetRGBA255(int, int, int, int)               {}
+func (r *recorder) SetLineWidth(float64)                        {}
+func (r *recorder) SetDash(...float64)                          {}
+func (r *recorder) SetLineCapButt()                             {}
+func (r *recorder) SetLineCapRound()                            {}
+func (r *recorder) SetLineJoinRound()                           {}
+func (r *recorder) MoveTo(float64, float64)                     {}
+func (r *recorder) LineTo(float64, float64)                     {}
+func (r *recorder) ClosePath()                                  {}
+func (r *recorder) DrawLine(float64, float64, float64, float64) {}
+func (r *recorder) DrawRectangle(x, y, w, h float64)            { r.rect = labelBox{x, y, x + w, y + h} }
+func (r *recorder) DrawRoundedRectangle(x, y, w, h, _ float64) {
+	r.DrawRectangle(x, y, w, h)
+}
+func (r *recorder) Stroke()                            {}
+func (r *recorder) Fill()                              {}
+func (r *recorder) Clip()                              { r.clips = append(r.clips, r.rect) }
+func (r *recorder) ResetClip()                         {}
+func (r *recorder) Push()                              {}
+func (r *recorder) Pop()                               {}
+func (r *recorder) Translate(float64, float64)         {}
+func (r *recorder) image(image.Rectangle, image.Image) {}
+func (r *recorder) text(t textStyle, runs []run, x, y, angle float64) {
+	w := runsWidth(t, runs)
+	b := labelBox{x, y - t.ascent, x + w, y + t.descent}
+	if angle != 0 { // a quarter turn: the text runs upward from (x, y)
+		b = labelBox{x - t.ascent, y - w, x + t.descent, y}
+	}
+	r.texts = append(r.texts, b)
+	var s strings.Builder
+	for _, ru := range runs {
+		s.WriteString(ru.s)
+	}
+	r.words = append(r.words, s.String())
+}
+
+// No label of a plot lies on its data area, so none can cross a curve:
+// the marker labels sit above the frame, the key is in the caption.
+func TestPlotLabelsOffTheCurves(t *testing.T) {
+	p := testPlot()
+	p.VLines = append(p.VLines, VLine{X: 7.9, Label: "a second marker near the edge"}, VLine{X: 6.5, Label: "a clashing marker"})
+	for _, logY := range []bool{false, true} {
+		p.LogY = logY
+		d, err := layoutPlot(p)
+		if err != nil {
+			t.Fatal(err)
+		}
+		rec := &recorder{}
+		d.draw(rec)
+		d.done()
+		if len(rec.clips) != 1 {
+			t.Fatalf("%d clip regions, want the data area", len(rec.clips))
+		}
+		area := rec.clips[0]
+		for i, b := range rec.texts {
+			if b.overlaps(area) {
+				t.Errorf("log %v: label %q at %+v lies on the data area %+v", logY, rec.words[i], b, area)
+			}
+			if b.x0 < 0 || b.x1 > float64(d.w) || b.y0 < 0 || b.y1 > float64(d.h) {
+				t.Errorf("log %v: label %q at %+v leaves the %d×%d figure", logY, rec.words[i], b, d.w, d.h)
+			}
+		}
+		for _, want := range []string{"6.4 keV rest", "a second marker near the edge", "a clashing marker", "series 0"} {
+			if !slices.Contains(rec.words, want) {
+				t.Errorf("missing marker or key text %q: %q", want, rec.words)
+			}
+		}
 	}
 }
