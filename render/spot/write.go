@@ -372,11 +372,44 @@ func (mv *Movie) centroidPanel(mean []float64) figure.Panel {
 		Y:        figure.Axis{Min: b0, Max: b1, Label: "*{β} [M]"},
 		Title:    "time-averaged image and the centroid track",
 		Size:     maps.FigureSize(t.Res.Output),
-		Fills:    []figure.Swatch{{Color: colormap.NoHit, Label: "no disk on the ray"}, {Color: colormap.Shadow, Label: "captured by the horizon"}},
+		Fills:    mv.fills(),
+		Bar:      mv.intensityBar("time-averaged *{I} / movie maximum"),
 		Subtitle: mv.caption(),
 		Lines:    []figure.Polyline{{Points: track, Color: color.RGBA{0x00, 0xb4, 0xff, 0xff}, Width: 2, Closed: t.Res.Spot.Periods == math.Trunc(t.Res.Spot.Periods)}},
 		Legend:   []figure.LegendEntry{{Color: color.RGBA{0x00, 0xb4, 0xff, 0xff}, Label: "centroid"}},
 	}
+}
+
+// fills explains the flat colours of the movie's images: the shadow, and
+// the no-disk grey unless the spot shines alone (then rays that miss it
+// sit at the bottom of the scale).
+func (mv *Movie) fills() []figure.Swatch {
+	horizon := figure.Swatch{Color: colormap.Shadow, Label: "captured by the horizon"}
+	if mv.Table.Spot.Alone {
+		return []figure.Swatch{horizon}
+	}
+	return []figure.Swatch{{Color: colormap.NoHit, Label: "no disk on the ray"}, horizon}
+}
+
+// intensityBar is the key of the movie's intensity colours (position):
+// log over four decades below the movie's maximum, or linear.
+func (mv *Movie) intensityBar(label string) *figure.ColorBar {
+	bar := &figure.ColorBar{Colors: colormap.Sequential.Table(256), Label: label, Note: "log scale"}
+	if mv.Table.Res.Output.IntensityScale == "linear" {
+		bar.Note = ""
+		for i := 0; i <= 4; i++ {
+			bar.Ticks = append(bar.Ticks, figure.Tick{T: float64(i) / 4, Label: strconv.FormatFloat(float64(i)/4, 'g', 3, 64)})
+		}
+		return bar
+	}
+	for n := -4; n <= 0; n++ {
+		label := "1"
+		if n < 0 {
+			label = "10^{−" + strconv.Itoa(-n) + "}"
+		}
+		bar.Ticks = append(bar.Ticks, figure.Tick{T: colormap.Log(math.Pow(10, float64(n)), 1e-4, 1), Label: label})
+	}
+	return bar
 }
 
 // spectraPanel draws the spot's line profile against observer time:
