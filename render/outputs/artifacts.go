@@ -21,21 +21,23 @@ import (
 type Kind uint8
 
 const (
-	FITSMaps       Kind = iota + 1 // every map as a FITS image extension (maps.fits)
-	SpectrumCSV                    // the collapsed line spectrum (spectrum.csv)
-	MapFigure                      // decorated figure of one map (<map>.png)
-	MapBare                        // pixel-exact PNG of one map (<map>-bare.png)
-	MapIndexed                     // 8-bit palette PNG of one map (<map>-indexed.png), the source of sweep GIFs
-	SpectrumFigure                 // plot of the spectrum (spectrum.png)
-	BandJSON                       // band report for scripts (band.json)
-	BandText                       // band report for people (band.txt)
-	BandFITS                       // band masks per image order (band.fits)
-	BandBare                       // pixel-exact band image (band-bare.png)
-	BandFigure                     // decorated band figure (band.png)
-	BandRedshift                   // redshift factor of the band's light (band-redshift.png)
-	Manifest                       // the effective scene (kerrscope-run.toml)
-	MapSVG                         // decorated figure of one map as vector graphics (<map>.svg)
-	SpectrumSVG                    // plot of the spectrum as vector graphics (spectrum.svg)
+	FITSMaps        Kind = iota + 1 // every map as a FITS image extension (maps.fits)
+	SpectrumCSV                     // the collapsed line spectrum (spectrum.csv)
+	MapFigure                       // decorated figure of one map (<map>.png)
+	MapBare                         // pixel-exact PNG of one map (<map>-bare.png)
+	MapIndexed                      // 8-bit palette PNG of one map (<map>-indexed.png), the source of sweep GIFs
+	SpectrumFigure                  // plot of the spectrum (spectrum.png)
+	BandJSON                        // band report for scripts (band.json)
+	BandText                        // band report for people (band.txt)
+	BandFITS                        // band masks per image order (band.fits)
+	BandBare                        // pixel-exact band image (band-bare.png)
+	BandFigure                      // decorated band figure (band.png)
+	BandRedshift                    // redshift factor of the band's light (band-redshift.png)
+	Manifest                        // the effective scene (kerrscope-run.toml)
+	MapSVG                          // decorated figure of one map as vector graphics (<map>.svg)
+	SpectrumSVG                     // plot of the spectrum as vector graphics (spectrum.svg)
+	BandSVG                         // decorated band figure as vector graphics (band.svg)
+	BandRedshiftSVG                 // band redshift figure as vector graphics (band-redshift.svg)
 )
 
 // Artifact is one file a run writes.
@@ -101,6 +103,10 @@ func Artifacts(o scene.Output, s Set) []Artifact {
 			add("band.png", BandFigure, "")
 			add("band-redshift.png", BandRedshift, "")
 		}
+		if o.Has("svg") {
+			add("band.svg", BandSVG, "")
+			add("band-redshift.svg", BandRedshiftSVG, "")
+		}
 	}
 	if s.Manifest {
 		add("kerrscope-run.toml", Manifest, "")
@@ -159,7 +165,7 @@ func Needs(arts []Artifact) pixels.Keep {
 			if m, err := maps.Lookup(a.Map); err == nil {
 				k |= m.Needs()
 			}
-		case BandJSON, BandText, BandFITS, BandBare, BandFigure, BandRedshift:
+		case BandJSON, BandText, BandFITS, BandBare, BandFigure, BandRedshift, BandSVG, BandRedshiftSVG:
 			k |= pixels.KeepBand | pixels.KeepG
 		}
 	}
@@ -265,6 +271,15 @@ func Write(ctx context.Context, arts []Artifact, job Job, put Put) error {
 				}
 				if a.Kind == SpectrumSVG {
 					data, err := spectrumSVG(job, &spec)
+					store(i, data, err)
+					return
+				}
+				if a.Kind == BandSVG || a.Kind == BandRedshiftSVG {
+					if job.Band == nil {
+						store(i, nil, fmt.Errorf("%s: no band was located", a.Name))
+						return
+					}
+					data, err := bandSVG(a.Kind, f, job.Band)
 					store(i, data, err)
 					return
 				}
@@ -394,7 +409,7 @@ func keepNames(k pixels.Keep) string {
 
 func isImage(k Kind) bool {
 	switch k {
-	case MapFigure, MapBare, MapIndexed, SpectrumFigure, BandBare, BandFigure, BandRedshift, MapSVG, SpectrumSVG:
+	case MapFigure, MapBare, MapIndexed, SpectrumFigure, BandBare, BandFigure, BandRedshift, MapSVG, SpectrumSVG, BandSVG, BandRedshiftSVG:
 		return true
 	}
 	return false

@@ -98,10 +98,10 @@ func MemoryEstimate(r scene.Resolved, s Set, workers int) int64 {
 			drawn[a.Map] = true
 			contour = contour || (a.Kind == MapFigure && a.Map == "radius")
 			rings = rings || (a.Kind == MapFigure && a.Map == "rings")
-		case BandBare, BandFigure, BandRedshift:
+		case BandBare, BandFigure, BandRedshift, BandSVG, BandRedshiftSVG:
 			drawn["band"] = true
 		}
-		if (a.Kind == MapFigure && a.Map != "rings") || a.Kind == SpectrumFigure || a.Kind == BandFigure || a.Kind == BandRedshift || a.Kind == MapSVG || a.Kind == SpectrumSVG {
+		if (a.Kind == MapFigure && a.Map != "rings") || a.Kind == SpectrumFigure || a.Kind == BandFigure || a.Kind == BandRedshift || a.Kind == MapSVG || a.Kind == SpectrumSVG || a.Kind == BandSVG || a.Kind == BandRedshiftSVG {
 			figures = true
 		}
 	}

@@ -69,8 +69,8 @@ func TestRunFiguresShareWidth(t *testing.T) {
 			t.Errorf("%d decorated figures", n)
 		}
 		svgs, _ := filepath.Glob(filepath.Join(dir, "*.svg"))
-		if len(svgs) != len(scene.MapNames)+1 {
-			t.Errorf("%d SVG figures, want every map and the spectrum", len(svgs))
+		if len(svgs) != len(scene.MapNames)+3 {
+			t.Errorf("%d SVG figures, want every map, the spectrum and the two band figures", len(svgs))
 		}
 		width := regexp.MustCompile(`<svg [^>]*width="([0-9.]+)mm"`)
 		for _, name := range svgs {

@@ -2,6 +2,7 @@ package spot
 
 import (
 	"bufio"
+	"bytes"
 	"context"
 	"fmt"
 	"image"
@@ -219,16 +220,26 @@ func (mv *Movie) WriteFiles(put outputs.Put, version string, frames bool) error 
 	if err := putFigure(put, "spot-lightcurve.png", func() (image.Image, error) { return figure.DrawPlot(mv.LightCurvePlot()) }); err != nil {
 		return err
 	}
+	svg := r.Output.Has("svg")
+	if err := putSVG(put, svg, "spot-lightcurve.svg", func(w io.Writer) error { return figure.PlotSVG(w, mv.LightCurvePlot()) }); err != nil {
+		return err
+	}
 	if err := put("spot-centroid.csv", mv.writeCentroid); err != nil {
 		return err
 	}
 	if err := putFigure(put, "spot-centroid.png", func() (image.Image, error) { return figure.DrawPanel(mv.centroidPanel(mean), 0) }); err != nil {
 		return err
 	}
+	if err := putSVG(put, svg, "spot-centroid.svg", func(w io.Writer) error { return figure.PanelSVG(w, mv.centroidPanel(mean)) }); err != nil {
+		return err
+	}
 	if err := put("spot-spectra.csv", mv.writeSpectra); err != nil {
 		return err
 	}
 	if err := putFigure(put, "spot-spectra.png", func() (image.Image, error) { return figure.DrawPanel(mv.spectraPanel(), 0) }); err != nil {
+		return err
+	}
+	if err := putSVG(put, svg, "spot-spectra.svg", func(w io.Writer) error { return figure.PanelSVG(w, mv.spectraPanel()) }); err != nil {
 		return err
 	}
 	return put("spot.toml", func(w io.Writer) error {
@@ -239,6 +250,20 @@ func (mv *Movie) WriteFiles(put outputs.Put, version string, frames bool) error 
 		_, err = fmt.Fprintf(w, "# kerrscope %s — effective scene of this spot movie; make it again with\n#   kerrscope spot --scene spot.toml\n\n%s", version, strings.TrimLeft(string(text), "\n"))
 		return err
 	})
+}
+
+// putSVG writes a figure as SVG when the scene's formats ask for it
+// (want), drawn to memory first so that a drawing error names the file
+// and leaves nothing half-written.
+func putSVG(put outputs.Put, want bool, name string, draw func(io.Writer) error) error {
+	if !want {
+		return nil
+	}
+	var b bytes.Buffer
+	if err := draw(&b); err != nil {
+		return fmt.Errorf("%s: %w", name, err)
+	}
+	return put(name, func(w io.Writer) error { _, err := w.Write(b.Bytes()); return err })
 }
 
 func putFigure(put outputs.Put, name string, draw func() (image.Image, error)) error {
