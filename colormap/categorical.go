@@ -3,17 +3,20 @@ package colormap
 import "image/color"
 
 // orderStops are the categorical colours in CIE L*C*h° (go-colorful units:
-// L*/100, C*/100, degrees). Lightness alternates between neighbours so that
-// consecutive image orders also differ in grey-scale print.
+// L*/100, C*/100, degrees). They were chosen on two axes a deuteranope
+// still sees, lightness and blue–yellow: lightness alternates between
+// neighbours so that consecutive image orders also differ in grey-scale
+// print, and the first orders (the ones every scene shows) sit far apart
+// in hue and lightness at once.
 var orderStops = []stop{
-	{l: 0.80, c: 0.72, h: 82},  // saffron
-	{l: 0.42, c: 0.42, h: 200}, // deep teal
-	{l: 0.58, c: 0.78, h: 38},  // vermilion
-	{l: 0.35, c: 0.62, h: 305}, // aubergine violet
-	{l: 0.72, c: 0.62, h: 135}, // fern green
-	{l: 0.60, c: 0.40, h: 250}, // cornflower
-	{l: 0.75, c: 0.38, h: 352}, // rose
-	{l: 0.38, c: 0.35, h: 70},  // umber
+	{l: 0.66, c: 0.34, h: 228}, // glacier cyan
+	{l: 0.46, c: 0.62, h: 340}, // magenta
+	{l: 0.88, c: 0.42, h: 98},  // straw
+	{l: 0.30, c: 0.50, h: 290}, // indigo
+	{l: 0.76, c: 0.30, h: 160}, // mint
+	{l: 0.35, c: 0.30, h: 60},  // umber
+	{l: 0.58, c: 0.52, h: 28},  // coral
+	{l: 0.40, c: 0.28, h: 200}, // petrol
 }
 
 // orderColors holds orderStops converted to sRGB.

@@ -67,26 +67,26 @@ var Shadow = color.RGBA{R: 6, G: 6, B: 8, A: 255}
 
 // Redshift is the diverging scale "doppler", meant for a ratio centred on 1
 // such as the redshift factor g (see LogRatio). Its centre, t = 0.5, is a
-// light neutral grey. Below it the scale warms through pale gold, orange
-// and red to a deep wine; above it, it cools through pale aqua, cerulean
-// and royal blue to a deep indigo. Lightness is symmetric about the centre,
+// light neutral grey. Below it the scale warms through sand, copper and
+// crimson to a deep plum; above it, it cools through glacier teal and
+// steel blue to a deep indigo-violet. Lightness is symmetric about the centre,
 // highest there and linear on each side.
 var Redshift = Map{
 	Name: "doppler",
 	lut:  &lookup{},
 	stops: []stop{
-		{t: 0.00, l: 0.20, c: 0.42, h: -5},
-		{t: 0.14, l: 0.41, c: 0.66, h: 27},
-		{t: 0.30, l: 0.65, c: 0.68, h: 52},
-		{t: 0.42, l: 0.83, c: 0.32, h: 80},
-		{t: 0.46, l: 0.89, c: 0.14, h: 84},
-		{t: 0.50, l: 0.95, c: 0, h: 88},
-		{t: 0.50, l: 0.95, c: 0, h: 200},
-		{t: 0.54, l: 0.89, c: 0.08, h: 202},
-		{t: 0.58, l: 0.83, c: 0.18, h: 205},
-		{t: 0.70, l: 0.65, c: 0.40, h: 238},
-		{t: 0.86, l: 0.41, c: 0.56, h: 278},
-		{t: 1.00, l: 0.20, c: 0.50, h: 300},
+		{t: 0.00, l: 0.20, c: 0.40, h: -22},
+		{t: 0.14, l: 0.41, c: 0.62, h: 14},
+		{t: 0.30, l: 0.65, c: 0.60, h: 46},
+		{t: 0.42, l: 0.83, c: 0.28, h: 72},
+		{t: 0.46, l: 0.89, c: 0.12, h: 80},
+		{t: 0.50, l: 0.95, c: 0, h: 86},
+		{t: 0.50, l: 0.95, c: 0, h: 196},
+		{t: 0.54, l: 0.89, c: 0.08, h: 196},
+		{t: 0.58, l: 0.83, c: 0.17, h: 198},
+		{t: 0.70, l: 0.65, c: 0.34, h: 214},
+		{t: 0.86, l: 0.41, c: 0.46, h: 254},
+		{t: 1.00, l: 0.20, c: 0.46, h: 292},
 	},
 }
 

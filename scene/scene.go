@@ -144,12 +144,61 @@ type Output struct {
 	// OrientationMarks: draw the projected spin axis and the direction
 	// of the disk's orbit on every map figure.
 	OrientationMarks bool `toml:"orientation_marks"`
+	// Column sets the width of every decorated figure: "single" or
+	// "double" for a one- or two-column journal figure (86 or 178 mm);
+	// WidthMM > 0 gives the width in millimetres instead. DPI is the
+	// resolution; text is 8 pt at any size.
+	Column  string  `toml:"column"`
+	WidthMM float64 `toml:"width_mm"`
+	DPI     float64 `toml:"dpi"`
+	// RedshiftScale places g on the redshift colour scale: "split" (log
+	// g, each side of g = 1 stretched to its own half of the scale) or
+	// "linear" (linear in g across the range, g = 1 wherever it falls).
+	RedshiftScale string `toml:"redshift_scale"`
+	// SpectrumAxis is the y axis of the spectrum figure, "linear" or
+	// "log"; SpectrumNorm scales its curves: "flux" (as computed),
+	// "area" (unit integral over energy) or "peak" (maximum 1).
+	SpectrumAxis string `toml:"spectrum_axis"`
+	SpectrumNorm string `toml:"spectrum_norm"`
+	// SpectrumOverlay, if not empty, is a CSV file of energy (keV) and
+	// flux columns drawn over the spectrum for comparison, normalised
+	// like the spectrum.
+	SpectrumOverlay string `toml:"spectrum_overlay"`
+}
+
+// Figure widths of the column presets, in millimetres, and the accepted
+// ranges of Output.WidthMM and Output.DPI.
+const (
+	SingleColumnMM = 86.0
+	DoubleColumnMM = 178.0
+	MinFigureMM    = 30.0
+	MaxFigureMM    = 500.0
+	MinDPI         = 50.0
+	MaxDPI         = 1200.0
+	// MaxFigurePixels bounds the width of a figure in pixels.
+	MaxFigurePixels = 16384
+)
+
+// FigureSize returns the width in millimetres and the resolution of the
+// decorated figures.
+func (o Output) FigureSize() (widthMM, dpi float64) {
+	widthMM = SingleColumnMM
+	if o.Column == "double" {
+		widthMM = DoubleColumnMM
+	}
+	if o.WidthMM > 0 {
+		widthMM = o.WidthMM
+	}
+	return widthMM, o.DPI
 }
 
 // Map names and format names accepted in Output.
 var (
 	MapNames    = []string{"redshift", "intensity", "radius", "order", "shadow", "delay", "rings", "temperature", "color-temperature", PolarisationMap}
-	FormatNames = []string{"png", "bare", "fits", "csv"}
+	FormatNames = []string{"png", "bare", "fits", "csv", "svg"}
+	// defaultFormats are the outputs written when the scene names none:
+	// all but svg.
+	defaultFormats = []string{"png", "bare", "fits", "csv"}
 	// defaultMaps are the maps rendered when the scene names none: all
 	// but delay, which doubles the cost of every photon (time delays).
 	defaultMaps = []string{"redshift", "intensity", "radius", "order", "shadow"}
@@ -188,7 +237,8 @@ func Default() Scene {
 		Thermal:      Thermal{ColorCorrection: DefaultColorCorrection, Bins: 200},
 		Polarisation: DefaultPolarisation(),
 		Output: Output{Directory: "kerrscope-out", Maps: append([]string(nil), defaultMaps...),
-			Formats: append([]string(nil), FormatNames...), IntensityScale: "log"},
+			Formats: append([]string(nil), defaultFormats...), IntensityScale: "log",
+			Column: "single", DPI: 300, RedshiftScale: "split", SpectrumAxis: "linear", SpectrumNorm: "flux"},
 	}
 }
 
@@ -806,6 +856,9 @@ func (s Scene) Resolve() (Resolved, error) {
 	if sc := s.Scales; sc.RadiusMax != nil && sc.RadiusMin == nil && !(*sc.RadiusMax > r.Inner) {
 		return r, fieldErr("scales.radius_max", *sc.RadiusMax, "must be above the disk's inner edge %.6g M (or give scales.radius_min too)", r.Inner)
 	}
+	if err := o.checkFigures(); err != nil {
+		return r, err
+	}
 	if r.AutoField {
 		r = r.provisionalWindow()
 	}
@@ -923,4 +976,39 @@ func parseRadius(expr string, r Resolved) (float64, error) {
 		return base - v, nil
 	}
 	return 0, fmt.Errorf("after %s use *x, +x or -x", e[:len(e)-len(rest)])
+}
+
+// checkFigures validates the keys that shape the decorated figures.
+func (o Output) checkFigures() error {
+	choice := func(key, v string, valid ...string) error {
+		for _, w := range valid {
+			if v == w {
+				return nil
+			}
+		}
+		return fieldErr(key, strconv.Quote(v), "must be %s", strings.Join(valid, " or "))
+	}
+	for _, c := range []struct {
+		key, v string
+		valid  []string
+	}{
+		{"output.column", o.Column, []string{"single", "double"}},
+		{"output.redshift_scale", o.RedshiftScale, []string{"split", "linear"}},
+		{"output.spectrum_axis", o.SpectrumAxis, []string{"linear", "log"}},
+		{"output.spectrum_norm", o.SpectrumNorm, []string{"flux", "area", "peak"}},
+	} {
+		if err := choice(c.key, c.v, c.valid...); err != nil {
+			return err
+		}
+	}
+	if o.WidthMM != 0 && !(o.WidthMM >= MinFigureMM && o.WidthMM <= MaxFigureMM) {
+		return fieldErr("output.width_mm", o.WidthMM, "must be 0 (use output.column) or %g to %g mm", MinFigureMM, MaxFigureMM)
+	}
+	if !(o.DPI >= MinDPI && o.DPI <= MaxDPI) {
+		return fieldErr("output.dpi", o.DPI, "must be %g to %g dots per inch", MinDPI, MaxDPI)
+	}
+	if mm, dpi := o.FigureSize(); math.Round(mm/25.4*dpi) > MaxFigurePixels {
+		return fieldErr("output.dpi", o.DPI, "makes a %g mm figure %.0f pixels wide, more than %d; lower output.dpi or output.width_mm", mm, math.Round(mm/25.4*dpi), MaxFigurePixels)
+	}
+	return nil
 }

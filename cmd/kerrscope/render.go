@@ -144,6 +144,13 @@ func buildScene(path string, base scene.Scene, vals []pending) (scene.Resolved, 
 	if err != nil {
 		return r, flagError(err, vals)
 	}
+	if o := r.Output.SpectrumOverlay; o != "" {
+		// The comparison spectrum is user input too: refuse a bad file
+		// before any work.
+		if _, err := outputs.ReadOverlay(o); err != nil {
+			return r, usagef("%w", err)
+		}
+	}
 	return r, nil
 }
 

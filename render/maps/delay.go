@@ -61,8 +61,9 @@ func delayPosition(_ *pixels.Frame, sc Scales) func(float64) float64 {
 
 // delayBar labels the colour bar in M after the earliest-leaving light.
 func delayBar(_ *pixels.Frame, sc Scales, p *figure.Panel) {
-	bar := &figure.ColorBar{Colors: colormap.Sequential.Table(256), Label: "t_obs − t_emit − min [M]"}
+	bar := &figure.ColorBar{Colors: colormap.Sequential.Table(256), Label: "arrival delay Δ*{t} [M]", Note: "after the earliest light"}
 	span := sc.TMax - sc.TMin
+	bar.Ticks = endTicks(0, span)
 	for _, v := range linearTicks(span) {
 		bar.Ticks = append(bar.Ticks, figure.Tick{T: v / span, Label: strconv.FormatFloat(v, 'g', 3, 64)})
 	}
@@ -71,7 +72,7 @@ func delayBar(_ *pixels.Frame, sc Scales, p *figure.Panel) {
 
 // linearTicks returns round values from 0 to span, 3 to 7 of them.
 func linearTicks(span float64) []float64 {
-	if !(span > 0) {
+	if !(span > 0) || math.IsInf(span, 0) {
 		return []float64{0}
 	}
 	step := math.Pow(10, math.Floor(math.Log10(span)))
@@ -82,8 +83,8 @@ func linearTicks(span float64) []float64 {
 		}
 	}
 	var out []float64
-	for v := 0.0; v <= span*(1+1e-9); v += step {
-		out = append(out, v)
+	for k := 0; k <= 12 && float64(k)*step <= span*(1+1e-9); k++ {
+		out = append(out, float64(k)*step)
 	}
 	return out
 }

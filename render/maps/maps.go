@@ -35,7 +35,7 @@ const (
 // Colours of the shadow map's classes.
 var (
 	EscapedColor = color.RGBA{0xd8, 0xd8, 0xd4, 0xff}
-	EdgeColor    = color.RGBA{0xf0, 0x8c, 0x00, 0xff}
+	EdgeColor    = color.RGBA{0xd0, 0x2f, 0x6a, 0xff}
 )
 
 // Map is one entry of the table of maps.
@@ -68,7 +68,7 @@ type Map struct {
 // table lists every map, in the order of scene.MapNames.
 var table = []Map{
 	{
-		Name: "redshift", Title: "redshift factor g", Scale: colormap.Redshift, needs: pixels.KeepG,
+		Name: "redshift", Title: "redshift factor *{g}", Scale: colormap.Redshift, needs: pixels.KeepG,
 		scale: &onScaleMap{value: firstSeenRow(func(f *pixels.Frame) [][]float32 { return f.G }),
 			position: func(f *pixels.Frame, sc Scales) func(float64) float64 { return sc.gPositioner() }},
 		palette:  scalePalette(colormap.Redshift),

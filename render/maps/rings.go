@@ -167,14 +167,21 @@ func ringsBar(f *pixels.Frame, sc Scales, p *figure.Panel) {
 // order's own line intensity on its own scale (linear or log as the
 // scene's output.intensity_scale), captioned with its ring width.
 func ringsGrid(m Map, f *pixels.Frame, sc Scales) (image.Image, error) {
+	title, sub, panels, cols := ringsPanels(m, f, sc)
+	return figure.DrawGrid(title, sub, panels, cols, 0)
+}
+
+// ringsPanels are the caption, the panels and the columns of the rings
+// figure.
+func ringsPanels(m Map, f *pixels.Frame, sc Scales) (title, subtitle string, panels []figure.Panel, cols int) {
 	widths := RingWidths(f)
-	panels := make([]figure.Panel, f.Orders)
+	panels = make([]figure.Panel, f.Orders)
 	for o := range panels {
 		img, imax := orderImage(f, o, sc)
 		osc := sc
 		osc.IMax = imax
 		p := m.frame(f, img)
-		p.Title = fmt.Sprintf("image order n = %d", o)
+		p.Title = fmt.Sprintf("*{n} = %d", o)
 		p.Subtitle = "the direct image"
 		if o > 0 {
 			p.Subtitle = widths[o-1].label(f.Res.MicroArcsecPerM, false)
@@ -184,7 +191,7 @@ func ringsGrid(m Map, f *pixels.Frame, sc Scales) (image.Image, error) {
 		}
 		panels[o] = p
 	}
-	return figure.DrawGrid(m.Title, f.Res.Caption(), panels, min(f.Orders, 4), 0)
+	return m.Title, f.Res.Caption(), panels, min(f.Orders, 4)
 }
 
 // orderImage is the image of order o's own line intensity (OrderLine) on a

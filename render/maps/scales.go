@@ -21,6 +21,9 @@ type Scales struct {
 	// TMin, TMax: delay colours, in M of t_o − t (raytrace.Timing); the
 	// delay map shows t_o − t − TMin. Default: the frame's range.
 	TMin, TMax float64
+	// GLinear places g linearly on the redshift scale (output.
+	// redshift_scale = "linear") instead of the split log scale.
+	GLinear bool
 }
 
 // AutoScales returns the scales the frame would choose for itself: the
@@ -66,6 +69,7 @@ func (s Scales) Fill(f *pixels.Frame) Scales {
 			*q.v = *q.by
 		}
 	}
+	s.GLinear = s.GLinear || f.Res.Output.RedshiftScale == "linear"
 	if s.complete() {
 		return s
 	}
@@ -97,19 +101,36 @@ func (s Scales) Fill(f *pixels.Frame) Scales {
 	return s
 }
 
-// GPosition places g on the diverging colour scale: g = 1 at the centre,
-// log g scaled separately on each side so that GMin and GMax reach the
-// ends (NaN stays NaN).
+// GPosition places g on the diverging colour scale, g = 1 at the centre
+// (NaN stays NaN). The split scale (the default) takes log g separately
+// on each side, so that GMin and GMax reach the two ends: equal steps of
+// the colours are equal ratios of g, but the two halves have different
+// stretches (for g from 0.17 to 1.24 the redshift side covers a factor
+// 6 and the blueshift side a factor 1.24 on the same length). The linear
+// scale (GLinear) is linear in g with the same stretch on both sides, the
+// ends at 1 ∓ D for the larger distance D of GMin and GMax from 1: the
+// side nearer 1 does not reach its end of the colours.
 func (s Scales) GPosition(g float64) float64 {
-	if g < 1 {
-		return math.Max(0, 0.5*(1-math.Log(g)/math.Log(s.GMin)))
-	}
-	return math.Min(1, 0.5*(1+math.Log(g)/math.Log(s.GMax)))
+	return s.gPositioner()(g)
+}
+
+// gLinearSpan is D of the linear scale.
+func (s Scales) gLinearSpan() float64 {
+	return math.Max(1-s.GMin, s.GMax-1)
 }
 
 // gPositioner returns GPosition with the logarithms of GMin and GMax
 // taken once: the same values, for per-pixel use.
 func (s Scales) gPositioner() func(g float64) float64 {
+	if s.GLinear {
+		d := s.gLinearSpan()
+		return func(g float64) float64 {
+			if math.IsNaN(g) {
+				return g
+			}
+			return math.Max(0, math.Min(1, 0.5+0.5*(g-1)/d))
+		}
+	}
 	lmin, lmax := math.Log(s.GMin), math.Log(s.GMax)
 	return func(g float64) float64 {
 		if g < 1 {

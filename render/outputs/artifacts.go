@@ -36,6 +36,10 @@ const (
 	Manifest                        // the effective scene (kerrscope-run.toml)
 	ContinuumCSV                    // the collapsed thermal continuum (continuum.csv)
 	ContinuumFigure                 // plot of the continuum (continuum.png)
+	MapSVG                          // decorated figure of one map as vector graphics (<map>.svg)
+	SpectrumSVG                     // plot of the spectrum as vector graphics (spectrum.svg)
+	BandSVG                         // decorated band figure as vector graphics (band.svg)
+	BandRedshiftSVG                 // band redshift figure as vector graphics (band-redshift.svg)
 )
 
 // Artifact is one file a run writes.
@@ -91,12 +95,18 @@ func Artifacts(o scene.Output, s Set) []Artifact {
 		if s.Indexed {
 			add(m+"-indexed.png", MapIndexed, m)
 		}
+		if o.Has("svg") {
+			add(m+".svg", MapSVG, m)
+		}
 	}
 	if o.Has("png") && o.Has("csv") {
 		add("spectrum.png", SpectrumFigure, "")
 		if s.Thermal {
 			add("continuum.png", ContinuumFigure, "")
 		}
+	}
+	if o.Has("svg") && o.Has("csv") {
+		add("spectrum.svg", SpectrumSVG, "")
 	}
 	if s.Band {
 		add("band.json", BandJSON, "")
@@ -110,6 +120,10 @@ func Artifacts(o scene.Output, s Set) []Artifact {
 		if o.Has("png") {
 			add("band.png", BandFigure, "")
 			add("band-redshift.png", BandRedshift, "")
+		}
+		if o.Has("svg") {
+			add("band.svg", BandSVG, "")
+			add("band-redshift.svg", BandRedshiftSVG, "")
 		}
 	}
 	if s.Manifest {
@@ -166,15 +180,15 @@ func Needs(arts []Artifact) pixels.Keep {
 		switch a.Kind {
 		case FITSMaps:
 			k |= pixels.KeepAll | stokesOf(a)
-		case SpectrumCSV, SpectrumFigure:
+		case SpectrumCSV, SpectrumFigure, SpectrumSVG:
 			k |= pixels.KeepG | pixels.KeepLine | stokesOf(a)
 		case ContinuumCSV, ContinuumFigure:
 			k |= pixels.KeepR | pixels.KeepG | pixels.KeepLine
-		case MapFigure, MapBare, MapIndexed:
+		case MapFigure, MapBare, MapIndexed, MapSVG:
 			if m, err := maps.Lookup(a.Map); err == nil {
 				k |= m.Needs()
 			}
-		case BandJSON, BandText, BandFITS, BandBare, BandFigure, BandRedshift:
+		case BandJSON, BandText, BandFITS, BandBare, BandFigure, BandRedshift, BandSVG, BandRedshiftSVG:
 			k |= pixels.KeepBand | pixels.KeepG
 		}
 	}
@@ -230,7 +244,7 @@ func Write(ctx context.Context, arts []Artifact, job Job, put Put) error {
 	var spec pixels.Spectrum
 	var specTask *task
 	for _, a := range arts {
-		if a.Kind == SpectrumCSV || a.Kind == SpectrumFigure {
+		if a.Kind == SpectrumCSV || a.Kind == SpectrumFigure || a.Kind == SpectrumSVG {
 			if job.Spectrum != nil {
 				spec = *job.Spectrum
 				specTask = &task{done: make(chan struct{})} // done already
@@ -261,18 +275,22 @@ func Write(ctx context.Context, arts []Artifact, job Job, put Put) error {
 		}
 		errs[i] = err
 	}
+	// store keeps a file made directly as bytes (SVG).
+	store := func(i int, data []byte, err error) {
+		encoded[i], errs[i] = data, err
+	}
 	// One task per map, in the order the maps first appear.
 	byMap := map[string][]int{}
 	var order []string
 	for i, a := range arts {
-		if a.Kind == MapFigure || a.Kind == MapBare || a.Kind == MapIndexed {
+		if a.Kind == MapFigure || a.Kind == MapBare || a.Kind == MapIndexed || a.Kind == MapSVG {
 			if byMap[a.Map] == nil {
 				order = append(order, a.Map)
 			}
 			byMap[a.Map] = append(byMap[a.Map], i)
 		}
 	}
-	for _, k := range []Kind{MapFigure, MapBare, MapIndexed} {
+	for _, k := range []Kind{MapFigure, MapBare, MapIndexed, MapSVG} {
 		if slices.ContainsFunc(arts, func(a Artifact) bool { return a.Kind == k }) {
 			job.Scales = job.Scales.Fill(f) // once for every map
 			break
@@ -280,7 +298,7 @@ func Write(ctx context.Context, arts []Artifact, job Job, put Put) error {
 	}
 	for _, name := range order {
 		idx := byMap[name]
-		t := add(func(s *scratch) { mapImages(arts, idx, job, s, encode) })
+		t := add(func(s *scratch) { mapImages(arts, idx, job, s, encode, store) })
 		for _, i := range idx {
 			producer[i] = t
 		}
@@ -288,7 +306,7 @@ func Write(ctx context.Context, arts []Artifact, job Job, put Put) error {
 	for i, a := range arts {
 		if isImage(a.Kind) && producer[i] == nil {
 			producer[i] = add(func(*scratch) {
-				if a.Kind == SpectrumFigure {
+				if a.Kind == SpectrumFigure || a.Kind == SpectrumSVG {
 					<-specTask.done // an earlier task: already running or done
 				}
 				if a.Kind == ContinuumFigure {
@@ -302,6 +320,20 @@ func Write(ctx context.Context, arts []Artifact, job Job, put Put) error {
 						err = fmt.Errorf("continuum figure: %w", err)
 					}
 					encode(i, img, err)
+					return
+				}
+				if a.Kind == SpectrumSVG {
+					data, err := spectrumSVG(job, &spec)
+					store(i, data, err)
+					return
+				}
+				if a.Kind == BandSVG || a.Kind == BandRedshiftSVG {
+					if job.Band == nil {
+						store(i, nil, fmt.Errorf("%s: no band was located", a.Name))
+						return
+					}
+					data, err := bandSVG(a.Kind, f, job.Band)
+					store(i, data, err)
 					return
 				}
 				img, err := drawImage(a, job, &spec)
@@ -381,7 +413,7 @@ func Write(ctx context.Context, arts []Artifact, job Job, put Put) error {
 
 // mapImages draws one map once and makes its artifacts arts[i], i in idx
 // (all of the same map), with job.Scales complete.
-func mapImages(arts []Artifact, idx []int, job Job, s *scratch, encode func(int, image.Image, error)) {
+func mapImages(arts []Artifact, idx []int, job Job, s *scratch, encode func(int, image.Image, error), store func(int, []byte, error)) {
 	f := job.Frame
 	m, err := maps.Lookup(arts[idx[0]].Map)
 	if err != nil {
@@ -403,6 +435,15 @@ func mapImages(arts []Artifact, idx []int, job Job, s *scratch, encode func(int,
 		}
 		if a.Kind == MapBare {
 			encode(i, img, nil)
+			continue
+		}
+		if a.Kind == MapSVG {
+			var b bytes.Buffer
+			err := m.FigureSVG(&b, f, job.Scales, img)
+			if err != nil {
+				err = fmt.Errorf("%s vector figure: %w", a.Map, err)
+			}
+			store(i, b.Bytes(), err)
 			continue
 		}
 		fig, err := m.NotedFigure(f, job.Scales, img, job.Note)
@@ -429,7 +470,7 @@ func keepNames(k pixels.Keep) string {
 
 func isImage(k Kind) bool {
 	switch k {
-	case MapFigure, MapBare, MapIndexed, SpectrumFigure, BandBare, BandFigure, BandRedshift, ContinuumFigure:
+	case MapFigure, MapBare, MapIndexed, SpectrumFigure, BandBare, BandFigure, BandRedshift, ContinuumFigure, MapSVG, SpectrumSVG, BandSVG, BandRedshiftSVG:
 		return true
 	}
 	return false
@@ -441,11 +482,11 @@ func drawImage(a Artifact, job Job, spec *pixels.Spectrum) (image.Image, error) 
 	f := job.Frame
 	switch a.Kind {
 	case SpectrumFigure:
-		title := job.SpectrumTitle
-		if title == "" {
-			title = "line profile collapsed from the image"
+		pl, err := jobSpectrumPlot(job, spec)
+		if err != nil {
+			return nil, fmt.Errorf("spectrum figure: %w", err)
 		}
-		img, err := figure.DrawPlot(SpectrumPlot(spec, title, f.Res.Caption(), job.Scales.FluxMax, f.Res.SpectrumPerUnit()))
+		img, err := figure.DrawPlot(pl)
 		if err != nil {
 			return nil, fmt.Errorf("spectrum figure: %w", err)
 		}

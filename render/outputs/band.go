@@ -1,6 +1,7 @@
 package outputs
 
 import (
+	"bytes"
 	"encoding/json"
 	"fmt"
 	"image"
@@ -116,30 +117,55 @@ var bandOther = color.RGBA{0xe4, 0xe4, 0xe0, 0xff}
 // bandImage draws the band's pixel-exact image, its figure or the figure
 // of its light's redshift factor.
 func bandImage(k Kind, f *pixels.Frame, b *Band) (image.Image, error) {
-	rep := b.Report
-	switch k {
-	case BandBare:
+	if k == BandBare {
 		return bandOrders(f, b.Mask), nil
-	case BandFigure:
+	}
+	p, err := bandPanel(k == BandFigure || k == BandSVG, f, b)
+	if err != nil {
+		return nil, err
+	}
+	return figure.DrawPanel(p, 0)
+}
+
+// bandSVG writes the band figure (k BandSVG) or the band's redshift
+// figure (BandRedshiftSVG) as SVG.
+func bandSVG(k Kind, f *pixels.Frame, b *Band) ([]byte, error) {
+	p, err := bandPanel(k == BandSVG, f, b)
+	if err != nil {
+		return nil, err
+	}
+	var buf bytes.Buffer
+	if err := figure.PanelSVG(&buf, p); err != nil {
+		return nil, err
+	}
+	return buf.Bytes(), nil
+}
+
+// bandPanel is the decorated figure of where the band's light lands
+// (orders true) or of its redshift factor.
+func bandPanel(orders bool, f *pixels.Frame, b *Band) (figure.Panel, error) {
+	rep := b.Report
+	if orders {
 		shadow, err := maps.Lookup("shadow")
 		if err != nil {
-			return nil, err
+			return figure.Panel{}, err
 		}
 		p := shadow.Decorate(f, maps.Scales{}, bandOrders(f, b.Mask))
 		p.Title = fmt.Sprintf("where source radii %.6g–%.6g M land", rep.RMin, rep.RMax)
+		p.Fills = nil
 		_, key := maps.CriticalOverlay(f)
 		p.Legend = []figure.LegendEntry{key}
 		bar := &figure.ColorBar{Label: "image order"}
 		for ord := 0; ord < f.Orders; ord++ {
-			bar.Swatches = append(bar.Swatches, figure.Swatch{Color: colormap.Order(ord), Label: fmt.Sprintf("band, n = %d", ord)})
+			bar.Swatches = append(bar.Swatches, figure.Swatch{Color: colormap.Order(ord), Label: fmt.Sprintf("band, *{n} = %d", ord)})
 		}
-		bar.Swatches = append(bar.Swatches, figure.Swatch{Color: bandOther, Label: "other light"}, figure.Swatch{Color: colormap.Shadow, Label: "horizon"})
+		bar.Swatches = append(bar.Swatches, figure.Swatch{Color: bandOther, Label: "other light or no disk"}, figure.Swatch{Color: colormap.Shadow, Label: "captured by the horizon"})
 		p.Bar = bar
-		return figure.DrawPanel(p, 0)
+		return p, nil
 	}
 	redshift, err := maps.Lookup("redshift")
 	if err != nil {
-		return nil, err
+		return figure.Panel{}, err
 	}
 	var sc maps.Scales // no band light: the frame's own g range
 	if rep.GMin != nil {
@@ -147,10 +173,11 @@ func bandImage(k Kind, f *pixels.Frame, b *Band) (image.Image, error) {
 	}
 	sc = sc.Fill(f)
 	p := redshift.Decorate(f, sc, bandRedshift(f, b.Mask, sc))
-	p.Title = fmt.Sprintf("redshift factor g of the light from r = %.6g–%.6g M", rep.RMin, rep.RMax)
+	p.Title = fmt.Sprintf("redshift factor *{g} of the light from *{r} = %.6g–%.6g M", rep.RMin, rep.RMax)
+	p.Fills = []figure.Swatch{{Color: bandOther, Label: "other light or no disk"}, {Color: colormap.Shadow, Label: "captured by the horizon"}}
 	line, key := maps.CriticalOverlay(f)
 	p.Lines, p.Legend = []figure.Polyline{line}, []figure.LegendEntry{key}
-	return figure.DrawPanel(p, 0)
+	return p, nil
 }
 
 // bandShade mixes c into the light grey of other light by the pixel's

@@ -1,6 +1,7 @@
 package outputs
 
 import (
+	"kerrscope/render/maps"
 	"kerrscope/render/pixels"
 	"kerrscope/scene"
 )
@@ -41,6 +42,14 @@ const (
 	// memFigures when it is the only figure).
 	memRingsPanel  = 2 << 20
 	memRingsFigure = 6 << 20
+	// memCanvasPixel is a figure canvas's bytes per pixel (RGBA and
+	// gg's clip mask); canvases are at most canvasAspect times as tall as
+	// wide, and memFigures covers those up to memCanvasBase bytes (about
+	// 900 × 700 pixels). Wider figures (output.column, width_mm, dpi) add
+	// the rest for each figure drawn at once.
+	memCanvasPixel = 5
+	canvasAspect   = 1.5
+	memCanvasBase  = 900 * 700 * memCanvasPixel
 )
 
 // MemoryEstimate returns the expected peak resident memory, in bytes, of
@@ -59,6 +68,7 @@ const (
 //     radius contour field, the encoded PNGs, and the figure canvases;
 //   - for the rings figure, one image and one panel per order and its
 //     fonts and buffers;
+//   - for figures wider than about 900 pixels, their larger canvases;
 //   - the spectra (bins × orders float64, three copies).
 //
 // FITS and CSV are streamed row by row and add nothing that grows with
@@ -84,14 +94,14 @@ func MemoryEstimate(r scene.Resolved, s Set, workers int) int64 {
 	figures, contour, rings := false, false, false
 	for _, a := range arts {
 		switch a.Kind {
-		case MapFigure, MapBare, MapIndexed:
+		case MapFigure, MapBare, MapIndexed, MapSVG:
 			drawn[a.Map] = true
 			contour = contour || (a.Kind == MapFigure && a.Map == "radius")
 			rings = rings || (a.Kind == MapFigure && a.Map == "rings")
-		case BandBare, BandFigure, BandRedshift:
+		case BandBare, BandFigure, BandRedshift, BandSVG, BandRedshiftSVG:
 			drawn["band"] = true
 		}
-		if (a.Kind == MapFigure && a.Map != "rings") || a.Kind == SpectrumFigure || a.Kind == BandFigure || a.Kind == BandRedshift {
+		if (a.Kind == MapFigure && a.Map != "rings") || a.Kind == SpectrumFigure || a.Kind == BandFigure || a.Kind == BandRedshift || a.Kind == MapSVG || a.Kind == SpectrumSVG || a.Kind == BandSVG || a.Kind == BandRedshiftSVG {
 			figures = true
 		}
 	}
@@ -103,6 +113,12 @@ func MemoryEstimate(r scene.Resolved, s Set, workers int) int64 {
 	}
 	if figures {
 		b += memFigures
+	}
+	if figures || rings {
+		w := float64(maps.FigureSize(r.Output).Pixels())
+		if extra := int64(memCanvasPixel*canvasAspect*w*w) - memCanvasBase; extra > 0 {
+			b += extra * int64(max(1, min(workers, len(arts))))
+		}
 	}
 	if rings {
 		b += memRingsFigure + n*(px*memRingsOrder+memRingsPanel)

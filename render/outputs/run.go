@@ -65,6 +65,9 @@ func Run(ctx context.Context, r scene.Resolved, opt Options) (Summary, error) {
 	}
 	defer lk.Unlock()
 	arts := Artifacts(r.Output, Set{Band: opt.Band, Manifest: true, Thermal: r.Thermal.On})
+	if err := CheckInputs(r, arts); err != nil {
+		return Summary{}, err
+	}
 	framed, err := pixels.FrameWindow(ctx, r)
 	if err != nil {
 		return Summary{}, err

@@ -301,8 +301,9 @@ func TestBandReportFiles(t *testing.T) {
 	}
 }
 
-// TestRunRings checks a run of the rings map: its figure (a row of one
-// panel per image order) and pixel-exact image are written, and the
+// TestRunRings checks a run of the rings map: its figure (at the
+// double-column width, a row of one panel per image order) and
+// pixel-exact image are written, and the
 // summary carries the ring width of every order n ≥ 1, the ones the
 // figure's panels give (maps.RingWidths of the same frame).
 func TestRunRings(t *testing.T) {
@@ -311,6 +312,7 @@ func TestRunRings(t *testing.T) {
 		s.Output.Directory, s.Output.Maps, s.Output.Formats = dir, []string{"rings"}, []string{"png", "bare"}
 		s.Screen.FieldOfView = 16
 		s.Output.OrientationMarks = true
+		s.Output.Column = "double"
 	})
 	sum, err := Run(context.Background(), r, Options{Version: "test"})
 	if err != nil {
@@ -336,7 +338,7 @@ func TestRunRings(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if cfg.Width < 2*cfg.Height {
+	if cfg.Width <= cfg.Height { // a row of panels with their labels and captions is wider than tall
 		t.Errorf("rings figure %d×%d is not a row of %d panels", cfg.Width, cfg.Height, r.Disk.Orders)
 	}
 	if _, err := os.Stat(filepath.Join(dir, "rings-bare.png")); err != nil {

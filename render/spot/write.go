@@ -2,6 +2,7 @@ package spot
 
 import (
 	"bufio"
+	"bytes"
 	"context"
 	"fmt"
 	"image"
@@ -219,16 +220,26 @@ func (mv *Movie) WriteFiles(put outputs.Put, version string, frames bool) error 
 	if err := putFigure(put, "spot-lightcurve.png", func() (image.Image, error) { return figure.DrawPlot(mv.LightCurvePlot()) }); err != nil {
 		return err
 	}
+	svg := r.Output.Has("svg")
+	if err := putSVG(put, svg, "spot-lightcurve.svg", func(w io.Writer) error { return figure.PlotSVG(w, mv.LightCurvePlot()) }); err != nil {
+		return err
+	}
 	if err := put("spot-centroid.csv", mv.writeCentroid); err != nil {
 		return err
 	}
 	if err := putFigure(put, "spot-centroid.png", func() (image.Image, error) { return figure.DrawPanel(mv.centroidPanel(mean), 0) }); err != nil {
 		return err
 	}
+	if err := putSVG(put, svg, "spot-centroid.svg", func(w io.Writer) error { return figure.PanelSVG(w, mv.centroidPanel(mean)) }); err != nil {
+		return err
+	}
 	if err := put("spot-spectra.csv", mv.writeSpectra); err != nil {
 		return err
 	}
 	if err := putFigure(put, "spot-spectra.png", func() (image.Image, error) { return figure.DrawPanel(mv.spectraPanel(), 0) }); err != nil {
+		return err
+	}
+	if err := putSVG(put, svg, "spot-spectra.svg", func(w io.Writer) error { return figure.PanelSVG(w, mv.spectraPanel()) }); err != nil {
 		return err
 	}
 	return put("spot.toml", func(w io.Writer) error {
@@ -239,6 +250,20 @@ func (mv *Movie) WriteFiles(put outputs.Put, version string, frames bool) error 
 		_, err = fmt.Fprintf(w, "# kerrscope %s — effective scene of this spot movie; make it again with\n#   kerrscope spot --scene spot.toml\n\n%s", version, strings.TrimLeft(string(text), "\n"))
 		return err
 	})
+}
+
+// putSVG writes a figure as SVG when the scene's formats ask for it
+// (want), drawn to memory first so that a drawing error names the file
+// and leaves nothing half-written.
+func putSVG(put outputs.Put, want bool, name string, draw func(io.Writer) error) error {
+	if !want {
+		return nil
+	}
+	var b bytes.Buffer
+	if err := draw(&b); err != nil {
+		return fmt.Errorf("%s: %w", name, err)
+	}
+	return put(name, func(w io.Writer) error { _, err := w.Write(b.Bytes()); return err })
 }
 
 func putFigure(put outputs.Put, name string, draw func() (image.Image, error)) error {
@@ -335,8 +360,9 @@ func (mv *Movie) LightCurvePlot() figure.Plot {
 	pl := figure.Plot{
 		Title:    "light curve of the orbiting spot",
 		Subtitle: mv.caption(),
-		XLabel:   "observer time t_obs [M]",
-		YLabel:   "line photon flux / time average",
+		XLabel:   "observer time *{t}_{obs} [M]",
+		YLabel:   "line flux / time average",
+		Size:     maps.FigureSize(t.Res.Output),
 		XMin:     0, XMax: t.Spot.Period() * t.Res.Spot.Periods,
 		Series: []figure.Series{{X: x, Y: y, Color: color.RGBA{0x10, 0x10, 0x10, 0xff}, Width: 2.5}},
 	}
@@ -367,13 +393,48 @@ func (mv *Movie) centroidPanel(mean []float64) figure.Panel {
 	}
 	return figure.Panel{
 		Image:    rgba,
-		X:        figure.Axis{Min: a0, Max: a1, Label: "α [M]"},
-		Y:        figure.Axis{Min: b0, Max: b1, Label: "β [M]"},
+		X:        figure.Axis{Min: a0, Max: a1, Label: "*{α} [M]"},
+		Y:        figure.Axis{Min: b0, Max: b1, Label: "*{β} [M]"},
 		Title:    "time-averaged image and the centroid track",
+		Size:     maps.FigureSize(t.Res.Output),
+		Fills:    mv.fills(),
+		Bar:      mv.intensityBar("time-averaged *{I} / movie maximum"),
 		Subtitle: mv.caption(),
 		Lines:    []figure.Polyline{{Points: track, Color: color.RGBA{0x00, 0xb4, 0xff, 0xff}, Width: 2, Closed: t.Res.Spot.Periods == math.Trunc(t.Res.Spot.Periods)}},
 		Legend:   []figure.LegendEntry{{Color: color.RGBA{0x00, 0xb4, 0xff, 0xff}, Label: "centroid"}},
 	}
+}
+
+// fills explains the flat colours of the movie's images: the shadow, and
+// the no-disk grey unless the spot shines alone (then rays that miss it
+// sit at the bottom of the scale).
+func (mv *Movie) fills() []figure.Swatch {
+	horizon := figure.Swatch{Color: colormap.Shadow, Label: "captured by the horizon"}
+	if mv.Table.Spot.Alone {
+		return []figure.Swatch{horizon}
+	}
+	return []figure.Swatch{{Color: colormap.NoHit, Label: "no disk on the ray"}, horizon}
+}
+
+// intensityBar is the key of the movie's intensity colours (position):
+// log over four decades below the movie's maximum, or linear.
+func (mv *Movie) intensityBar(label string) *figure.ColorBar {
+	bar := &figure.ColorBar{Colors: colormap.Sequential.Table(256), Label: label, Note: "log scale"}
+	if mv.Table.Res.Output.IntensityScale == "linear" {
+		bar.Note = ""
+		for i := 0; i <= 4; i++ {
+			bar.Ticks = append(bar.Ticks, figure.Tick{T: float64(i) / 4, Label: strconv.FormatFloat(float64(i)/4, 'g', 3, 64)})
+		}
+		return bar
+	}
+	for n := -4; n <= 0; n++ {
+		label := "1"
+		if n < 0 {
+			label = "10^{−" + strconv.Itoa(-n) + "}"
+		}
+		bar.Ticks = append(bar.Ticks, figure.Tick{T: colormap.Log(math.Pow(10, float64(n)), 1e-4, 1), Label: label})
+	}
+	return bar
 }
 
 // spectraPanel draws the spot's line profile against observer time:
@@ -403,14 +464,15 @@ func (mv *Movie) spectraPanel() figure.Panel {
 	}
 	p := mv.Table.Spot.Period()
 	dt := p * mv.Table.Res.Spot.Periods / float64(nf)
-	bar := &figure.ColorBar{Colors: colormap.Sequential.Table(256), Label: "F_E / max"}
+	bar := &figure.ColorBar{Colors: colormap.Sequential.Table(256), Label: "*{F}_{E} / maximum"}
 	for i := 0; i <= 4; i++ {
 		bar.Ticks = append(bar.Ticks, figure.Tick{T: float64(i) / 4, Label: strconv.FormatFloat(float64(i)/4, 'g', 3, 64)})
 	}
 	return figure.Panel{
 		Image:    img,
-		X:        figure.Axis{Min: s0.MinKeV, Max: s0.MaxKeV, Label: "observed energy E [keV]"},
-		Y:        figure.Axis{Min: -dt / 2, Max: float64(nf)*dt - dt/2, Label: "observer time t_obs [M]"},
+		X:        figure.Axis{Min: s0.MinKeV, Max: s0.MaxKeV, Label: "observed energy *{E}_{obs} [keV]"},
+		Y:        figure.Axis{Min: -dt / 2, Max: float64(nf)*dt - dt/2, Label: "observer time *{t}_{obs} [M]"},
+		Size:     maps.FigureSize(mv.Table.Res.Output),
 		Title:    "line profile of the spot against time",
 		Subtitle: mv.caption(),
 		Bar:      bar,

@@ -3,6 +3,8 @@ package spot
 import (
 	"bytes"
 	"context"
+	"encoding/xml"
+	"io"
 	"os"
 	"path/filepath"
 	"strings"
@@ -46,5 +48,52 @@ func TestRunReproducible(t *testing.T) {
 	lc := string(runs[0]["spot-lightcurve.csv"])
 	if !strings.Contains(lc, "t_obs_m,orbits,flux,flux_spot,flux_bol\n") || !strings.Contains(lc, "M^2") {
 		t.Errorf("light curve header lacks columns or units:\n%s", lc)
+	}
+}
+
+// With svg among the formats the light curve, the centroid and the
+// spectra figures are also written as SVG: well-formed XML (encoding/xml)
+// carrying the axis labels as text, the same bytes on a second run.
+func TestRunSVG(t *testing.T) {
+	dir := filepath.Join(t.TempDir(), "movie")
+	var first map[string][]byte
+	for run := range 2 {
+		r, sp := movieScene(t, 0.9, 60, func(s *scene.Scene) {
+			s.Screen.Width, s.Screen.Height, s.Spot.Frames = 24, 24, 6
+			s.Output.Directory = dir
+			s.Output.Formats = []string{"png", "svg"}
+		})
+		if _, err := Run(context.Background(), r, sp, Options{Version: "test"}); err != nil {
+			t.Fatal(err)
+		}
+		got := map[string][]byte{}
+		for name, label := range map[string]string{"spot-lightcurve.svg": "observer time tobs [M]", "spot-centroid.svg": "β [M]", "spot-spectra.svg": "observed energy Eobs [keV]"} {
+			data, err := os.ReadFile(filepath.Join(dir, name))
+			if err != nil {
+				t.Fatal(err)
+			}
+			got[name] = data
+			var text strings.Builder
+			dec := xml.NewDecoder(bytes.NewReader(data))
+			for {
+				tok, err := dec.Token()
+				if err == io.EOF {
+					break
+				}
+				if err != nil {
+					t.Fatalf("%s is not XML: %v", name, err)
+				}
+				if cd, ok := tok.(xml.CharData); ok {
+					text.Write(cd)
+				}
+			}
+			if !strings.Contains(text.String(), label) {
+				t.Errorf("%s has no text %q", name, label)
+			}
+			if run == 1 && !bytes.Equal(data, first[name]) {
+				t.Errorf("%s differs between runs", name)
+			}
+		}
+		first = got
 	}
 }

@@ -99,7 +99,7 @@ func labelledFrame(pi *image.Paletted, pal color.Palette, label string, bar *fig
 	dc.SetFontFace(truetype.NewFace(gifFont, &truetype.Options{Size: em}))
 	dc.SetRGB(0, 0, 0)
 	pad := math.Round(0.5 * em)
-	dc.DrawString(label, pad, pad+0.9*em)
+	dc.DrawString(figure.Plain(label), pad, pad+0.9*em)
 	x0, x1 := pad, float64(w)-pad
 	y0 := math.Round(pad + 1.5*em)
 	y1 := y0 + math.Round(0.9*em)
@@ -122,12 +122,13 @@ func labelledFrame(pi *image.Paletted, pal color.Palette, label string, bar *fig
 			x := math.Round(x0+tk.T*(x1-x0)) + 0.5
 			dc.DrawLine(x, y1, x, y1+0.3*em)
 			dc.Stroke()
-			tw, _ := dc.MeasureString(tk.Label)
+			lb := figure.Plain(tk.Label)
+			tw, _ := dc.MeasureString(lb)
 			lx := math.Min(math.Max(x-tw/2, 0), float64(w)-tw)
 			if lx < right+0.5*em {
 				continue // the label would touch the one before
 			}
-			dc.DrawString(tk.Label, lx, y1+0.3*em+em)
+			dc.DrawString(lb, lx, y1+0.3*em+em)
 			right = lx + tw
 		}
 	default:
@@ -139,13 +140,14 @@ func labelledFrame(pi *image.Paletted, pal color.Palette, label string, bar *fig
 			fills = append(fills, span{int(x), int(x + q), int(y0), int(y0 + q), func(int) uint8 { return c }})
 			dc.DrawRectangle(x-0.5, y0-0.5, q+1, q+1)
 			dc.Stroke()
-			dc.DrawString(s.Label, x+q+0.3*em, y0+0.8*em)
-			tw, _ := dc.MeasureString(s.Label)
+			lb := figure.Plain(s.Label)
+			dc.DrawString(lb, x+q+0.3*em, y0+0.8*em)
+			tw, _ := dc.MeasureString(lb)
 			x += q + 0.3*em + tw + 0.8*em
 		}
 	}
 	if bar != nil {
-		dc.DrawString(bar.Label, pad, y1+0.3*em+2.2*em)
+		dc.DrawString(figure.Plain(bar.Label), pad, y1+0.3*em+2.2*em)
 	}
 
 	out := image.NewPaletted(image.Rect(0, 0, w, h+sh), pal)

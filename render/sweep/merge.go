@@ -315,8 +315,9 @@ func (p *Plan) spectraPlots(sc maps.Scales) ([]namedPlot, error) {
 		pl := figure.Plot{
 			Title:    "line profiles over the sweep",
 			Subtitle: fmt.Sprintf("%d frames, %s (%s spacing)", len(g), rangeText(q, a.From, a.To), a.Spacing),
-			XLabel:   "observed energy E [keV]",
-			YLabel:   "photon flux density F_E [keV⁻¹, relative]",
+			XLabel:   "observed energy *{E}_{obs} [keV]",
+			YLabel:   "photon flux *{F}_{E} [keV⁻¹, relative]",
+			Size:     maps.FigureSize(base.Output),
 			YMax:     sc.FluxMax,
 			Bar:      bar,
 		}
@@ -324,7 +325,7 @@ func (p *Plan) spectraPlots(sc maps.Scales) ([]namedPlot, error) {
 			pl.Subtitle += "; " + scene.QuantityOf(p.Axes[1].Key).Value(formatValue(g[0].Values[1]))
 		}
 		if !slices.Contains([]string{a.Key, axisKey(p, 1)}, "emission.line_kev") {
-			pl.VLines = []figure.VLine{{X: base.Emission.LineKeV, Label: fmt.Sprintf("%g keV rest", base.Emission.LineKeV), Color: color.RGBA{0x60, 0x60, 0x60, 0xff}, Dashed: true}}
+			pl.VLines = []figure.VLine{{X: base.Emission.LineKeV, Label: fmt.Sprintf("rest energy %g keV", base.Emission.LineKeV), Color: color.RGBA{0x60, 0x60, 0x60, 0xff}, Dashed: true}}
 		}
 		xlo, xhi := math.Inf(1), math.Inf(-1)
 		for _, pt := range g {
@@ -334,7 +335,7 @@ func (p *Plan) spectraPlots(sc maps.Scales) ([]namedPlot, error) {
 				return nil, fmt.Errorf("%s: %w", name, err)
 			}
 			if physical {
-				pl.YLabel = "photon flux density F_E [photons cm⁻² s⁻¹ keV⁻¹]"
+				pl.YLabel = "photon flux *{F}_{E} [photons cm⁻² s⁻¹ keV⁻¹]"
 			}
 			xlo, xhi = math.Min(xlo, lo), math.Max(xhi, hi)
 			t := a.Position(pt.Values[0])

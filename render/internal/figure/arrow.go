@@ -3,8 +3,6 @@ package figure
 import (
 	"fmt"
 	"math"
-
-	"github.com/fogleman/gg"
 )
 
 // Arrow is an arrow over the map in data coordinates: a line through
@@ -40,9 +38,10 @@ func (a Arrow) validate(i int) error {
 	return nil
 }
 
-// drawArrow draws a (clipped to the map by the caller); toFig maps data
-// to figure coordinates and win is the data window.
-func drawArrow(dc *gg.Context, st *styles, a Arrow, win [4]float64, toFig func(x, y float64) (float64, float64)) {
+// drawArrow draws the line and head of a (clipped to the map by the
+// caller); toFig maps data to figure coordinates and win is the data
+// window. Its label is drawn by drawArrowLabel.
+func drawArrow(dc canvas, st *styles, a Arrow, win [4]float64, toFig func(x, y float64) (float64, float64)) {
 	w := lineWidth(st, 0)
 	halo := Polyline{Points: a.Points, Color: darkGrey, Width: w + 2*math.Max(1, math.Round(0.5*w))}
 	line := Polyline{Points: a.Points, Color: white, Width: w}
@@ -76,11 +75,17 @@ func drawArrow(dc *gg.Context, st *styles, a Arrow, win [4]float64, toFig func(x
 	drawPolyline(dc, st, line, win, toFig)
 	dc.SetColor(white)
 	head(0)
+}
+
+// drawArrowLabel writes the label (and note) of a, drawn after the clip
+// region is reset: text under a clip region costs gg a canvas-sized
+// image per string.
+func drawArrowLabel(dc canvas, st *styles, a Arrow, toFig func(x, y float64) (float64, float64)) {
 	if a.Label == "" {
 		return
 	}
 	x, y := toFig(a.LabelAt[0], a.LabelAt[1])
-	ts, ns := st.small, st.small
+	ts, ns := st.text, st.text
 	ns.color = darkGrey
 	bw, bh := width(ts, a.Label), ts.height()
 	if a.Note != "" {

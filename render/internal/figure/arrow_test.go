@@ -47,7 +47,7 @@ func TestArrowDrawn(t *testing.T) {
 	if n := extent(0.7); n != 0 {
 		t.Errorf("white beyond the arrow's head at x = 0.7: %d pixels", n)
 	}
-	if shaft, head := extent(0), extent(0.48); !(head > shaft+2) {
+	if shaft, head := extent(0), extent(0.44); !(head > shaft+2) {
 		t.Errorf("head %d pixels tall just behind the tip, shaft %d: no arrow head", head, shaft)
 	}
 	// The label box is light.
@@ -56,14 +56,18 @@ func TestArrowDrawn(t *testing.T) {
 	}
 }
 
-// TestDrawGrid checks the grid layout: cells as large as the largest
-// panel, cols to a row under the title, and clear errors for bad input.
+// TestDrawGrid checks the grid layout: the grid as wide as the panels'
+// Size, each cell an equal share of it drawn as DrawPanel draws the panel
+// at that width, the caption under the cells, and clear errors for bad
+// input.
 func TestDrawGrid(t *testing.T) {
 	panel := func(w, h int) Panel {
 		return Panel{Image: testMap(w, h), X: Axis{Min: -1, Max: 1, Label: "α [M]"}, Y: Axis{Min: -1, Max: 1, Label: "β [M]"}, Title: "n"}
 	}
 	ps := []Panel{panel(30, 30), panel(30, 30), panel(30, 30)}
-	one, err := DrawPanel(ps[0], gridScale(30))
+	cell := ps[0]
+	cell.Size = Size{WidthMM: SingleColumnMM / 2}
+	one, err := DrawPanel(cell, 0)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -72,13 +76,12 @@ func TestDrawGrid(t *testing.T) {
 		t.Fatal(err)
 	}
 	w, h := one.Bounds().Dx(), one.Bounds().Dy()
-	if gw, gh := g.Bounds().Dx(), g.Bounds().Dy(); gw != 2*w || gh <= 2*h || gh > 2*h+200 {
+	if gw, gh := g.Bounds().Dx(), g.Bounds().Dy(); gw != (Size{}).Pixels() || w > gw/2 || gh <= 2*h || gh > 2*h+200 {
 		t.Errorf("grid %d×%d for 2×2 cells of %d×%d", gw, gh, w, h)
 	}
 	// The first cell is the first panel, pixel for pixel.
-	top := g.Bounds().Dy() - 2*h
 	for y := 0; y < h; y++ {
-		if !slices.Equal(one.Pix[y*one.Stride:y*one.Stride+4*w], g.Pix[(top+y)*g.Stride:(top+y)*g.Stride+4*w]) {
+		if !slices.Equal(one.Pix[y*one.Stride:y*one.Stride+4*w], g.Pix[y*g.Stride:y*g.Stride+4*w]) {
 			t.Fatalf("row %d of the first cell differs from the panel", y)
 		}
 	}

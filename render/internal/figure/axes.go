@@ -2,8 +2,6 @@ package figure
 
 import (
 	"math"
-
-	"github.com/fogleman/gg"
 )
 
 // Sides of a frame.
@@ -39,11 +37,11 @@ func (a *axes) tickDepth(side int) float64 {
 	}
 	d := a.st.frame + a.st.tickLen + a.st.gap
 	if horizontal(side) {
-		return d + a.st.tick.height()
+		return d + a.st.text.height()
 	}
 	maxW := 0.0
 	for _, t := range sc.ticks {
-		maxW = math.Max(maxW, width(a.st.tick, t.label))
+		maxW = math.Max(maxW, width(a.st.text, t.label))
 	}
 	return d + maxW
 }
@@ -52,7 +50,7 @@ func (a *axes) tickDepth(side int) float64 {
 func (a *axes) depth(side int) float64 {
 	d := a.tickDepth(side)
 	if sc := a.sides[side]; sc != nil && sc.label != "" {
-		d += a.labelGap() + a.st.label.height()
+		d += a.labelGap() + a.st.text.height()
 	}
 	return d
 }
@@ -66,21 +64,21 @@ func (a *axes) overhang() (l, r, t, b float64) {
 		}
 		if horizontal(side) {
 			for _, tk := range sc.ticks {
-				hw := width(a.st.tick, tk.label) / 2
+				hw := width(a.st.text, tk.label) / 2
 				l = math.Max(l, hw-tk.f*a.w)
 				r = math.Max(r, hw-(1-tk.f)*a.w)
 			}
-			if lw := width(a.st.label, sc.label); lw > a.w {
+			if lw := width(a.st.text, sc.label); lw > a.w {
 				l = math.Max(l, (lw-a.w)/2)
 				r = math.Max(r, (lw-a.w)/2)
 			}
 			continue
 		}
 		if len(sc.ticks) > 0 {
-			hh := a.st.tick.height() / 2
+			hh := a.st.text.height() / 2
 			t, b = math.Max(t, hh), math.Max(b, hh)
 		}
-		if lw := width(a.st.label, sc.label); lw > a.h {
+		if lw := width(a.st.text, sc.label); lw > a.h {
 			t = math.Max(t, (lw-a.h)/2)
 			b = math.Max(b, (lw-a.h)/2)
 		}
@@ -94,9 +92,9 @@ func labelsFit(st *styles, sc scale, length float64, isHorizontal bool) bool {
 	for i := 1; i < len(sc.ticks); i++ {
 		p, q := sc.ticks[i-1], sc.ticks[i]
 		dist := math.Abs(q.f-p.f) * length
-		need := st.tick.capH + 0.6*st.em
+		need := st.text.capH + 0.6*st.em
 		if isHorizontal {
-			need = (width(st.tick, p.label)+width(st.tick, q.label))/2 + 0.8*st.em
+			need = (width(st.text, p.label)+width(st.text, q.label))/2 + 0.8*st.em
 		}
 		if dist < need {
 			return false
@@ -125,7 +123,7 @@ func snap(c, lw float64) float64 {
 }
 
 // drawFrame draws the frame just outside the data rectangle.
-func (a *axes) drawFrame(dc *gg.Context) {
+func (a *axes) drawFrame(dc canvas) {
 	lw := a.st.frame
 	dc.SetColor(black)
 	dc.SetLineWidth(lw)
@@ -136,7 +134,7 @@ func (a *axes) drawFrame(dc *gg.Context) {
 
 // drawSides draws ticks, tick labels and axis labels on every side that
 // has a scale.
-func (a *axes) drawSides(dc *gg.Context) {
+func (a *axes) drawSides(dc canvas) {
 	st := a.st
 	lw := st.frame
 	dc.SetColor(black)
@@ -175,13 +173,13 @@ func (a *axes) drawSides(dc *gg.Context) {
 		for _, t := range sc.ticks {
 			switch side {
 			case sideBottom:
-				drawText(dc, st.tick, t.label, a.x0+t.f*a.w, a.y0+a.h+td, 0.5, 0)
+				drawText(dc, st.text, t.label, a.x0+t.f*a.w, a.y0+a.h+td, 0.5, 0)
 			case sideTop:
-				drawText(dc, st.tick, t.label, a.x0+t.f*a.w, a.y0-td, 0.5, 1)
+				drawText(dc, st.text, t.label, a.x0+t.f*a.w, a.y0-td, 0.5, 1)
 			case sideLeft:
-				drawNumber(dc, st.tick, t.label, a.x0-td, a.y0+(1-t.f)*a.h, 1, 0.5)
+				drawNumber(dc, st.text, t.label, a.x0-td, a.y0+(1-t.f)*a.h, 1, 0.5)
 			case sideRight:
-				drawNumber(dc, st.tick, t.label, a.x0+a.w+td, a.y0+(1-t.f)*a.h, 0, 0.5)
+				drawNumber(dc, st.text, t.label, a.x0+a.w+td, a.y0+(1-t.f)*a.h, 0, 0.5)
 			}
 		}
 		if sc.label == "" {
@@ -190,13 +188,13 @@ func (a *axes) drawSides(dc *gg.Context) {
 		ld := a.tickDepth(side) + a.labelGap()
 		switch side {
 		case sideBottom:
-			drawText(dc, st.label, sc.label, a.x0+a.w/2, a.y0+a.h+ld, 0.5, 0)
+			drawText(dc, st.text, sc.label, a.x0+a.w/2, a.y0+a.h+ld, 0.5, 0)
 		case sideTop:
-			drawText(dc, st.label, sc.label, a.x0+a.w/2, a.y0-ld, 0.5, 1)
+			drawText(dc, st.text, sc.label, a.x0+a.w/2, a.y0-ld, 0.5, 1)
 		case sideLeft:
-			drawTextUp(dc, st.label, sc.label, a.x0-ld-st.label.height()/2, a.y0+a.h/2)
+			drawTextUp(dc, st.text, sc.label, a.x0-ld-st.text.height()/2, a.y0+a.h/2)
 		case sideRight:
-			drawTextUp(dc, st.label, sc.label, a.x0+a.w+ld+st.label.height()/2, a.y0+a.h/2)
+			drawTextUp(dc, st.text, sc.label, a.x0+a.w+ld+st.text.height()/2, a.y0+a.h/2)
 		}
 	}
 }

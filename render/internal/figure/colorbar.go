@@ -6,37 +6,43 @@ import (
 	"image"
 	"image/color"
 	"math"
-
-	"github.com/fogleman/gg"
+	"sort"
 )
 
 // ColorBar is the key to the colours of a map or of plotted series. It is
 // either continuous (Colors, with Ticks and Label) or categorical
 // (Swatches, with Label as a heading); setting both is an error.
+//
+// In the house style a continuous bar is a strip under the data area, as
+// wide as it, with its title (Label) above the strip and its tick labels
+// below; a categorical key is set inline in the caption.
 type ColorBar struct {
 	// Colors are the colours of a continuous bar sampled evenly from the
-	// bottom (t = 0) to the top (t = 1); each row of the bar shows the
-	// nearest sample.
+	// left (t = 0) to the right (t = 1) end.
 	Colors []color.RGBA
 	// Ticks are labelled positions along the bar, t in [0, 1]. The
 	// caller decides what values they stand for (linear, logarithmic,
-	// diverging, ...).
+	// diverging, ...) and should label both ends; labels that would
+	// collide are dropped, except those nearest the two ends.
 	Ticks []Tick
-	// Label names the quantity, e.g. "g = E_obs/E_emit". It is written
-	// along the bar, or above it when it is longer than the bar.
+	// Label is the bar's title: the quantity with its unit in brackets,
+	// in the label markup (e.g. "g = E_{obs}/E_{emit}").
 	Label string
+	// Note, if not empty, is written after the title in the muted
+	// colour, e.g. how the scale is stretched.
+	Note string
 	// Swatches make the bar a categorical key: one coloured square and
-	// label per entry, from the top down.
+	// label per entry, in order.
 	Swatches []Swatch
 }
 
-// Tick is a labelled position on a colour bar, T in [0, 1] from the bottom.
+// Tick is a labelled position on a colour bar, T in [0, 1] from the left.
 type Tick struct {
 	T     float64
 	Label string
 }
 
-// Swatch is one entry of a categorical key.
+// Swatch is one entry of a categorical key: a square of flat colour.
 type Swatch struct {
 	Color color.RGBA
 	Label string
@@ -62,204 +68,145 @@ func (b *ColorBar) validate() error {
 	return nil
 }
 
-// barBox is the space a colour bar or key needs: its width to the right of
-// its left edge, and how far it reaches above the top and below the bottom
-// of the data area it sits beside.
-type barBox struct {
-	w, above, below float64
-	labelOnTop      bool
+// continuous reports whether b is drawn as a strip (not in the caption).
+func (b *ColorBar) continuous() bool { return b != nil && len(b.Swatches) == 0 }
+
+// keys returns the caption entries of a categorical key.
+func (b *ColorBar) keys() []keyEntry {
+	if b == nil || len(b.Swatches) == 0 {
+		return nil
+	}
+	var out []keyEntry
+	if b.Label != "" {
+		out = append(out, keyEntry{label: b.Label + ":"})
+	}
+	for _, s := range b.Swatches {
+		out = append(out, keyEntry{sample: &keySample{color: s.Color}, label: s.Label})
+	}
+	return out
 }
 
-// barWidth is the width of the coloured strip of a continuous bar.
-func barWidth(st *styles) float64 { return math.Round(1.1 * st.em) }
+// stripHeight is the height of a continuous bar's coloured strip.
+func stripHeight(st *styles) float64 { return math.Round(0.75 * st.em) }
 
-// swatchSize is the side of a key's colour square and the row pitch.
-func swatchSize(st *styles) (q, pitch float64) {
-	q = math.Round(st.em)
-	pitch = math.Round(math.Max(q, st.tick.height()) + 0.45*st.em)
-	return q, pitch
+// barTop is the space between the data area's decorations and the bar.
+func barTop(st *styles) float64 { return math.Round(0.9 * st.em) }
+
+// barHeight is the height of a continuous bar block of width w: title
+// (and note, on a line of its own when both do not fit in w), strip,
+// ticks and tick labels.
+func barHeight(st *styles, b *ColorBar, w float64) float64 {
+	h := stripHeight(st) + st.frame + st.tickLen + st.gap + st.text.height()
+	if b.Label != "" || b.Note != "" {
+		h += st.text.height() + math.Round(0.35*st.em)
+	}
+	if noteBelow(st, b, w) {
+		h += st.text.height()
+	}
+	return h
 }
 
-// measureBar returns the space bar needs next to a data area of height h.
-func measureBar(st *styles, b *ColorBar, h float64) barBox {
-	if len(b.Swatches) > 0 {
-		q, pitch := swatchSize(st)
-		w := width(st.label, b.Label)
-		for _, s := range b.Swatches {
-			// 0.5 em of slack: hinted glyphs can draw wider than measured.
-			w = math.Max(w, q+0.5*st.em+width(st.tick, s.Label)+0.5*st.em)
+// noteBelow reports whether the bar's note goes on a second title line.
+func noteBelow(st *styles, b *ColorBar, w float64) bool {
+	return b.Label != "" && b.Note != "" && width(st.text, b.Label)+math.Round(0.6*st.em)+width(st.muted, b.Note) > w
+}
+
+// shownTicks returns the ticks of b whose labels fit along a bar of width
+// w: the two nearest the ends first, then the others in order where they
+// keep clear of those already kept.
+func shownTicks(st *styles, b *ColorBar, w float64) []Tick {
+	ts := append([]Tick(nil), b.Ticks...)
+	sort.SliceStable(ts, func(i, j int) bool { return ts[i].T < ts[j].T })
+	if len(ts) <= 1 {
+		return ts
+	}
+	type span struct{ a, b float64 }
+	box := func(t Tick) span {
+		c, hw := t.T*w, width(st.text, t.Label)/2+0.4*st.em
+		return span{c - hw, c + hw}
+	}
+	kept := []Tick{ts[0], ts[len(ts)-1]}
+	if box(ts[0]).b > box(ts[len(ts)-1]).a {
+		kept = kept[1:]
+	}
+	for _, t := range ts[1 : len(ts)-1] {
+		bt, ok := box(t), true
+		for _, k := range kept {
+			if bk := box(k); bt.a < bk.b && bk.a < bt.b {
+				ok = false
+				break
+			}
 		}
-		ht := float64(len(b.Swatches)-1)*pitch + q
-		if b.Label != "" {
-			ht += st.label.height() + 0.5*st.em
+		if ok {
+			kept = append(kept, t)
 		}
-		return barBox{w: w, below: math.Max(0, ht-h)}
 	}
-	maxW := 0.0
-	for _, t := range b.Ticks {
-		maxW = math.Max(maxW, width(st.tick, t.Label))
-	}
-	w := barWidth(st) + st.frame
-	if len(b.Ticks) > 0 {
-		w += st.tickLen + st.gap + maxW
-	}
-	box := barBox{w: w}
-	if len(b.Ticks) > 0 {
-		hh := st.tick.height() / 2
-		box.above, box.below = hh, hh
-	}
-	if b.Label == "" {
-		return box
-	}
-	lw := width(st.label, b.Label)
-	switch {
-	case lw <= 2*barWidth(st):
-		// A symbol such as "g" reads best upright, centred over the bar.
-		box.labelOnTop = true
-		box.w = math.Max(box.w, barWidth(st)/2+lw/2)
-	case lw <= 0.95*h:
-		box.w += 0.45*st.em + st.label.height()
-		return box
-	default:
-		box.labelOnTop = true
-		box.w = math.Max(box.w, lw)
-	}
-	box.above = math.Max(box.above, st.label.height()+0.6*st.em)
-	return box
+	sort.SliceStable(kept, func(i, j int) bool { return kept[i].T < kept[j].T })
+	return kept
 }
 
-// drawBar draws bar with its left edge at x beside a data area whose top
-// is y and height h.
-func drawBar(dc *gg.Context, img *image.RGBA, st *styles, b *ColorBar, box barBox, x, y, h float64) {
-	if len(b.Swatches) > 0 {
-		drawKey(dc, st, b, x, y)
-		return
+// barOverhang is how far the tick labels of a bar of width w reach beyond
+// its left and right ends.
+func barOverhang(st *styles, b *ColorBar, w float64) (l, r float64) {
+	for _, t := range shownTicks(st, b, w) {
+		hw := width(st.text, t.Label) / 2
+		l = math.Max(l, hw-t.T*w)
+		r = math.Max(r, hw-(1-t.T)*w)
 	}
-	bw := barWidth(st)
-	x0, y0, ih := int(x), int(y), int(h)
+	return l, r
+}
+
+// drawBar draws the continuous bar b across width w with the top of its
+// block at y and its left end at x. A title line longer than the bar may
+// reach right up to the figure's text edge right, and is moved left
+// when it would pass it.
+func drawBar(dc canvas, st *styles, b *ColorBar, x, y, w, right float64) {
+	if b.Label != "" || b.Note != "" {
+		below := noteBelow(st, b, w)
+		line := func(ts textStyle, s string, at, y float64) {
+			lw := width(ts, s)
+			drawText(dc, ts, s, math.Max(0, math.Min(at, right-lw)), y, 0, 0)
+		}
+		line(st.text, b.Label, x, y)
+		if b.Note != "" {
+			nx, ny := x, y
+			if below {
+				ny += st.text.height()
+			} else if b.Label != "" {
+				nx += width(st.text, b.Label) + math.Round(0.6*st.em)
+			}
+			line(st.muted, b.Note, nx, ny)
+		}
+		y += st.text.height() + math.Round(0.35*st.em)
+		if below {
+			y += st.text.height()
+		}
+	}
+	x, y = math.Round(x), math.Round(y)
+	sh := stripHeight(st)
 	n := len(b.Colors)
-	for r := 0; r < ih; r++ {
-		t := (float64(ih-r) - 0.5) / float64(ih)
-		k := 0
-		if n > 1 {
-			k = int(math.Round(t * float64(n-1)))
-		}
-		c := b.Colors[min(max(k, 0), n-1)]
-		c = overWhite(c)
-		for col := 0; col < int(bw); col++ {
-			img.SetRGBA(x0+col, y0+r, c)
-		}
+	strip := image.NewRGBA(image.Rect(0, 0, n, 1))
+	for i, c := range b.Colors {
+		strip.SetRGBA(i, 0, overWhite(c))
 	}
+	dc.image(image.Rect(int(x), int(y), int(x+math.Round(w)), int(y+sh)), strip)
 	lw := st.frame
 	dc.SetColor(black)
 	dc.SetLineWidth(lw)
 	dc.SetDash()
-	dc.DrawRectangle(x-lw/2, y-lw/2, bw+lw, h+lw)
+	dc.DrawRectangle(x-lw/2, y-lw/2, math.Round(w)+lw, sh+lw)
 	dc.Stroke()
 	dc.SetLineCapButt()
-	maxW := 0.0
-	for _, t := range b.Ticks {
-		ty := snap(y+(1-t.T)*h, lw)
-		dc.DrawLine(x+bw+lw, ty, x+bw+lw+st.tickLen, ty)
+	for _, t := range shownTicks(st, b, w) {
+		tx := snap(x+t.T*w, lw)
+		dc.DrawLine(tx, y+sh+lw, tx, y+sh+lw+st.tickLen)
 		dc.Stroke()
-		drawNumber(dc, st.tick, t.Label, x+bw+lw+st.tickLen+st.gap, y+(1-t.T)*h, 0, 0.5)
-		maxW = math.Max(maxW, width(st.tick, t.Label))
-	}
-	if b.Label == "" {
-		return
-	}
-	if box.labelOnTop {
-		if lw := width(st.label, b.Label); lw <= 2*bw {
-			drawText(dc, st.label, b.Label, x+bw/2, y-0.6*st.em, 0.5, 1)
-		} else {
-			drawText(dc, st.label, b.Label, x, y-0.6*st.em, 0, 1)
-		}
-		return
-	}
-	lx := x + bw + lw
-	if len(b.Ticks) > 0 {
-		lx += st.tickLen + st.gap + maxW
-	}
-	drawTextUp(dc, st.label, b.Label, lx+0.45*st.em+st.label.height()/2, y+h/2)
-}
-
-// drawKey draws the categorical key of b with its top left corner at
-// (x, y).
-func drawKey(dc *gg.Context, st *styles, b *ColorBar, x, y float64) {
-	q, pitch := swatchSize(st)
-	if b.Label != "" {
-		drawText(dc, st.label, b.Label, x, y, 0, 0)
-		y += st.label.height() + 0.5*st.em
-	}
-	for i, s := range b.Swatches {
-		ry := math.Round(y + float64(i)*pitch)
-		dc.SetColor(overWhite(s.Color))
-		dc.DrawRectangle(x, ry, q, q)
-		dc.Fill()
-		dc.SetColor(frameGrey)
-		dc.SetLineWidth(1)
-		dc.SetDash()
-		dc.DrawRectangle(x+0.5, ry+0.5, q-1, q-1)
-		dc.Stroke()
-		drawText(dc, st.tick, s.Label, x+q+0.5*st.em, ry+q/2, 0, 0.5)
-	}
-}
-
-// legendItem is one row of a legend box.
-type legendItem struct {
-	color  color.RGBA
-	label  string
-	dashed bool
-	width  float64
-}
-
-// legendLayout gives the size of a legend box and its row metrics.
-func legendLayout(st *styles, items []legendItem) (w, h, sample, pitch, inset float64) {
-	sample = math.Round(2.2 * st.em)
-	pitch = math.Round(st.tick.height() + 0.3*st.em)
-	inset = math.Round(0.5 * st.em)
-	maxW := 0.0
-	for _, it := range items {
-		maxW = math.Max(maxW, width(st.tick, it.label))
-	}
-	w = 2*inset + sample + 0.5*st.em + maxW
-	h = 2*inset + float64(len(items))*pitch - (pitch - st.tick.height())
-	return math.Ceil(w), math.Ceil(h), sample, pitch, inset
-}
-
-// drawLegend draws a legend box with its top left corner at (x, y).
-func drawLegend(dc *gg.Context, st *styles, items []legendItem, x, y float64) {
-	w, h, sample, pitch, inset := legendLayout(st, items)
-	x, y = math.Round(x), math.Round(y)
-	dc.SetRGBA255(255, 255, 255, 230)
-	dc.DrawRectangle(x, y, w, h)
-	dc.Fill()
-	dc.SetColor(frameGrey)
-	dc.SetLineWidth(1)
-	dc.SetDash()
-	dc.DrawRectangle(x+0.5, y+0.5, w-1, h-1)
-	dc.Stroke()
-	for i, it := range items {
-		cy := y + inset + float64(i)*pitch + st.tick.height()/2
-		if luma(it.color) > 0.75 {
-			// A light line would vanish on the white box: give it a
-			// grey casing.
-			setStroke(dc, darkGrey, it.width+2, false)
-			dc.SetLineCapButt()
-			dc.DrawLine(x+inset, cy, x+inset+sample, cy)
-			dc.Stroke()
-		}
-		setStroke(dc, it.color, it.width, it.dashed)
-		dc.SetLineCapButt()
-		dc.DrawLine(x+inset, cy, x+inset+sample, cy)
-		dc.Stroke()
-		dc.SetDash()
-		drawText(dc, st.tick, it.label, x+inset+sample+0.5*st.em, cy, 0, 0.5)
+		drawText(dc, st.text, t.Label, x+t.T*w, y+sh+lw+st.tickLen+st.gap, 0.5, 0)
 	}
 }
 
 // setStroke sets the colour, width and dash pattern for a line.
-func setStroke(dc *gg.Context, c color.RGBA, w float64, dashed bool) {
+func setStroke(dc canvas, c color.RGBA, w float64, dashed bool) {
 	dc.SetColor(c)
 	dc.SetLineWidth(w)
 	if dashed {

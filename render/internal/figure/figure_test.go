@@ -255,12 +255,16 @@ func TestDrawPanelMapPixels(t *testing.T) {
 		}
 		s := scale
 		if s <= 0 {
-			s = autoScale(37, 23)
-			if r.Dx() < 600 || r.Dx() > 800 {
-				t.Errorf("automatic scale draws the map %d px wide", r.Dx())
+			// The fixed canvas: the figure is the default width and the
+			// map keeps its aspect.
+			if w := img.Bounds().Dx(); w != (Size{}).Pixels() {
+				t.Errorf("figure %d px wide, want the single-column %d", w, (Size{}).Pixels())
 			}
-		}
-		if r.Dx() != int(math.Round(37*s)) || r.Dy() != int(math.Round(23*s)) {
+			s = float64(r.Dx()) / 37
+			if math.Abs(float64(r.Dy())-23*s) > 1 {
+				t.Errorf("map drawn %v, not the aspect of 37×23", r.Size())
+			}
+		} else if r.Dx() != int(math.Round(37*s)) || r.Dy() != int(math.Round(23*s)) {
 			t.Errorf("scale %v: map drawn %v", s, r.Size())
 		}
 		src := p.Image.(*image.RGBA)
@@ -318,7 +322,9 @@ func TestDeterministic(t *testing.T) {
 	if !bytes.Equal(c.Pix, d.Pix) {
 		t.Error("two drawings of the same plot differ")
 	}
-	if c.Bounds().Dx() != 900 || c.Bounds().Dy() != 600 {
+	// The default canvas: a single column wide, the plot 0.7 times as
+	// tall, the caption below.
+	if w, h := c.Bounds().Dx(), c.Bounds().Dy(); w != (Size{}).Pixels() || h <= int(plotAspect*float64(w)) {
 		t.Errorf("default plot size %v", c.Bounds())
 	}
 }
@@ -357,8 +363,12 @@ func TestDrawPlotVariants(t *testing.T) {
 	if err != nil {
 		t.Fatalf("with bar: %v", err)
 	}
-	if img.Bounds().Dx() != 640 || img.Bounds().Dy() != 400 {
-		t.Errorf("size %v, want 640×400", img.Bounds())
+	if img.Bounds().Dx() != 640 || img.Bounds().Dy() <= 400 || img.Bounds().Dy() > 640 {
+		t.Errorf("size %v, want 640 wide, 400 above the bar and caption", img.Bounds())
+	}
+	p.Title, p.Bar = "", nil
+	if img, err = DrawPlot(p); err != nil || img.Bounds().Dy() != 400 {
+		t.Errorf("without a bar and a caption: %v, %v; want 640×400", err, img.Bounds())
 	}
 	p = testPlot()
 	p.XMin, p.XMax, p.YMin, p.YMax = 5, 7, -0.5, 1.5
@@ -484,7 +494,7 @@ func TestTextHelpers(t *testing.T) {
 		t.Fatal(err)
 	}
 	for _, r := range "αβµθ°⁻²−×–" {
-		if regularFont.Index(r) == 0 {
+		if fonts[faceRegular].Index(r) == 0 {
 			t.Errorf("Go Regular has no glyph for %q", r)
 		}
 	}

@@ -4,86 +4,128 @@ import (
 	"errors"
 	"fmt"
 	"image"
-	"image/draw"
+	"io"
 	"math"
-
-	"github.com/fogleman/gg"
+	"slices"
 )
 
-// DrawGrid draws panels side by side, cols to a row (row-major, left to
-// right), under a common title and subtitle. Each panel is drawn as by
-// DrawPanel with the same magnification scale (≤ 0: one that makes each
-// map 300–450 pixels across) and keeps its own axes, title lines and
-// colour bar; every cell of the grid is as large as the largest panel,
-// and each panel sits at the top of its cell, centred across it.
+// minCellMM is the narrowest grid cell: a map with its axes and 8 pt
+// labels needs about this much width to stay legible.
+const minCellMM = 40.0
+
+// DrawGrid draws panels side by side, up to cols to a row (row-major,
+// left to right), above one caption made of title and subtitle. The grid
+// is as wide as the first panel's Size; each panel is drawn in a cell of
+// an equal share of that width (at least minCellMM, fewer columns when
+// needed) with its own axes, colour bar and caption (its Title as the
+// lead). With scale > 0 each map is instead magnified by scale and the
+// grid grows to fit.
 func DrawGrid(title, subtitle string, panels []Panel, cols int, scale float64) (*image.RGBA, error) {
-	if len(panels) == 0 {
-		return nil, errors.New("figure: grid has no panels")
-	}
-	if cols < 1 {
-		return nil, fmt.Errorf("figure: grid of %d columns", cols)
-	}
-	cols = min(cols, len(panels))
-	rows := (len(panels) + cols - 1) / cols
-	side := 0
-	for i, p := range panels {
-		if p.Image == nil {
-			return nil, fmt.Errorf("figure: grid panel %d has no image", i)
-		}
-		b := p.Image.Bounds()
-		side = max(side, b.Dx(), b.Dy())
-	}
-	if scale <= 0 {
-		scale = gridScale(side)
-	}
-	imgs := make([]*image.RGBA, len(panels))
-	cw, ch := 0, 0
-	for i, p := range panels {
-		img, err := DrawPanel(p, scale)
-		if err != nil {
-			return nil, fmt.Errorf("grid panel %d: %w", i, err)
-		}
-		imgs[i] = img
-		cw, ch = max(cw, img.Bounds().Dx()), max(ch, img.Bounds().Dy())
-	}
-	em := 0.022 * math.Max(1, math.Round(float64(side)*scale)) * math.Min(2, float64(cols))
-	st, err := getStyles(em)
+	d, err := layoutGrid(title, subtitle, panels, cols, scale)
 	if err != nil {
 		return nil, err
 	}
-	defer putStyles(em, st)
-	titleH := math.Ceil(titleHeight(st, title, subtitle))
-	if titleH > 0 {
-		titleH += st.pad
-	}
-	fw := cols * cw
-	fw = max(fw, int(math.Ceil(math.Max(width(st.title, title), width(st.subtitle, subtitle))+2*st.pad)))
-	fh := int(titleH) + rows*ch
-	if fw > maxSide || fh > maxSide {
-		return nil, fmt.Errorf("figure: grid of %d×%d pixels is too large", fw, fh)
-	}
-	out := image.NewRGBA(image.Rect(0, 0, fw, fh))
-	dc := gg.NewContextForRGBA(out)
-	dc.SetColor(white)
-	dc.Clear()
-	x0 := (fw - cols*cw) / 2
-	for i, img := range imgs {
-		at := image.Pt(x0+(i%cols)*cw+(cw-img.Bounds().Dx())/2, int(titleH)+(i/cols)*ch)
-		draw.Draw(out, img.Bounds().Add(at), img, image.Point{}, draw.Src)
-	}
-	drawTitle(dc, st, title, subtitle, float64(fw)/2, st.pad)
-	return out, nil
+	return d.raster(), nil
 }
 
-// gridScale is DrawGrid's magnification for maps of the given largest
-// side: a whole number that makes them 300–450 pixels across when there
-// is one, otherwise the factor that makes them 400 across.
-func gridScale(side int) float64 {
-	m := float64(side)
-	if m <= 450 {
-		if s := math.Floor(450 / m); s*m >= 300 {
-			return s
+// GridSVG writes the grid of DrawGrid (scale 0) as an SVG document.
+func GridSVG(w io.Writer, title, subtitle string, panels []Panel, cols int) error {
+	d, err := layoutGrid(title, subtitle, panels, cols, 0)
+	if err != nil {
+		return err
+	}
+	return d.svg(w)
+}
+
+func layoutGrid(title, subtitle string, panels []Panel, cols int, scale float64) (drawing, error) {
+	if len(panels) == 0 {
+		return drawing{}, errors.New("figure: grid has no panels")
+	}
+	if cols < 1 {
+		return drawing{}, fmt.Errorf("figure: grid of %d columns", cols)
+	}
+	for i, p := range panels {
+		if p.Image == nil {
+			return drawing{}, fmt.Errorf("figure: grid panel %d has no image", i)
 		}
 	}
-	return 400 / m
+	size := panels[0].Size
+	if err := size.Validate(); err != nil {
+		return drawing{}, err
+	}
+	full := size.resolved()
+	cols = min(cols, len(panels), max(1, int(full.WidthMM/minCellMM)))
+	rows := (len(panels) + cols - 1) / cols
+	cell := Size{WidthMM: full.WidthMM / float64(cols), DPI: full.DPI, px: size.Pixels() / cols}
+	ds := make([]drawing, len(panels))
+	release := func() {
+		for _, d := range ds {
+			if d.done != nil {
+				d.done()
+			}
+		}
+	}
+	// The flat colours are explained once, in the grid's caption.
+	var fills []Swatch
+	for _, p := range panels {
+		for _, f := range p.Fills {
+			if !slices.Contains(fills, f) {
+				fills = append(fills, f)
+			}
+		}
+	}
+	cw, ch := 0, 0
+	for i, p := range panels {
+		p.Size = cell
+		p.Fills = nil
+		d, _, err := layoutPanel(p, scale)
+		if err != nil {
+			release()
+			return drawing{}, fmt.Errorf("grid panel %d: %w", i, err)
+		}
+		ds[i] = d
+		cw, ch = max(cw, d.w), max(ch, d.h)
+	}
+	em := size.em()
+	st, err := getStyles(em)
+	if err != nil {
+		release()
+		return drawing{}, err
+	}
+	fw := max(cols*cw, size.Pixels())
+	if scale > 0 {
+		fw = cols * cw
+	}
+	capn := caption{lead: title, text: subtitle}
+	for _, f := range fills {
+		capn.keys = append(capn.keys, keyEntry{sample: &keySample{color: f.Color}, label: f.Label})
+	}
+	capW := float64(fw) - 2*st.pad
+	capH := 0.0
+	if !capn.empty() {
+		capH = captionHeight(st, capn, capW) + st.pad
+	}
+	fh := rows*ch + int(math.Ceil(capH))
+	if fw > maxSide || fh > maxSide {
+		putStyles(em, st)
+		release()
+		return drawing{}, fmt.Errorf("figure: grid of %d×%d pixels is too large", fw, fh)
+	}
+	x0 := (fw - cols*cw) / 2
+	draw := func(dc canvas) {
+		for i, d := range ds {
+			dc.Push()
+			dc.Translate(float64(x0+(i%cols)*cw+(cw-d.w)/2), float64((i/cols)*ch))
+			d.draw(dc)
+			dc.Pop()
+		}
+		if !capn.empty() {
+			drawCaption(dc, st, capn, st.pad, float64(rows*ch), capW)
+		}
+	}
+	done := func() {
+		putStyles(em, st)
+		release()
+	}
+	return drawing{w: fw, h: fh, dpi: full.DPI, draw: draw, done: done}, nil
 }

@@ -1,12 +1,23 @@
-// Package figure draws publication-style figures with gg: pixel maps with
-// axes, colour bars, overlays and contours (DrawPanel), line plots
-// (DrawPlot), and deterministic PNG encoding (EncodePNG).
+// Package figure draws the project's figures in its house style: pixel
+// maps with axes, colour bars, overlays and contours (DrawPanel, and
+// DrawGrid for several), line plots (DrawPlot), each as a raster image or
+// as SVG from the same drawing code (PanelSVG, GridSVG, PlotSVG), and
+// deterministic PNG encoding (EncodePNG).
 //
-// The package knows nothing of what the pixels mean: the caller supplies
-// the map, the colours and every label. Text uses the Go fonts, which
-// cover Greek, the micro and degree signs and superscript digits;
-// characters outside them (such as ⊙) are drawn as an empty box.
-// Drawing is deterministic: the same input gives the same pixels.
+// The house style: a fixed canvas width (Size: one or two journal
+// columns), all text in one family (the Go fonts) at one size, a
+// continuous colour bar as a strip under the data area with its title
+// above it, and a caption block under the figure, left-aligned, that
+// starts with the title in bold and carries the key inline (line samples,
+// squares of flat colour for the greys and blacks of a map).
+//
+// Labels use a small markup: "_{obs}" is a subscript, "^{−1}" a
+// superscript, "*{g}" italic; Unicode superscript digits (as in "keV⁻¹")
+// are set as real superscripts too. The package knows nothing of what the
+// pixels mean: the caller supplies the map, the colours and every label.
+// The Go fonts cover Greek, the micro and degree signs; characters
+// outside them (such as ⊙) are drawn as an empty box. Drawing is
+// deterministic: the same input gives the same pixels and bytes.
 package figure
 
 import (
@@ -14,9 +25,8 @@ import (
 	"fmt"
 	"image"
 	"image/color"
+	"io"
 	"math"
-
-	"github.com/fogleman/gg"
 )
 
 // Panel is a screen map with decorations.
@@ -27,19 +37,26 @@ type Panel struct {
 	// X and Y are the data ranges of the outer pixel edges (not the
 	// pixel centres) of Image, with labels.
 	X, Y Axis
-	// Title is the first, bold title line; Subtitle the second.
+	// Title is the bold lead of the caption, Subtitle its first
+	// sentence.
 	Title, Subtitle string
-	// Bar, if not nil, is drawn to the right of the map.
+	// Bar, if not nil, is a strip under the map (continuous) or a key in
+	// the caption (swatches).
 	Bar *ColorBar
 	// Lines are drawn over the map in data coordinates, clipped to it.
 	Lines []Polyline
 	// Contours are drawn over the map, each labelled once.
 	Contours []Contour
-	// Legend, if not empty, is a small box in the top right corner of
-	// the map.
+	// Legend entries are line samples in the caption's key.
 	Legend []LegendEntry
+	// Fills explain the flat colours of the map (no disk, shadow) in the
+	// caption's key, after the legend.
+	Fills []Swatch
 	// Arrows are drawn over the map, after the lines and contours.
 	Arrows []Arrow
+	// Size is the printed size; the figure is exactly Size.Pixels()
+	// wide unless DrawPanel is given a magnification.
+	Size Size
 }
 
 // Axis is the data range of one map direction and its label, which should
@@ -122,6 +139,9 @@ func (p *Panel) validate(zoom float64) error {
 	if p.Image == nil {
 		return errors.New("figure: panel has no image")
 	}
+	if err := p.Size.Validate(); err != nil {
+		return err
+	}
 	b := p.Image.Bounds()
 	if b.Dx() <= 0 || b.Dy() <= 0 {
 		return errors.New("figure: panel image is empty")
@@ -181,207 +201,180 @@ func secondaryRange(a Axis) (lo, hi float64) {
 	return lo, hi
 }
 
-// autoScale picks the map magnification when none is given: a whole
-// number that makes the map 600–800 pixels across when there is one,
-// otherwise the factor that makes it 700 pixels across.
-func autoScale(w, h int) float64 {
-	m := float64(max(w, h))
-	if m <= 800 {
-		if s := math.Floor(800 / m); s*m >= 600 {
-			return s
-		}
+// DrawPanel draws p. With scale ≤ 0 the figure is p.Size.Pixels() wide
+// and the map fills what the labels leave; a scale > 0 instead magnifies
+// the map by that factor (map pixels to figure pixels) and the figure
+// grows around it. Map pixels are magnified by nearest neighbour.
+func DrawPanel(p Panel, scale float64) (*image.RGBA, error) {
+	d, _, err := layoutPanel(p, scale)
+	if err != nil {
+		return nil, err
 	}
-	return 700 / m
+	return d.raster(), nil
 }
 
-// DrawPanel draws p with the map magnified by scale (map pixels to figure
-// pixels, nearest neighbour, so that map pixels stay crisp); scale ≤ 0
-// chooses a magnification that makes the map 600–800 pixels across. The
-// figure grows around the map to fit every label.
-func DrawPanel(p Panel, scale float64) (*image.RGBA, error) {
-	img, _, err := drawPanel(p, scale)
-	return img, err
+// PanelSVG writes p, laid out as by DrawPanel with scale 0, as an SVG
+// document with the map embedded as a PNG image.
+func PanelSVG(w io.Writer, p Panel) error {
+	d, _, err := layoutPanel(p, 0)
+	if err != nil {
+		return err
+	}
+	return d.svg(w)
 }
 
 // drawPanel is DrawPanel that also returns where the map was drawn.
 func drawPanel(p Panel, zoom float64) (*image.RGBA, image.Rectangle, error) {
-	if err := p.validate(zoom); err != nil {
-		return nil, image.Rectangle{}, err
-	}
-	src := p.Image.Bounds()
-	if zoom <= 0 {
-		zoom = autoScale(src.Dx(), src.Dy())
-	}
-	mw := math.Max(1, math.Round(float64(src.Dx())*zoom))
-	mh := math.Max(1, math.Round(float64(src.Dy())*zoom))
-	if mw > maxSide || mh > maxSide {
-		return nil, image.Rectangle{}, fmt.Errorf("figure: map of %v×%v pixels is too large", mw, mh)
-	}
-	em := 0.022 * math.Max(mw, mh)
-	st, err := getStyles(em)
+	d, r, err := layoutPanel(p, zoom)
 	if err != nil {
 		return nil, image.Rectangle{}, err
 	}
-	defer putStyles(em, st)
+	return d.raster(), r, nil
+}
 
-	ax := &axes{st: st, w: mw, h: mh}
-	bottom := fitScale(st, mw, true, func(n int) scale {
-		return linearScale(p.X.Min, p.X.Max, n, p.X.Label, false)
-	})
-	left := fitScale(st, mh, false, func(n int) scale {
-		return linearScale(p.Y.Min, p.Y.Max, n, p.Y.Label, false)
-	})
-	ax.sides[sideBottom], ax.sides[sideLeft] = &bottom, &left
-	if s := p.X.Secondary; s != nil {
-		lo, hi := secondaryRange(p.X)
-		top := fitScale(st, mw, true, func(n int) scale {
-			return linearScale(lo, hi, n, s.Label, s.Factor < 0)
+// panelCaption is the caption of p: title, subtitle and the key.
+func panelCaption(p *Panel, st *styles) caption {
+	c := caption{lead: p.Title, text: p.Subtitle, keys: p.Bar.keys()}
+	for _, e := range p.Legend {
+		c.keys = append(c.keys, keyEntry{sample: &keySample{line: true, color: orBlack(e.Color), dashed: e.Dashed, width: lineWidth(st, 0)}, label: e.Label})
+	}
+	for _, f := range p.Fills {
+		c.keys = append(c.keys, keyEntry{sample: &keySample{color: f.Color}, label: f.Label})
+	}
+	return c
+}
+
+// layoutPanel lays p out and returns its drawing and where the map goes.
+func layoutPanel(p Panel, zoom float64) (drawing, image.Rectangle, error) {
+	if err := p.validate(zoom); err != nil {
+		return drawing{}, image.Rectangle{}, err
+	}
+	src := p.Image.Bounds()
+	aspect := float64(src.Dy()) / float64(src.Dx())
+	em := p.Size.em()
+	st, err := getStyles(em)
+	if err != nil {
+		return drawing{}, image.Rectangle{}, err
+	}
+	fail := func(err error) (drawing, image.Rectangle, error) {
+		putStyles(em, st)
+		return drawing{}, image.Rectangle{}, err
+	}
+	fw := float64(p.Size.Pixels())
+	mw := fw - 9*st.em
+	if zoom > 0 {
+		mw = math.Max(1, math.Round(float64(src.Dx())*zoom))
+	}
+	ax := &axes{st: st}
+	var left0, right0 float64
+	for range 3 {
+		if mw < 3*st.em && zoom <= 0 {
+			return fail(fmt.Errorf("figure: a %.0f mm canvas is too narrow for the map and its labels", p.Size.resolved().WidthMM))
+		}
+		mh := math.Max(1, math.Round(mw*aspect))
+		if zoom > 0 {
+			mh = math.Max(1, math.Round(float64(src.Dy())*zoom))
+		}
+		if mw > maxSide || mh > maxSide {
+			return fail(fmt.Errorf("figure: map of %v×%v pixels is too large", mw, mh))
+		}
+		ax.w, ax.h = mw, mh
+		bottom := fitScale(st, mw, true, func(n int) scale {
+			return linearScale(p.X.Min, p.X.Max, n, p.X.Label, false)
 		})
-		ax.sides[sideTop] = &top
-	}
-	if s := p.Y.Secondary; s != nil {
-		lo, hi := secondaryRange(p.Y)
-		right := fitScale(st, mh, false, func(n int) scale {
-			return linearScale(lo, hi, n, s.Label, s.Factor < 0)
+		left := fitScale(st, mh, false, func(n int) scale {
+			return linearScale(p.Y.Min, p.Y.Max, n, p.Y.Label, false)
 		})
-		ax.sides[sideRight] = &right
+		ax.sides[sideBottom], ax.sides[sideLeft] = &bottom, &left
+		if s := p.X.Secondary; s != nil {
+			lo, hi := secondaryRange(p.X)
+			top := fitScale(st, mw, true, func(n int) scale {
+				return linearScale(lo, hi, n, s.Label, s.Factor < 0)
+			})
+			ax.sides[sideTop] = &top
+		}
+		if s := p.Y.Secondary; s != nil {
+			lo, hi := secondaryRange(p.Y)
+			right := fitScale(st, mh, false, func(n int) scale {
+				return linearScale(lo, hi, n, s.Label, s.Factor < 0)
+			})
+			ax.sides[sideRight] = &right
+		}
+		ol, or, _, _ := ax.overhang()
+		if p.Bar.continuous() {
+			bl, br := barOverhang(st, p.Bar, mw)
+			ol, or = math.Max(ol, bl), math.Max(or, br)
+		}
+		left0 = math.Ceil(st.pad + math.Max(ax.depth(sideLeft), ol))
+		right0 = math.Ceil(st.pad + math.Max(ax.depth(sideRight), or))
+		if zoom > 0 {
+			fw = left0 + mw + right0
+		} else {
+			mw = math.Floor(fw - left0 - right0)
+		}
 	}
-
-	var box barBox
-	barGap := math.Round(1.2 * st.em)
-	if p.Bar != nil {
-		box = measureBar(st, p.Bar, mh)
+	_, _, ot, ob := ax.overhang()
+	top0 := math.Ceil(st.pad + math.Max(ax.depth(sideTop), ot))
+	below := math.Max(ax.depth(sideBottom), ob)
+	if p.Bar.continuous() {
+		below += barTop(st) + barHeight(st, p.Bar, ax.w)
 	}
-	ol, or, ot, ob := ax.overhang()
-	left0 := st.pad + math.Max(ax.depth(sideLeft), ol)
-	right0 := ax.depth(sideRight)
-	if p.Bar != nil {
-		right0 += barGap + box.w
+	capn := panelCaption(&p, st)
+	capX := left0
+	capW := fw - capX - st.pad
+	capH := 0.0
+	if !capn.empty() {
+		capH = math.Round(1.1*st.em) + captionHeight(st, capn, capW)
 	}
-	right0 = st.pad + math.Max(right0, or)
-	titleH := titleHeight(st, p.Title, p.Subtitle)
-	top0 := st.pad + titleH + math.Max(ax.depth(sideTop), math.Max(ot, box.above))
-	bottom0 := st.pad + math.Max(ax.depth(sideBottom), math.Max(ob, box.below))
-
-	left0, right0 = fitTitle(st, p.Title, p.Subtitle, left0, right0, mw)
-	left0, right0 = math.Ceil(left0), math.Ceil(right0)
-	top0, bottom0 = math.Ceil(top0), math.Ceil(bottom0)
-	fw, fh := int(left0+mw+right0), int(top0+mh+bottom0)
+	fh := math.Ceil(top0 + ax.h + below + capH + st.pad)
 	if fw > maxSide || fh > maxSide {
-		return nil, image.Rectangle{}, fmt.Errorf("figure: figure of %d×%d pixels is too large", fw, fh)
+		return fail(fmt.Errorf("figure: figure of %v×%v pixels is too large", fw, fh))
 	}
 	ax.x0, ax.y0 = left0, top0
-
-	out := image.NewRGBA(image.Rect(0, 0, fw, fh))
-	dc := gg.NewContextForRGBA(out)
-	dc.SetColor(white)
-	dc.Clear()
-
-	mapRect := image.Rect(int(ax.x0), int(ax.y0), int(ax.x0+mw), int(ax.y0+mh))
-	blitNearest(out, mapRect, p.Image)
-
-	dc.DrawRectangle(ax.x0, ax.y0, mw, mh)
-	dc.Clip()
-	toFig := func(x, y float64) (float64, float64) {
-		return ax.x0 + (x-p.X.Min)/(p.X.Max-p.X.Min)*mw, ax.y0 + (p.Y.Max-y)/(p.Y.Max-p.Y.Min)*mh
-	}
-	paths := make([][][]point, len(p.Contours))
-	for i, c := range p.Contours {
-		paths[i] = contourPaths(c, ax)
-		drawContourLines(dc, st, c, paths[i])
-	}
-	win := [4]float64{p.X.Min, p.X.Max, p.Y.Min, p.Y.Max}
-	for _, l := range p.Lines {
-		drawPolyline(dc, st, l, win, toFig)
-	}
-	for i, c := range p.Contours {
-		drawContourLabel(dc, st, c, paths[i])
-	}
-	for _, a := range p.Arrows {
-		drawArrow(dc, st, a, win, toFig)
-	}
-	dc.ResetClip()
-	if len(p.Legend) > 0 {
-		items := make([]legendItem, len(p.Legend))
-		for i, e := range p.Legend {
-			items[i] = legendItem{color: orBlack(e.Color), label: e.Label, dashed: e.Dashed, width: lineWidth(st, 0)}
+	mapRect := image.Rect(int(ax.x0), int(ax.y0), int(ax.x0+ax.w), int(ax.y0+ax.h))
+	draw := func(dc canvas) {
+		mw, mh := ax.w, ax.h
+		dc.image(mapRect, p.Image)
+		dc.DrawRectangle(ax.x0, ax.y0, mw, mh)
+		dc.Clip()
+		toFig := func(x, y float64) (float64, float64) {
+			return ax.x0 + (x-p.X.Min)/(p.X.Max-p.X.Min)*mw, ax.y0 + (p.Y.Max-y)/(p.Y.Max-p.Y.Min)*mh
 		}
-		lw, _, _, _, _ := legendLayout(st, items)
-		inset := math.Round(0.6 * st.em)
-		drawLegend(dc, st, items, ax.x0+mw-inset-lw, ax.y0+inset)
-	}
-	ax.drawFrame(dc)
-	ax.drawSides(dc)
-	if p.Bar != nil {
-		drawBar(dc, out, st, p.Bar, box, ax.x0+mw+ax.depth(sideRight)+barGap, ax.y0, mh)
-	}
-	drawTitle(dc, st, p.Title, p.Subtitle, ax.x0+mw/2, st.pad)
-	return out, mapRect, nil
-}
-
-// blitNearest copies src into the rectangle r of dst, magnified by
-// nearest neighbour; translucent pixels are composited over white.
-func blitNearest(dst *image.RGBA, r image.Rectangle, src image.Image) {
-	sb := src.Bounds()
-	sw, sh := sb.Dx(), sb.Dy()
-	rw, rh := r.Dx(), r.Dy()
-	cols := make([]int, rw)
-	for x := range cols {
-		cols[x] = sb.Min.X + min(sw-1, (2*x+1)*sw/(2*rw))
-	}
-	rgba, isRGBA := src.(*image.RGBA)
-	for y := 0; y < rh; y++ {
-		sy := sb.Min.Y + min(sh-1, (2*y+1)*sh/(2*rh))
-		for x := 0; x < rw; x++ {
-			var c color.RGBA
-			if isRGBA {
-				c = rgba.RGBAAt(cols[x], sy)
-			} else {
-				c = color.RGBAModel.Convert(src.At(cols[x], sy)).(color.RGBA)
-			}
-			dst.SetRGBA(r.Min.X+x, r.Min.Y+y, overWhite(c))
+		paths := make([][][]point, len(p.Contours))
+		for i, c := range p.Contours {
+			paths[i] = contourPaths(c, ax)
+			drawContourLines(dc, st, c, paths[i])
+		}
+		win := [4]float64{p.X.Min, p.X.Max, p.Y.Min, p.Y.Max}
+		for _, l := range p.Lines {
+			drawPolyline(dc, st, l, win, toFig)
+		}
+		for _, a := range p.Arrows {
+			drawArrow(dc, st, a, win, toFig)
+		}
+		// Labels after the clip: they are placed inside the map, and
+		// text under a clip region is slow to rasterise.
+		dc.ResetClip()
+		area := labelBox{ax.x0, ax.y0, ax.x0 + mw, ax.y0 + mh}
+		var placed []labelBox
+		for i, c := range p.Contours {
+			drawContourLabel(dc, st, c, paths[i], area, &placed)
+		}
+		for _, a := range p.Arrows {
+			drawArrowLabel(dc, st, a, toFig)
+		}
+		ax.drawFrame(dc)
+		ax.drawSides(dc)
+		y := ax.y0 + mh + math.Max(ax.depth(sideBottom), ob)
+		if p.Bar.continuous() {
+			drawBar(dc, st, p.Bar, ax.x0, y+barTop(st), mw, fw-st.pad)
+			y += barTop(st) + barHeight(st, p.Bar, mw)
+		}
+		if !capn.empty() {
+			drawCaption(dc, st, capn, capX, y+math.Round(1.1*st.em), capW)
 		}
 	}
-}
-
-// titleHeight is the height of the title block including its gap to the
-// axes below, or 0 when there is no title.
-func titleHeight(st *styles, title, subtitle string) float64 {
-	h := 0.0
-	if title != "" {
-		h += st.title.height()
-	}
-	if subtitle != "" {
-		if h > 0 {
-			h += 0.25 * st.em
-		}
-		h += st.subtitle.height()
-	}
-	if h > 0 {
-		h += 0.7 * st.em
-	}
-	return h
-}
-
-// fitTitle widens the left and right margins around a data area of width
-// w so that the title lines, centred on the area, fit in the figure.
-func fitTitle(st *styles, title, subtitle string, left, right, w float64) (float64, float64) {
-	tw := math.Max(width(st.title, title), width(st.subtitle, subtitle))
-	half := tw/2 - w/2
-	left = math.Max(left, st.pad+half)
-	right = math.Max(right, st.pad+half)
-	return left, right
-}
-
-// drawTitle draws the title lines centred on x with the top at y.
-func drawTitle(dc *gg.Context, st *styles, title, subtitle string, x, y float64) {
-	if title != "" {
-		drawText(dc, st.title, title, x, y, 0.5, 0)
-		y += st.title.height() + 0.25*st.em
-	}
-	if subtitle != "" {
-		drawText(dc, st.subtitle, subtitle, x, y, 0.5, 0)
-	}
+	return drawing{w: int(fw), h: int(fh), dpi: p.Size.resolved().DPI, draw: draw, done: func() { putStyles(em, st) }}, mapRect, nil
 }
 
 // orBlack returns c, or black for the zero colour.
@@ -406,7 +399,7 @@ func lineWidth(st *styles, w float64) float64 {
 // window win (x0, x1, y0, y1) widened by 2% first, so that a line mostly
 // far outside a zoomed window does not make the rasteriser walk millions
 // of pixels (and dashes) off the figure.
-func drawPolyline(dc *gg.Context, st *styles, l Polyline, win [4]float64, toFig func(x, y float64) (float64, float64)) {
+func drawPolyline(dc canvas, st *styles, l Polyline, win [4]float64, toFig func(x, y float64) (float64, float64)) {
 	setStroke(dc, orBlack(l.Color), lineWidth(st, l.Width), l.Dashed)
 	dc.SetLineCapRound()
 	dc.SetLineJoinRound()
@@ -500,7 +493,7 @@ func contourPaths(c Contour, ax *axes) [][]point {
 }
 
 // drawContourLines strokes the pieces of c (its contourPaths).
-func drawContourLines(dc *gg.Context, st *styles, c Contour, paths [][]point) {
+func drawContourLines(dc canvas, st *styles, c Contour, paths [][]point) {
 	setStroke(dc, orBlack(c.Color), math.Max(1, math.Round(0.09*st.em*2)/2), false)
 	dc.SetLineCapRound()
 	dc.SetLineJoinRound()
@@ -516,10 +509,19 @@ func drawContourLines(dc *gg.Context, st *styles, c Contour, paths [][]point) {
 	}
 }
 
-// drawContourLabel writes c.Label at the middle (by length) of the longest
-// piece of c (of its contourPaths), on a small background that contrasts
-// with the label colour.
-func drawContourLabel(dc *gg.Context, st *styles, c Contour, paths [][]point) {
+// labelBox is the box a label occupies, in figure pixels.
+type labelBox struct{ x0, y0, x1, y1 float64 }
+
+func (b labelBox) overlaps(o labelBox) bool {
+	return b.x0 < o.x1 && o.x0 < b.x1 && b.y0 < o.y1 && o.y0 < b.y1
+}
+
+// drawContourLabel writes c.Label on the longest piece of c (of its
+// contourPaths), on a small background that contrasts with the label
+// colour: at the middle of the piece by length, or at the nearest point
+// along it where the label stays inside the map area and clear of the
+// labels already placed (which it joins).
+func drawContourLabel(dc canvas, st *styles, c Contour, paths [][]point, area labelBox, placed *[]labelBox) {
 	if c.Label == "" {
 		return
 	}
@@ -533,9 +535,8 @@ func drawContourLabel(dc *gg.Context, st *styles, c Contour, paths [][]point) {
 	if best == nil {
 		return
 	}
-	m := pointAlong(best, bestLen/2)
 	col := orBlack(c.Color)
-	ts := st.small
+	ts := st.text
 	ts.color = col
 	bg := color.RGBA{R: 255, G: 255, B: 255, A: 255}
 	if luma(col) > 0.55 {
@@ -543,10 +544,33 @@ func drawContourLabel(dc *gg.Context, st *styles, c Contour, paths [][]point) {
 	}
 	w, h := width(ts, c.Label), ts.height()
 	padX, padY := math.Round(0.25*st.em), math.Round(0.1*st.em)
-	bx := math.Round(m.x - w/2 - padX)
-	by := math.Round(m.y - h/2 - padY)
+	boxAt := func(m point) labelBox {
+		bx, by := math.Round(m.x-w/2-padX), math.Round(m.y-h/2-padY)
+		return labelBox{bx, by, bx + math.Ceil(w+2*padX), by + math.Ceil(h+2*padY)}
+	}
+	const steps = 32
+	m := pointAlong(best, bestLen/2)
+	for k := 0; k < steps; k++ {
+		// 1/2, then alternately after and before it, outward.
+		off := (k + 1) / 2
+		if k%2 == 1 {
+			off = -off
+		}
+		q := pointAlong(best, bestLen*(0.5+float64(off)/steps))
+		b := boxAt(q)
+		ok := b.x0 >= area.x0 && b.x1 <= area.x1 && b.y0 >= area.y0 && b.y1 <= area.y1
+		for _, o := range *placed {
+			ok = ok && !b.overlaps(o)
+		}
+		if ok {
+			m = q
+			break
+		}
+	}
+	b := boxAt(m)
+	*placed = append(*placed, b)
 	dc.SetRGBA255(int(bg.R), int(bg.G), int(bg.B), 215)
-	dc.DrawRoundedRectangle(bx, by, math.Ceil(w+2*padX), math.Ceil(h+2*padY), 0.2*st.em)
+	dc.DrawRoundedRectangle(b.x0, b.y0, b.x1-b.x0, b.y1-b.y0, 0.2*st.em)
 	dc.Fill()
 	drawText(dc, ts, c.Label, m.x, m.y, 0.5, 0.5)
 }

@@ -5,9 +5,8 @@ import (
 	"fmt"
 	"image"
 	"image/color"
+	"io"
 	"math"
-
-	"github.com/fogleman/gg"
 )
 
 // Series is one line of a plot. Points with a NaN or infinite coordinate
@@ -45,16 +44,23 @@ type Plot struct {
 	LogY   bool
 	Series []Series
 	VLines []VLine
-	// Legend draws a box with the series labels in the corner of the
-	// plot where it covers the least of the lines.
+	// Legend sets the series labels, with line samples, in the
+	// caption's key.
 	Legend bool
-	// Bar, if not nil, is a colour bar to the right of the plot, for
-	// series coloured by a parameter.
+	// Bar, if not nil, is a colour bar under the plot, for series
+	// coloured by a parameter.
 	Bar *ColorBar
-	// Width and Height are the figure size in pixels; zero means
-	// 900×600.
+	// Size is the printed size: the figure is Size.Pixels() wide and the
+	// axes with their labels 0.7 times as tall, then the colour bar and the caption, with the caption below.
+	Size Size
+	// Width and Height, when not zero, override Size: the width of the
+	// figure and the height of the axes with their labels (the colour
+	// bar and the caption are added below), in pixels.
 	Width, Height int
 }
+
+// plotAspect is the height of a plot above its caption over its width.
+const plotAspect = 0.7
 
 // minPlotSide is the smallest accepted figure width or height.
 const minPlotSide = 120
@@ -133,9 +139,15 @@ func padRange(lo, hi, frac float64) (float64, float64) {
 
 // validate checks p and returns the figure size.
 func (p *Plot) validate() (int, int, error) {
+	if err := p.Size.Validate(); err != nil {
+		return 0, 0, err
+	}
 	w, h := p.Width, p.Height
-	if w == 0 && h == 0 {
-		w, h = 900, 600
+	if w == 0 {
+		w = p.Size.Pixels()
+	}
+	if h == 0 {
+		h = int(math.Round(plotAspect * float64(w)))
 	}
 	if w < minPlotSide || h < minPlotSide || w > maxSide || h > maxSide {
 		return 0, 0, fmt.Errorf("figure: plot size %d×%d outside %d…%d pixels", w, h, minPlotSide, maxSide)
@@ -160,31 +172,124 @@ func (p *Plot) validate() (int, int, error) {
 
 // DrawPlot draws p.
 func DrawPlot(p Plot) (*image.RGBA, error) {
-	fw, fh, err := p.validate()
+	d, err := layoutPlot(p)
 	if err != nil {
 		return nil, err
+	}
+	return d.raster(), nil
+}
+
+// PlotSVG writes p, laid out as by DrawPlot, as an SVG document.
+func PlotSVG(w io.Writer, p Plot) error {
+	d, err := layoutPlot(p)
+	if err != nil {
+		return err
+	}
+	return d.svg(w)
+}
+
+// plotCaption is the caption of p: title, subtitle and the series key.
+func plotCaption(p *Plot, st *styles) caption {
+	c := caption{lead: p.Title, text: p.Subtitle, keys: p.Bar.keys()}
+	if p.Legend {
+		for _, s := range p.Series {
+			if s.Label != "" {
+				c.keys = append(c.keys, keyEntry{sample: &keySample{line: true, color: orBlack(s.Color), dashed: s.Dashed, width: seriesWidth(st, s.Width)}, label: s.Label})
+			}
+		}
+	}
+	return c
+}
+
+// maxMarkerRows bounds the rows of marker labels above a plot; a label
+// that finds no room in them is left out.
+const maxMarkerRows = 3
+
+// markerPlace is where a marker label goes: its left edge and its row
+// above the frame (0 nearest).
+type markerPlace struct {
+	x   float64
+	row int
+}
+
+// markerLayout places the marker labels of p over a plot area at x0 of
+// width w, each centred on its line where it fits, kept over the area,
+// in the lowest row where it clears the labels already placed. It
+// returns the places (ok false: not drawn) and the rows used.
+func markerLayout(st *styles, p *Plot, x0, w, xlo, xhi float64) ([]markerPlace, []bool, int) {
+	places := make([]markerPlace, len(p.VLines))
+	shown := make([]bool, len(p.VLines))
+	var taken [maxMarkerRows][][2]float64
+	rows := 0
+	for i, v := range p.VLines {
+		if v.Label == "" {
+			continue
+		}
+		x := x0 + (v.X-xlo)/(xhi-xlo)*w
+		if x < x0 || x > x0+w {
+			continue
+		}
+		tw := width(st.text, v.Label)
+		lx := math.Max(x0, math.Min(x-tw/2, x0+w-tw))
+		for row := range maxMarkerRows {
+			clash := false
+			for _, o := range taken[row] {
+				if lx < o[1]+st.em && o[0] < lx+tw+st.em {
+					clash = true
+				}
+			}
+			if !clash {
+				taken[row] = append(taken[row], [2]float64{lx, lx + tw})
+				places[i], shown[i] = markerPlace{lx, row}, true
+				rows = max(rows, row+1)
+				break
+			}
+		}
+	}
+	return places, shown, rows
+}
+
+// markerPitch is the height of one row of marker labels.
+func markerPitch(st *styles) float64 { return st.text.height() + st.gap }
+
+// layoutPlot lays p out: the axes fill the width and the plot height,
+// the marker labels sit above the frame, the colour bar and the caption
+// below it, so that no label crosses a curve.
+func layoutPlot(p Plot) (drawing, error) {
+	fw, fh, err := p.validate()
+	if err != nil {
+		return drawing{}, err
 	}
 	xlo, xhi, ylo, yhi, err := plotRanges(&p)
 	if err != nil {
-		return nil, err
+		return drawing{}, err
 	}
-	em := 0.028 * float64(min(fw, fh))
+	em := p.Size.em()
+	if p.Width > 0 {
+		em = math.Max(9, 0.024*float64(min(fw, fh)))
+	}
 	st, err := getStyles(em)
 	if err != nil {
-		return nil, err
+		return drawing{}, err
 	}
-	defer putStyles(em, st)
+	fail := func(err error) (drawing, error) {
+		putStyles(em, st)
+		return drawing{}, err
+	}
 	ax := &axes{st: st}
-	var box barBox
-	barGap := math.Round(1.2 * st.em)
-	titleH := titleHeight(st, p.Title, p.Subtitle)
+	below := 0.0
+	if p.Bar.continuous() {
+		below = barTop(st) + barHeight(st, p.Bar, float64(fw)-8*st.em)
+	}
+	capn := plotCaption(&p, st)
 
 	// Margins depend on the tick labels, which depend on the size of the
-	// plot area; two rounds settle both.
-	w, h := float64(fw)-10*st.em, float64(fh)-8*st.em
-	for range 2 {
+	// plot area; rounds settle both.
+	w, h := float64(fw)-8*st.em, float64(fh)-6*st.em
+	var l, t float64
+	for range 3 {
 		if w < 3*st.em || h < 3*st.em {
-			return nil, errors.New("figure: plot too small for its labels")
+			return fail(errors.New("figure: plot too small for its labels"))
 		}
 		bottom := fitScale(st, w, true, func(n int) scale {
 			return linearScale(xlo, xhi, n, p.XLabel, false)
@@ -197,31 +302,56 @@ func DrawPlot(p Plot) (*image.RGBA, error) {
 		})
 		ax.sides[sideBottom], ax.sides[sideLeft] = &bottom, &left
 		ax.w, ax.h = w, h
-		if p.Bar != nil {
-			box = measureBar(st, p.Bar, h)
-		}
 		ol, or, ot, ob := ax.overhang()
-		l := math.Ceil(st.pad + math.Max(ax.depth(sideLeft), ol))
-		r := st.frame
-		if p.Bar != nil {
-			r += barGap + box.w
+		if p.Bar.continuous() {
+			bl, br := barOverhang(st, p.Bar, w)
+			ol, or = math.Max(ol, bl), math.Max(or, br)
 		}
-		r = math.Ceil(st.pad + math.Max(r, or))
-		t := math.Ceil(st.pad + titleH + math.Max(st.frame, math.Max(ot, box.above)))
-		b := math.Ceil(st.pad + math.Max(ax.depth(sideBottom), math.Max(ob, box.below)))
-		ax.x0, ax.y0 = l, t
+		l = math.Ceil(st.pad + math.Max(ax.depth(sideLeft), ol))
+		r := math.Ceil(st.pad + math.Max(st.frame, or))
+		_, _, rows := markerLayout(st, &p, l, w, xlo, xhi)
+		t = math.Ceil(st.pad + math.Max(st.frame, math.Max(ot, float64(rows)*markerPitch(st))))
+		b := math.Ceil(math.Max(ax.depth(sideBottom), ob))
 		w, h = float64(fw)-l-r, float64(fh)-t-b
 	}
 	if w < 3*st.em || h < 3*st.em {
-		return nil, errors.New("figure: plot too small for its labels")
+		return fail(errors.New("figure: plot too small for its labels"))
 	}
 	ax.w, ax.h = w, h
+	ax.x0, ax.y0 = l, t
+	capX, capW := l, float64(fw)-l-st.pad
+	capH := 0.0
+	if !capn.empty() {
+		capH = math.Round(1.1*st.em) + captionHeight(st, capn, capW)
+	}
+	total := fh + int(math.Ceil(below))
+	if capH > 0 {
+		total += int(math.Ceil(capH + st.pad))
+	}
+	if total > maxSide {
+		return fail(fmt.Errorf("figure: plot of %d×%d pixels is too large", fw, total))
+	}
+	draw := func(dc canvas) {
+		drawPlotArea(dc, st, &p, ax, xlo, xhi, ylo, yhi)
+		y := ax.y0 + h + math.Max(ax.depth(sideBottom), 0)
+		if _, _, _, ob := ax.overhang(); ob > ax.depth(sideBottom) {
+			y = ax.y0 + h + ob
+		}
+		if p.Bar.continuous() {
+			drawBar(dc, st, p.Bar, ax.x0, y+barTop(st), w, float64(fw)-st.pad)
+			y += barTop(st) + barHeight(st, p.Bar, float64(fw)-8*st.em)
+		}
+		if !capn.empty() {
+			drawCaption(dc, st, capn, capX, y+math.Round(1.1*st.em), capW)
+		}
+	}
+	return drawing{w: fw, h: total, dpi: p.Size.resolved().DPI, draw: draw, done: func() { putStyles(em, st) }}, nil
+}
 
-	out := image.NewRGBA(image.Rect(0, 0, fw, fh))
-	dc := gg.NewContextForRGBA(out)
-	dc.SetColor(white)
-	dc.Clear()
-
+// drawPlotArea draws the markers, the series, the frame with its scales
+// and the marker labels of p.
+func drawPlotArea(dc canvas, st *styles, p *Plot, ax *axes, xlo, xhi, ylo, yhi float64) {
+	w, h := ax.w, ax.h
 	fx := func(x float64) float64 { return ax.x0 + (x-xlo)/(xhi-xlo)*w }
 	fy := func(y float64) float64 {
 		if p.LogY {
@@ -233,7 +363,6 @@ func DrawPlot(p Plot) (*image.RGBA, error) {
 		ok := !math.IsNaN(x) && !math.IsNaN(y) && !math.IsInf(x, 0) && !math.IsInf(y, 0)
 		return ok && (!p.LogY || y > 0)
 	}
-
 	dc.DrawRectangle(ax.x0, ax.y0, w, h)
 	dc.Clip()
 	for _, v := range p.VLines {
@@ -244,13 +373,13 @@ func DrawPlot(p Plot) (*image.RGBA, error) {
 		dc.Stroke()
 		dc.SetDash()
 	}
-	paths := make([][][]point, len(p.Series))
-	for i, s := range p.Series {
+	for _, s := range p.Series {
+		var paths [][]point
 		var cur []point
 		for k := range s.X {
 			if !usable(s.X[k], s.Y[k]) {
 				if len(cur) > 0 {
-					paths[i] = append(paths[i], cur)
+					paths = append(paths, cur)
 					cur = nil
 				}
 				continue
@@ -258,12 +387,12 @@ func DrawPlot(p Plot) (*image.RGBA, error) {
 			cur = append(cur, point{fx(s.X[k]), fy(s.Y[k])})
 		}
 		if len(cur) > 0 {
-			paths[i] = append(paths[i], cur)
+			paths = append(paths, cur)
 		}
 		setStroke(dc, orBlack(s.Color), seriesWidth(st, s.Width), s.Dashed)
 		dc.SetLineCapRound()
 		dc.SetLineJoinRound()
-		for _, pts := range paths[i] {
+		for _, pts := range paths {
 			for k, q := range pts {
 				if k == 0 {
 					dc.MoveTo(q.x, q.y)
@@ -278,43 +407,20 @@ func DrawPlot(p Plot) (*image.RGBA, error) {
 		}
 		dc.SetDash()
 	}
-	var obstacles []rect
-	for _, v := range p.VLines {
-		if v.Label == "" {
-			continue
-		}
-		x := fx(v.X)
-		if x < ax.x0 || x > ax.x0+w {
-			continue
-		}
-		obstacles = append(obstacles, drawVLineLabel(dc, st, v, x, ax))
-	}
 	dc.ResetClip()
-
-	if p.Legend {
-		var items []legendItem
-		for _, s := range p.Series {
-			if s.Label != "" {
-				items = append(items, legendItem{color: orBlack(s.Color), label: s.Label, dashed: s.Dashed, width: seriesWidth(st, s.Width)})
-			}
-		}
-		if len(items) > 0 {
-			lw, lh, _, _, _ := legendLayout(st, items)
-			x, y := legendCorner(st, ax, lw, lh, paths, p.VLines, fx, obstacles)
-			drawLegend(dc, st, items, x, y)
-		}
-	}
 	ax.drawFrame(dc)
 	ax.drawSides(dc)
-	if p.Bar != nil {
-		drawBar(dc, out, st, p.Bar, box, ax.x0+w+st.frame+barGap, ax.y0, h)
+	// Marker labels: in rows above the frame, never on the data.
+	places, shown, _ := markerLayout(st, p, ax.x0, w, xlo, xhi)
+	for i, v := range p.VLines {
+		if !shown[i] {
+			continue
+		}
+		ts := st.text
+		ts.color = orBlack(v.Color)
+		y := ax.y0 - st.frame - st.gap - float64(places[i].row)*markerPitch(st)
+		drawText(dc, ts, v.Label, places[i].x, y, 0, 1)
 	}
-	tw := math.Max(width(st.title, p.Title), width(st.subtitle, p.Subtitle))
-	cx := ax.x0 + w/2
-	cx = math.Min(cx, float64(fw)-st.pad-tw/2)
-	cx = math.Max(cx, st.pad+tw/2)
-	drawTitle(dc, st, p.Title, p.Subtitle, cx, st.pad)
-	return out, nil
 }
 
 // seriesWidth returns w, or the default series width.
@@ -323,99 +429,4 @@ func seriesWidth(st *styles, w float64) float64 {
 		return math.Max(1.5, math.Round(0.13*st.em*2)/2)
 	}
 	return math.Min(w, 4*st.em)
-}
-
-// rect is an axis-aligned box in figure pixels.
-type rect struct{ x0, y0, x1, y1 float64 }
-
-// contains reports whether q lies in r.
-func (r rect) contains(q point) bool {
-	return q.x >= r.x0 && q.x <= r.x1 && q.y >= r.y0 && q.y <= r.y1
-}
-
-// overlaps reports whether r and o intersect.
-func (r rect) overlaps(o rect) bool {
-	return r.x0 < o.x1 && o.x0 < r.x1 && r.y0 < o.y1 && o.y0 < r.y1
-}
-
-// drawVLineLabel writes the label of v along the line at figure x, near
-// the top of the plot, on the right of the line unless there is no room.
-// It returns the box the label occupies.
-func drawVLineLabel(dc *gg.Context, st *styles, v VLine, x float64, ax *axes) rect {
-	ts := st.small
-	tw, th := width(ts, v.Label), ts.height()
-	inset := math.Round(0.5 * st.em)
-	cx := x + 0.3*st.em + th/2
-	if cx+th/2 > ax.x0+ax.w-0.2*st.em {
-		cx = x - 0.3*st.em - th/2
-	}
-	cy := ax.y0 + inset + tw/2
-	r := rect{cx - th/2 - 1, cy - tw/2 - 2, cx + th/2 + 1, cy + tw/2 + 2}
-	dc.SetRGBA255(255, 255, 255, 215)
-	dc.DrawRectangle(math.Round(r.x0), math.Round(r.y0), math.Round(r.x1-r.x0), math.Round(r.y1-r.y0))
-	dc.Fill()
-	ts.color = orBlack(v.Color)
-	drawTextUp(dc, ts, v.Label, cx, cy)
-	return r
-}
-
-// legendCorner chooses the corner of the plot area for a legend of size
-// lw×lh that covers the fewest line samples and no marker label,
-// preferring top right, top left, bottom right, bottom left on a tie.
-func legendCorner(st *styles, ax *axes, lw, lh float64, paths [][][]point, vlines []VLine, fx func(float64) float64, obstacles []rect) (float64, float64) {
-	inset := math.Round(0.6 * st.em)
-	corners := [][2]float64{
-		{ax.x0 + ax.w - inset - lw, ax.y0 + inset},
-		{ax.x0 + inset, ax.y0 + inset},
-		{ax.x0 + ax.w - inset - lw, ax.y0 + ax.h - inset - lh},
-		{ax.x0 + inset, ax.y0 + ax.h - inset - lh},
-	}
-	best, bestScore := 0, math.Inf(1)
-	for i, c := range corners {
-		r := rect{c[0] - 0.3*st.em, c[1] - 0.3*st.em, c[0] + lw + 0.3*st.em, c[1] + lh + 0.3*st.em}
-		score := 0.0
-		for _, series := range paths {
-			for _, pts := range series {
-				score += samplesInside(r, pts)
-			}
-		}
-		for _, v := range vlines {
-			if x := fx(v.X); x >= r.x0 && x <= r.x1 {
-				score += (r.y1 - r.y0) / 2
-			}
-		}
-		for _, o := range obstacles {
-			if r.overlaps(o) {
-				score += 1e6
-			}
-		}
-		if score < bestScore {
-			best, bestScore = i, score
-		}
-	}
-	return corners[best][0], corners[best][1]
-}
-
-// samplesInside counts points spaced about two pixels apart along pts
-// that fall in r.
-func samplesInside(r rect, pts []point) float64 {
-	n := 0.0
-	for i, q := range pts {
-		if i == 0 {
-			if r.contains(q) {
-				n++
-			}
-			continue
-		}
-		p := pts[i-1]
-		d := math.Hypot(q.x-p.x, q.y-p.y)
-		steps := int(math.Min(1e5, math.Ceil(d/2)))
-		for k := 1; k <= steps; k++ {
-			t := float64(k) / float64(steps)
-			if r.contains(point{p.x + t*(q.x-p.x), p.y + t*(q.y-p.y)}) {
-				n++
-			}
-		}
-	}
-	return n
 }
