@@ -43,6 +43,7 @@ func commands() []command {
 		{"sweep-merge", "merge a finished sweep: animated GIFs, all spectra in one plot", runSweepMerge},
 		{"spot", "movie of an orbiting hot spot in observer time: frames, GIF, light curve, centroid, line profile vs time", runSpot},
 		{"probe", "trace the photon of one screen point and list its disk crossings", runProbe},
+		{"explore", "serve a local page: live view with controls, per-pixel readout, save and render", runExplore},
 		{"version", "print the program version", func(_ context.Context, _ []string, stdout, _ io.Writer) error {
 			_, err := fmt.Fprintln(stdout, "kerrscope", version)
 			return err
