@@ -139,12 +139,20 @@ func (s *Server) save(w http.ResponseWriter, r *http.Request) {
 		return
 	}
 	folder := filepath.Join(s.out, strings.TrimSuffix(name, ".toml"))
-	sc, _, err := s.viewScene(req.Params, folder)
+	_, rs, err := s.viewScene(req.Params, folder)
 	if err != nil {
 		writeError(w, http.StatusBadRequest, err)
 		return
 	}
-	text, err := sceneText(sc, s.cfg.Version)
+	// The file records the window the view shows, as the run record of a
+	// render does: an automatic window framed, so that the scene loads
+	// to the same view wherever it is rendered.
+	framed, err := s.frames.frame(r.Context(), rs)
+	if err != nil {
+		writeError(w, http.StatusInternalServerError, err)
+		return
+	}
+	text, err := sceneText(framed.Scene, s.cfg.Version)
 	if err == nil {
 		err = writeAtomic(p, text)
 	}

@@ -25,15 +25,21 @@ type ParamError struct {
 	Allowed string `json:"allowed"`
 }
 
+// Error reads like the command line's: "--spin: black_hole.spin = 1.5:
+// must be in -1 < spin < 1" for a scene value, "map = x: …" otherwise.
 func (e *ParamError) Error() string {
 	name := e.Param
 	if e.Key != "" {
-		name += " [" + e.Key + "]"
+		name = e.Key
 	}
-	if e.Value == "" {
-		return name + ": " + e.Allowed
+	msg := name + ": " + e.Allowed
+	if e.Value != "" {
+		msg = name + " = " + e.Value + ": " + e.Allowed
 	}
-	return name + " = " + e.Value + ": " + e.Allowed
+	if e.Key != "" && e.Param != "" {
+		msg = "--" + e.Param + ": " + msg
+	}
+	return msg
 }
 
 // viewOnly are the scene flags the page does not take: where and what the

@@ -88,6 +88,10 @@ type Server struct {
 
 	job jobs
 	bg  context.Context // renders from the page run under it (SetContext)
+
+	// beforePass, if not nil, is called before each pass of an update
+	// with the page's client id and the pass ("coarse", "full").
+	beforePass func(client, pass string)
 }
 
 // update is an update in flight, cancelled by a newer one of its page.
@@ -419,6 +423,9 @@ func (s *Server) view(w http.ResponseWriter, r *http.Request) {
 		size int
 		full bool
 	}{{coarse, false}, {v.size, true}} {
+		if s.beforePass != nil {
+			s.beforePass(req.Client, map[bool]string{false: "coarse", true: "full"}[pass.full])
+		}
 		t0 := time.Now()
 		st, err := v.render(ctx, pass.size, pass.full)
 		if ctx.Err() != nil {
