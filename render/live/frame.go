@@ -1,13 +1,11 @@
 package live
 
 import (
-	"bytes"
 	"context"
 	"encoding/base64"
 	"fmt"
 	"image"
 	"image/color"
-	"image/png"
 	"math"
 	"sync"
 
@@ -68,6 +66,8 @@ type LineProfile struct {
 	Orders    [][]float64 `json:"orders"`
 	LineKeV   float64     `json:"line_kev"`
 	Physical  bool        `json:"physical"` // photons cm⁻² s⁻¹ keV⁻¹
+	// OrderColors are the colours of the image orders (colormap.Order).
+	OrderColors []string `json:"order_colors"`
 }
 
 // Stage is one pass of a view update, as the page receives it.
@@ -89,7 +89,7 @@ type Stage struct {
 	// Full pass only:
 	Critical  [][2]float64       `json:"critical,omitempty"` // critical curve (Bardeen 1973), α, β in M
 	Spectrum  *LineProfile       `json:"spectrum,omitempty"`
-	BandImage string             `json:"band_image,omitempty"`
+	BandImage string             `json:"band_image,omitempty"` // as Image: band area as opacity
 	Band      *pixels.BandReport `json:"band,omitempty"`
 }
 
@@ -184,9 +184,7 @@ func (v *view) render(ctx context.Context, size int, full bool) (Stage, error) {
 		Edges:   [4]float64{a0, a1, b0, b1},
 		Photons: f.Photons, Caption: r.Caption(), MicroArcsecPerM: r.MicroArcsecPerM,
 		Horizon: r.Horizon, ISCO: r.ISCO, Inner: r.Inner}
-	if st.Image, err = dataURL(img); err != nil {
-		return st, err
-	}
+	st.Image = pixelText(img.Pix)
 	if !full {
 		return st, nil
 	}
@@ -203,24 +201,15 @@ func (v *view) render(ctx context.Context, size int, full bool) (Stage, error) {
 			return st, err
 		}
 		st.Band = &rep
-		if st.BandImage, err = dataURL(bandMask(f)); err != nil {
-			return st, err
-		}
+		st.BandImage = pixelText(bandMask(f).Pix)
 	}
 	return st, nil
 }
 
 func round6(x float64) float64 { return math.Round(x*1e6) / 1e6 }
 
-// dataURL encodes an image as a PNG data: URL.
-func dataURL(img image.Image) (string, error) {
-	var b bytes.Buffer
-	enc := png.Encoder{CompressionLevel: png.BestSpeed}
-	if err := enc.Encode(&b, img); err != nil {
-		return "", err
-	}
-	return "data:image/png;base64," + base64.StdEncoding.EncodeToString(b.Bytes()), nil
-}
+// pixelText is the base64 text of an image's pixel bytes.
+func pixelText(pix []byte) string { return base64.StdEncoding.EncodeToString(pix) }
 
 // bandColor marks the band overlay; its alpha is the pixel's band area.
 var bandColor = color.NRGBA{0x00, 0xe0, 0x90, 0xff}
@@ -252,13 +241,18 @@ func profile(s pixels.Spectrum, r scene.Resolved) *LineProfile {
 	for i := range p.EnergyKeV {
 		p.EnergyKeV[i] = s.MinKeV + (float64(i)+0.5)*s.Width()
 	}
+	p.Orders = append(p.Orders, s.Order...)
 	for o := range s.Order {
-		p.Orders = append(p.Orders, s.Order[o])
+		p.OrderColors = append(p.OrderColors, hex(colormap.Order(o)))
 	}
 	return p
 }
 
 func hex(c color.RGBA) string { return fmt.Sprintf("#%02x%02x%02x", c.R, c.G, c.B) }
+
+// minTickGap is the least distance, as a fraction of the key's length,
+// between two labelled ticks.
+const minTickGap = 0.06
 
 // legend is the colour key of the map for the page, with the scales the
 // frame was drawn with.
@@ -273,15 +267,20 @@ func legend(m maps.Map, f *pixels.Frame, sc maps.Scales) *Legend {
 	key := func(label string, pos func(float64) float64, values []float64) *Legend {
 		l := &Legend{Label: label, Ramp: ramp()}
 		for _, v := range values {
-			if t := pos(v); t >= 0 && t <= 1 && !math.IsNaN(t) {
-				l.Ticks = append(l.Ticks, Tick{T: t, Label: fmt.Sprintf("%g", v)})
+			t := pos(v)
+			if !(t >= 0 && t <= 1) {
+				continue
 			}
+			if n := len(l.Ticks); n > 0 && t-l.Ticks[n-1].T < minTickGap {
+				continue // too close to the last label to be read
+			}
+			l.Ticks = append(l.Ticks, Tick{T: t, Label: fmt.Sprintf("%g", v)})
 		}
 		return l
 	}
 	switch m.Name {
 	case "redshift":
-		gs := []float64{0.1, 0.2, 0.3, 0.5, 0.7, 0.85, 1, 1.1, 1.2, 1.3, 1.5, 2, 3}
+		gs := []float64{0.1, 0.2, 0.3, 0.5, 0.7, 1, 1.1, 1.2, 1.3, 1.5, 2, 3}
 		var in []float64
 		for _, g := range gs {
 			if g >= sc.GMin && g <= sc.GMax {

@@ -517,10 +517,4 @@ func (s *Server) probe(w http.ResponseWriter, r *http.Request) {
 	rep.WriteJSON(w)
 }
 
-func mapNames() []string {
-	var out []string
-	for _, n := range scene.MapNames {
-		out = append(out, n)
-	}
-	return out
-}
+func mapNames() []string { return append([]string(nil), scene.MapNames...) }

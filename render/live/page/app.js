@@ -98,9 +98,31 @@ async function start() {
     $("size").appendChild(o);
     $("size").value = String(info.size);
   }
+  fromHash();
   syncSliders();
   wire();
   update();
+}
+
+// The address may carry values after '#': scene flags, map, size, band,
+// critical (true/false) and pin=α,β, e.g. #spin=0.99&map=intensity&pin=-6,2.
+let pinAfterLoad = null;
+function fromHash() {
+  const h = new URLSearchParams(location.hash.slice(1));
+  for (const [k, v] of h) {
+    const el = document.querySelector(`[data-param="${CSS.escape(k)}"]`);
+    if (el) {
+      if (el.type === "checkbox") el.checked = v === "true"; else el.value = v;
+      continue;
+    }
+    if (k === "map" || k === "size") $(k).value = v;
+    if (k === "band") $("show-band").checked = v === "true";
+    if (k === "critical") $("show-critical").checked = v !== "false";
+    if (k === "pin") {
+      const [a, b] = v.split(",").map(Number);
+      if (isFinite(a) && isFinite(b)) pinAfterLoad = [a, b];
+    }
+  }
 }
 
 let pending = 0;
@@ -186,40 +208,43 @@ async function update() {
         showError(null);
         times.push(`${st.stage} ${st.width}×${st.height} ${st.ms.toFixed(1)} ms`);
         $("timing").textContent = times.join(" · ");
-        await drawStage(st);
+        drawStage(st);
       }
     }
   } catch (e) { /* aborted by a newer update */ }
 }
 
+// toCanvas puts a stage's base64 RGBA pixels on a canvas of their size.
+function toCanvas(text, w, h, c) {
+  const raw = atob(text);
+  const px = new Uint8ClampedArray(raw.length);
+  for (let i = 0; i < raw.length; i++) px[i] = raw.charCodeAt(i);
+  c = c || document.createElement("canvas");
+  c.width = w; c.height = h;
+  c.getContext("2d").putImageData(new ImageData(px, w, h), 0, 0);
+  return c;
+}
+
 function drawStage(st) {
-  return new Promise((resolve) => {
-    const img = new Image();
-    img.onload = () => {
-      if (st.stage === "full") state.full = st;
-      state.stage = st;
-      state.img = img;
-      $("caption").textContent = st.caption + (st.uas_per_m ? `   ·   1 M = ${fmt(st.uas_per_m, 4)} µas` : "");
-      layout(st);
-      const c = $("image");
-      c.width = st.width; c.height = st.height;
-      c.getContext("2d").drawImage(img, 0, 0);
-      drawAxes(st);
-      if (st.stage === "full") {
-        drawKey(st.legend);
-        drawSpectrum(st.spectrum);
-        drawBand(st);
-        if (st.band_image) {
-          const b = new Image();
-          b.onload = () => { state.bandImg = b; drawOverlay(); };
-          b.src = st.band_image;
-        } else state.bandImg = null;
-      }
-      drawOverlay();
-      resolve();
-    };
-    img.src = st.image;
-  });
+  if (st.stage === "full") state.full = st;
+  state.stage = st;
+  $("caption").textContent = st.caption + (st.uas_per_m ? `   ·   1 M = ${fmt(st.uas_per_m, 4)} µas` : "");
+  layout(st);
+  toCanvas(st.image, st.width, st.height, $("image"));
+  drawAxes(st);
+  if (st.stage === "full") {
+    drawKey(st.legend);
+    drawSpectrum(st.spectrum);
+    drawBand(st);
+    state.bandImg = st.band_image ? toCanvas(st.band_image, st.width, st.height) : null;
+  }
+  drawOverlay();
+  if (st.stage === "full" && pinAfterLoad) {
+    const [a, b] = pinAfterLoad;
+    pinAfterLoad = null;
+    pin(a, b);
+    probe(a, b, 3).then((rep) => { if (rep) $("hover").innerHTML = crossings(rep, false); });
+  }
 }
 
 function layout(st) {
@@ -506,8 +531,6 @@ function drawKey(l) {
   }
 }
 
-const orderColors = ["#1f4e9c", "#c8501e", "#2f8a3a", "#8a3a9c"];
-
 function drawSpectrum(s) {
   const c = $("spectrum"), g = c.getContext("2d");
   g.clearRect(0, 0, c.width, c.height);
@@ -532,10 +555,21 @@ function drawSpectrum(s) {
     v.forEach((y, i) => { const x = X(s.energy_kev[i]); i ? g.lineTo(x, Y(y)) : g.moveTo(x, Y(y)); });
     g.stroke();
   };
-  if (s.orders.length > 1) s.orders.forEach((o, n) => { if (n > 0) line(o, orderColors[n % orderColors.length], 1); });
+  if (s.orders.length > 1) s.orders.forEach((o, n) => { if (n > 0) line(o, s.order_colors[n], 1.2); });
   line(s.total, "#222", 1.6);
-  g.font = "11px kerrscope, sans-serif"; g.textAlign = "right"; g.textBaseline = "top"; g.fillStyle = "#333";
-  g.fillText(`all orders   rest line ${fmt(s.line_kev, 4)} keV`, L + W - 4, T + 3);
+  const key = $("spectrum-key");
+  key.innerHTML = "";
+  const item = (color, label, dashed) => {
+    const d = document.createElement("span");
+    const i = document.createElement("i");
+    i.style.borderTopColor = color;
+    if (dashed) i.className = "dashed";
+    d.appendChild(i); d.appendChild(document.createTextNode(label));
+    key.appendChild(d);
+  };
+  item("#222", "all orders");
+  for (let n = 1; n < s.orders.length; n++) item(s.order_colors[n], `n = ${n}`);
+  item("#999", `rest energy ${fmt(s.line_kev, 4)} keV`, true);
 }
 
 function drawBand(st) {
