@@ -326,6 +326,8 @@ function drawAxes(st) {
     g.font = "13px kerrscope, sans-serif";
     g.textAlign = "center"; g.textBaseline = "alphabetic";
     g.fillText("α [µas]", place.x + place.w / 2, place.y - 24);
+    g.save(); g.translate(place.x + place.w + 54, place.y + place.h / 2); g.rotate(Math.PI / 2);
+    g.fillText("β [µas]", 0, 0); g.restore();
   }
 }
 
