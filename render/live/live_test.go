@@ -650,3 +650,50 @@ func TestWritesStayInsideTheFolder(t *testing.T) {
 		t.Errorf("outside holds %d entries", len(ents))
 	}
 }
+
+// The page loads nothing from anywhere else: every file it refers to is
+// served by the server, and none names a remote address.
+func TestPageIsSelfContained(t *testing.T) {
+	_, ts := newTestServer(t, Config{})
+	get := func(path string) (string, string) {
+		resp, err := ts.Client().Get(ts.URL + path)
+		if err != nil {
+			t.Fatal(err)
+		}
+		defer resp.Body.Close()
+		b, _ := io.ReadAll(resp.Body)
+		if resp.StatusCode != http.StatusOK {
+			t.Fatalf("GET %s: status %d", path, resp.StatusCode)
+		}
+		return string(b), resp.Header.Get("Content-Security-Policy")
+	}
+	html, csp := get("/")
+	if !strings.Contains(csp, "default-src 'self'") {
+		t.Errorf("page served without a same-origin policy: %q", csp)
+	}
+	refs := []string{"/page/app.js", "/page/style.css", "/font/regular.ttf", "/font/bold.ttf", "/font/mono.ttf"}
+	texts := []string{html}
+	for _, r := range refs {
+		body, _ := get(r)
+		if strings.HasPrefix(r, "/page/") {
+			texts = append(texts, body)
+		}
+	}
+	for i, text := range texts {
+		for _, bad := range []string{"http://", "https://", "//cdn", "@import", "<iframe"} {
+			if strings.Contains(text, bad) {
+				t.Errorf("file %d of the page holds %q", i, bad)
+			}
+		}
+	}
+	for _, r := range []string{"/page/app.js", "/page/style.css"} {
+		if !strings.Contains(html, r) {
+			t.Errorf("the page does not load %s", r)
+		}
+	}
+	for _, r := range []string{"/font/regular.ttf", "/font/bold.ttf", "/font/mono.ttf"} {
+		if !strings.Contains(texts[2], r) {
+			t.Errorf("the style does not use %s", r)
+		}
+	}
+}

@@ -485,7 +485,11 @@ function crossings(rep, all) {
   let h = `<div class="coords"><b>α</b><span>${fmt(rep.alpha, 6)} M${u ? "   " + fmt(rep.alpha * u, 5) + " µas" : ""}</span>` +
     `<b>β</b><span>${fmt(rep.beta, 6)} M${u ? "   " + fmt(rep.beta * u, 5) + " µas" : ""}</span>`;
   if (all) h += `<b>λ, η</b><span>${fmt(rep.lambda, 7)} M, ${fmt(rep.eta, 7)} M²</span>`;
-  h += `</div><div class="fate">traced back, the photon ends at: <b>${esc(rep.fate)}</b></div>`;
+  h += `</div>`;
+  const lit = rep.crossings.find((c) => c.g !== null);
+  h += lit
+    ? `<div class="fate">light from the disk at n = ${lit.order} (r = ${fmt(lit.r, 5)} M); traced on, the path ends at <b>${esc(rep.fate)}</b></div>`
+    : `<div class="fate">no disk here; traced back, the photon comes from <b>${esc(rep.fate)}</b></div>`;
   if (!rep.crossings.length) return h + `<p class="hint">It never crosses the equatorial plane.</p>`;
   h += `<table><tr><th class="l">n</th><th>r [M]</th><th>g</th>` +
     (all ? `<th>delay [M]</th><th>Δφ [rad]</th><th class="l">moving</th>` : `<th class="l">lands</th>`) + `</tr>`;
