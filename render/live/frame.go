@@ -101,6 +101,7 @@ type view struct {
 	mp     maps.Map
 	scales maps.Scales
 	band   bool
+	order  int // the image order shown alone; -1: all
 }
 
 // frameCache remembers the automatic windows of recent scenes: framing
@@ -160,6 +161,9 @@ func sized(r scene.Resolved, size int) scene.Resolved {
 // keep is the set of records a pass of the view needs.
 func (v *view) keep(full bool) pixels.Keep {
 	k := v.mp.Needs()
+	if v.order >= 0 {
+		k |= pixels.KeepLine // tells where the order is seen
+	}
 	if full {
 		k |= pixels.KeepG | pixels.KeepLine
 		if v.band {
@@ -176,8 +180,12 @@ func (v *view) render(ctx context.Context, size int, full bool) (Stage, error) {
 	if err != nil {
 		return Stage{}, err
 	}
-	sc := v.scales.Fill(f)
-	img := v.mp.Image(f, sc)
+	shown := f
+	if v.order >= 0 {
+		shown = onlyOrder(f, v.order)
+	}
+	sc := v.scales.Fill(shown)
+	img := v.mp.Image(shown, sc)
 	a0, a1, b0, b1 := f.Window()
 	st := Stage{Stage: "coarse", Width: f.W, Height: f.H,
 		Window:  Window{Field: r.Screen.FieldOfView, Alpha: r.Screen.CenterAlpha, Beta: r.Screen.CenterBeta},
@@ -189,7 +197,7 @@ func (v *view) render(ctx context.Context, size int, full bool) (Stage, error) {
 		return st, nil
 	}
 	st.Stage = "full"
-	st.Legend = legend(v.mp, f, sc)
+	st.Legend = legend(v.mp, shown, sc)
 	for _, p := range f.Model.Obs.CriticalCurve(300) {
 		st.Critical = append(st.Critical, [2]float64{round6(p.Alpha), round6(p.Beta)})
 	}
@@ -204,6 +212,38 @@ func (v *view) render(ctx context.Context, size int, full bool) (Stage, error) {
 		st.BandImage = pixelText(bandMask(f).Pix)
 	}
 	return st, nil
+}
+
+// onlyOrder returns a copy of f in which only image order n is seen: the
+// records of the other orders are NaN and the first order seen is n
+// wherever n is seen (on an opaque disk, where nothing lower hides it).
+// The maps then show that order alone.
+func onlyOrder(f *pixels.Frame, n int) *pixels.Frame {
+	g := *f
+	nan := make([]float32, f.W*f.H)
+	for k := range nan {
+		nan[k] = float32(math.NaN())
+	}
+	keep := func(q [][]float32) [][]float32 {
+		if q == nil {
+			return nil
+		}
+		out := make([][]float32, len(q))
+		for o := range out {
+			out[o] = nan
+		}
+		out[n] = q[n]
+		return out
+	}
+	g.R, g.G, g.Line, g.Bol, g.Behind, g.T, g.Phi = keep(f.R), keep(f.G), keep(f.Line), keep(f.Bol), keep(f.Behind), keep(f.T), keep(f.Phi)
+	g.First = make([]int8, len(f.First))
+	for k := range g.First {
+		g.First[k] = -1
+		if !math.IsNaN(float64(f.Line[n][k])) {
+			g.First[k] = int8(n)
+		}
+	}
+	return &g
 }
 
 func round6(x float64) float64 { return math.Round(x*1e6) / 1e6 }

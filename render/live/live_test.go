@@ -697,3 +697,65 @@ func TestPageIsSelfContained(t *testing.T) {
 		}
 	}
 }
+
+// Every map of the renderer can be shown, on opaque and transparent disks.
+func TestEveryMap(t *testing.T) {
+	_, ts := newTestServer(t, Config{})
+	for _, name := range maps.Names() {
+		for _, tr := range []string{"false", "true"} {
+			resp, body := post(t, ts, "/api/view", ViewRequest{Client: "c", Params: map[string]string{"transparent": tr}, Settings: Settings{Map: name, Size: 32}})
+			if resp.StatusCode != http.StatusOK {
+				t.Fatalf("%s: status %d: %s", name, resp.StatusCode, body)
+			}
+			lines := stages(t, body)
+			if len(lines) != 2 || field[string](t, lines[1], "stage") != "full" {
+				t.Fatalf("%s, transparent %s: %.300s", name, tr, body)
+			}
+			if l := field[Legend](t, lines[1], "legend"); l.Label == "" || len(l.Ramp)+len(l.Swatches) == 0 {
+				t.Errorf("%s: no colour key", name)
+			}
+		}
+	}
+}
+
+// One image order alone: the map is coloured exactly where that order of
+// the engine's frame lands on the disk, and an order the scene does not
+// follow is refused.
+func TestOneOrderAlone(t *testing.T) {
+	_, ts := newTestServer(t, Config{})
+	params := map[string]string{"transparent": "true", "inclination": "80", "fov": "24"}
+	resp, body := post(t, ts, "/api/view", ViewRequest{Client: "c", Params: params, Settings: Settings{Map: "radius", Order: "1"}})
+	if resp.StatusCode != http.StatusOK {
+		t.Fatalf("status %d: %s", resp.StatusCode, body)
+	}
+	lines := stages(t, body)
+	got := pixelBytes(t, field[string](t, lines[1], "image"))
+	r, err := resolve(testBase(), params)
+	if err != nil {
+		t.Fatal(err)
+	}
+	f, err := pixels.Render(context.Background(), r, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	grey := [][3]byte{{0x77, 0x77, 0x77}, {6, 6, 8}} // colormap.NoHit, colormap.Shadow
+	seen := 0
+	for k := 0; k < f.W*f.H; k++ {
+		c := [3]byte{got[4*k], got[4*k+1], got[4*k+2]}
+		coloured := c != grey[0] && c != grey[1]
+		lands := f.R[1][k] == f.R[1][k] // not NaN
+		if coloured != lands {
+			t.Fatalf("pixel %d: coloured %v, order 1 lands %v", k, coloured, lands)
+		}
+		if lands {
+			seen++
+		}
+	}
+	if seen == 0 {
+		t.Fatal("order 1 lands nowhere in the window; not a test")
+	}
+	resp, body = post(t, ts, "/api/view", ViewRequest{Client: "c", Settings: Settings{Order: "3"}})
+	if resp.StatusCode != http.StatusBadRequest || !strings.Contains(string(body), `"param":"order"`) {
+		t.Errorf("order 3 of 3: status %d: %s", resp.StatusCode, body)
+	}
+}

@@ -141,6 +141,23 @@ type Settings struct {
 	GMax string `json:"gmax"`
 	// Decades of a log intensity scale; blank: 4.
 	Decades string `json:"decades"`
+	// Order shows one image order alone ("0", "1", …); blank or "all":
+	// every order, as the maps of a render show them.
+	Order string `json:"order"`
+}
+
+// order reads the image order to show alone (-1: all) for a scene
+// following orders image orders.
+func (s Settings) order(orders int) (int, error) {
+	v := strings.TrimSpace(s.Order)
+	if v == "" || v == "all" {
+		return -1, nil
+	}
+	n, err := strconv.Atoi(v)
+	if err != nil || n < 0 || n >= orders {
+		return 0, &ParamError{Param: "order", Value: scene.Cut(v), Allowed: fmt.Sprintf("all, or an image order from 0 to %d (the scene follows %d)", orders-1, orders)}
+	}
+	return n, nil
 }
 
 // Colour scale limits the page accepts.

@@ -344,6 +344,9 @@ func (s *Server) prepare(ctx context.Context, req ViewRequest) (*view, error) {
 	if err != nil {
 		return nil, err
 	}
+	if v.order, err = req.Settings.order(rs.Disk.Orders); err != nil {
+		return nil, err
+	}
 	if v.scene, err = s.frames.frame(ctx, rs); err != nil {
 		return nil, err
 	}

@@ -44,6 +44,7 @@ function settings() {
     size: parseInt($("size").value, 10),
     band: $("show-band").checked,
     gmin: $("gmin").value, gmax: $("gmax").value, decades: $("decades").value,
+    order: $("order").value,
   };
 }
 
@@ -115,7 +116,7 @@ function fromHash() {
       if (el.type === "checkbox") el.checked = v === "true"; else el.value = v;
       continue;
     }
-    if (k === "map" || k === "size") $(k).value = v;
+    if (k === "map" || k === "size" || k === "order") $(k).value = v;
     if (k === "band") $("show-band").checked = v === "true";
     if (k === "critical") $("show-critical").checked = v !== "false";
     if (k === "pin") {
@@ -135,7 +136,7 @@ function wire() {
   for (const el of paramInputs()) {
     el.addEventListener(el.tagName === "SELECT" || el.type === "checkbox" ? "change" : "input", () => { syncSliders(); schedule(); });
   }
-  for (const id of ["map", "size", "show-band", "gmin", "gmax", "decades"]) {
+  for (const id of ["map", "order", "size", "show-band", "gmin", "gmax", "decades"]) {
     $(id).addEventListener($(id).tagName === "SELECT" || $(id).type === "checkbox" ? "change" : "input", schedule);
   }
   $("show-critical").addEventListener("change", drawOverlay);
