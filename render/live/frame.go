@@ -198,6 +198,9 @@ func (v *view) render(ctx context.Context, size int, full bool) (Stage, error) {
 	}
 	st.Stage = "full"
 	st.Legend = legend(v.mp, shown, sc)
+	if v.order >= 0 {
+		st.Legend.Label += fmt.Sprintf("   ·   image order n = %d alone", v.order)
+	}
 	for _, p := range f.Model.Obs.CriticalCurve(300) {
 		st.Critical = append(st.Critical, [2]float64{round6(p.Alpha), round6(p.Beta)})
 	}
