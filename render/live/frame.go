@@ -102,6 +102,10 @@ type view struct {
 	scales maps.Scales
 	band   bool
 	order  int // the image order shown alone; -1: all
+	// unframed, when set, is the scene whose automatic window is still
+	// to be framed; scene then holds the page's last window, for the
+	// coarse pass only.
+	unframed *scene.Resolved
 }
 
 // frameCache remembers the automatic windows of recent scenes: framing
@@ -121,18 +125,27 @@ func framingKey(r scene.Resolved) string {
 		r.Screen.CenterAlpha, r.Screen.CenterBeta, r.AutoCenter)
 }
 
-// frame returns r with a concrete window (pixels.FrameWindow), cached.
-func (c *frameCache) frame(ctx context.Context, r scene.Resolved) (scene.Resolved, error) {
+// cached returns r with its window concrete when that needs no tracing:
+// a window given, or an automatic one framed before.
+func (c *frameCache) cached(r scene.Resolved) (scene.Resolved, bool) {
 	if !r.AutoField {
-		return r, nil
+		return r, true
 	}
-	key := framingKey(r)
 	c.mu.Lock()
-	w, ok := c.m[key]
+	w, ok := c.m[framingKey(r)]
 	c.mu.Unlock()
 	if ok {
-		return r.WithWindow(w.Field, w.Alpha, w.Beta), nil
+		return r.WithWindow(w.Field, w.Alpha, w.Beta), true
 	}
+	return r, false
+}
+
+// frame returns r with a concrete window (pixels.FrameWindow), cached.
+func (c *frameCache) frame(ctx context.Context, r scene.Resolved) (scene.Resolved, error) {
+	if f, ok := c.cached(r); ok {
+		return f, nil
+	}
+	key := framingKey(r)
 	f, err := pixels.FrameWindow(ctx, r)
 	if err != nil {
 		return r, err

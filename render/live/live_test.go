@@ -759,3 +759,48 @@ func TestOneOrderAlone(t *testing.T) {
 		t.Errorf("order 3 of 3: status %d: %s", resp.StatusCode, body)
 	}
 }
+
+// When a change needs the automatic window framed again, the coarse pass
+// shows the page's last window at once and the full pass the newly framed
+// one, pixels.FrameWindow's for the new scene.
+func TestCoarsePassKeepsLastWindowWhileFraming(t *testing.T) {
+	_, ts := newTestServer(t, Config{})
+	view := func(client, spin string) (Window, Window) {
+		resp, body := post(t, ts, "/api/view", ViewRequest{Client: client, Params: map[string]string{"spin": spin}})
+		if resp.StatusCode != http.StatusOK {
+			t.Fatalf("status %d: %s", resp.StatusCode, body)
+		}
+		lines := stages(t, body)
+		if len(lines) != 2 {
+			t.Fatalf("%d lines", len(lines))
+		}
+		return field[Window](t, lines[0], "window"), field[Window](t, lines[1], "window")
+	}
+	framed := func(spin string) Window {
+		r, err := resolve(testBase(), map[string]string{"spin": spin})
+		if err != nil {
+			t.Fatal(err)
+		}
+		f, err := pixels.FrameWindow(context.Background(), r)
+		if err != nil {
+			t.Fatal(err)
+		}
+		return Window{Field: f.Screen.FieldOfView, Alpha: f.Screen.CenterAlpha, Beta: f.Screen.CenterBeta}
+	}
+	c1, f1 := view("p", "0.1")
+	if want := framed("0.1"); c1 != want || f1 != want {
+		t.Fatalf("first view: coarse %+v, full %+v, framed %+v", c1, f1, want)
+	}
+	c2, f2 := view("p", "-0.95")
+	want := framed("-0.95")
+	if want == f1 {
+		t.Fatal("the two spins frame the same window; not a test")
+	}
+	if c2 != f1 || f2 != want {
+		t.Errorf("second view: coarse %+v (last %+v), full %+v (framed %+v)", c2, f1, f2, want)
+	}
+	// Another page has no last window: its coarse pass is framed.
+	if c3, _ := view("q", "0.3"); c3 != framed("0.3") {
+		t.Errorf("new page's coarse window %+v", c3)
+	}
+}

@@ -84,6 +84,7 @@ type Server struct {
 
 	mu      sync.Mutex
 	running map[string]*update // latest update per page (client id)
+	windows map[string]shown   // last full view per page
 	seq     uint64
 
 	job jobs
@@ -92,6 +93,36 @@ type Server struct {
 	// beforePass, if not nil, is called before each pass of an update
 	// with the page's client id and the pass ("coarse", "full").
 	beforePass func(client, pass string)
+}
+
+// shown is the window of a page's last full view and its screen.
+type shown struct {
+	w, h int
+	win  Window
+}
+
+// lastWindow returns the window of the page's last full view, if its
+// screen had the shape of r's.
+func (s *Server) lastWindow(client string, r scene.Resolved) (Window, bool) {
+	if client == "" {
+		return Window{}, false
+	}
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	sh, ok := s.windows[client]
+	return sh.win, ok && sh.w == r.Screen.Width && sh.h == r.Screen.Height
+}
+
+func (s *Server) remember(client string, r scene.Resolved) {
+	if client == "" {
+		return
+	}
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	if s.windows == nil || len(s.windows) > 1024 {
+		s.windows = map[string]shown{}
+	}
+	s.windows[client] = shown{r.Screen.Width, r.Screen.Height, Window{Field: r.Screen.FieldOfView, Alpha: r.Screen.CenterAlpha, Beta: r.Screen.CenterBeta}}
 }
 
 // update is an update in flight, cancelled by a newer one of its page.
@@ -321,6 +352,7 @@ type ViewRequest struct {
 
 // prepare validates an update and frames its window.
 func (s *Server) prepare(ctx context.Context, req ViewRequest) (*view, error) {
+	client := req.Client
 	v := &view{size: req.Settings.Size}
 	if v.size == 0 {
 		v.size = s.cfg.Size
@@ -346,6 +378,16 @@ func (s *Server) prepare(ctx context.Context, req ViewRequest) (*view, error) {
 	}
 	if v.order, err = req.Settings.order(rs.Disk.Orders); err != nil {
 		return nil, err
+	}
+	if f, ok := s.frames.cached(rs); ok {
+		v.scene = f
+		return v, nil
+	}
+	if w, ok := s.lastWindow(client, rs); ok {
+		// Framing traces more photons than the view: the coarse pass
+		// shows the page's last window meanwhile.
+		v.scene, v.unframed = rs.WithWindow(w.Field, w.Alpha, w.Beta), &rs
+		return v, nil
 	}
 	if v.scene, err = s.frames.frame(ctx, rs); err != nil {
 		return nil, err
@@ -430,6 +472,18 @@ func (s *Server) view(w http.ResponseWriter, r *http.Request) {
 			s.beforePass(req.Client, map[bool]string{false: "coarse", true: "full"}[pass.full])
 		}
 		t0 := time.Now()
+		if pass.full && v.unframed != nil {
+			framed, err := s.frames.frame(ctx, *v.unframed)
+			if ctx.Err() != nil {
+				s.cancelled(w, ctx, true)
+				return
+			}
+			if err != nil {
+				enc.Encode(map[string]string{"stage": "error", "error": err.Error()})
+				return
+			}
+			v.scene, v.unframed = framed, nil
+		}
 		st, err := v.render(ctx, pass.size, pass.full)
 		if ctx.Err() != nil {
 			s.cancelled(w, ctx, true)
@@ -442,6 +496,9 @@ func (s *Server) view(w http.ResponseWriter, r *http.Request) {
 		st.Millis = float64(time.Since(t0).Microseconds()) / 1000
 		enc.Encode(st)
 		flush()
+		if pass.full {
+			s.remember(req.Client, v.scene)
+		}
 	}
 }
 
