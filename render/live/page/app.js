@@ -13,6 +13,7 @@ const state = {
   full: null,        // the last full stage
   img: null,         // its decoded image
   pin: null,         // pinned probe report
+  hover: null,       // probe report under the pointer
   controller: null,  // the update in flight
 };
 
@@ -455,7 +456,10 @@ async function probeHover() {
   hoverAt = null;
   try {
     const rep = await probe(at.alpha, at.beta, 3);
-    if (rep) $("hover").innerHTML = crossings(rep, false);
+    if (rep) {
+      state.hover = rep;
+      $("hover").innerHTML = crossings(rep, false);
+    }
   } finally {
     probing = false;
     if (hoverAt) probeHover();
