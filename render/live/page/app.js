@@ -117,7 +117,7 @@ function fromHash() {
       if (el.type === "checkbox") el.checked = v === "true"; else el.value = v;
       continue;
     }
-    if (k === "map" || k === "size" || k === "order") $(k).value = v;
+    if (["map", "size", "order", "gmin", "gmax", "decades"].includes(k)) $(k).value = v;
     if (k === "band") $("show-band").checked = v === "true";
     if (k === "critical") $("show-critical").checked = v !== "false";
     if (k === "pin") {
@@ -328,7 +328,7 @@ function drawAxes(st) {
     g.font = "13px kerrscope, sans-serif";
     g.textAlign = "center"; g.textBaseline = "alphabetic";
     g.fillText("α [µas]", place.x + place.w / 2, place.y - 24);
-    g.save(); g.translate(place.x + place.w + 54, place.y + place.h / 2); g.rotate(Math.PI / 2);
+    g.save(); g.translate(place.x + place.w + 58, place.y + place.h / 2); g.rotate(-Math.PI / 2);
     g.fillText("β [µas]", 0, 0); g.restore();
   }
 }
