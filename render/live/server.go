@@ -52,6 +52,8 @@ const (
 	// page (width × height), DefaultRenderDepth its refinement.
 	DefaultRenderPixels = 2048 * 2048
 	DefaultRenderDepth  = 4
+	// MaxProbes bounds the probes traced at once; more wait.
+	MaxProbes = 8
 	// MaxProbeOrders bounds the crossings a probe lists (as the probe command).
 	MaxProbeOrders = 64
 )
@@ -81,6 +83,7 @@ type Server struct {
 	out    string // OutDir, absolute with symlinks resolved
 	frames frameCache
 	slots  chan struct{}
+	probes chan struct{} // probes traced at once (MaxProbes)
 
 	mu      sync.Mutex
 	running map[string]*update // latest update per page (client id)
@@ -168,7 +171,7 @@ func New(cfg Config) (*Server, error) {
 	if err != nil {
 		return nil, fmt.Errorf("output folder: %w", err)
 	}
-	return &Server{cfg: cfg, out: abs, slots: make(chan struct{}, cfg.Updates), running: map[string]*update{}}, nil
+	return &Server{cfg: cfg, out: abs, slots: make(chan struct{}, cfg.Updates), probes: make(chan struct{}, MaxProbes), running: map[string]*update{}}, nil
 }
 
 // OutDir returns the folder the server writes into (absolute).
@@ -565,6 +568,12 @@ func (s *Server) probe(w http.ResponseWriter, r *http.Request) {
 	var req ProbeRequest
 	if err := readJSON(r, &req); err != nil {
 		writeError(w, http.StatusBadRequest, err)
+		return
+	}
+	select {
+	case s.probes <- struct{}{}:
+		defer func() { <-s.probes }()
+	case <-r.Context().Done():
 		return
 	}
 	rep, err := probeReport(s.cfg.Base, req)
