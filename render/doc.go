@@ -10,6 +10,8 @@
 //	                staged so that a failed run leaves nothing behind
 //	render/sweep    many scenes over a grid of values: plans, shards,
 //	                resumable manifests, merged animations
+//	render/live     the local page of kerrscope explore: the view
+//	                re-rendered live, probes, save and render
 //
 // Helpers that are not an API live under render/internal: figure (drawing
 // with gg), fits (the FITS writer, hand-written: no Go FITS module is
