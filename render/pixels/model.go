@@ -18,9 +18,13 @@ import (
 // Model is what one photon sees: the observer, the disk edges and the
 // disk's gas and emission. It is a plain value, safe for concurrent use.
 type Model struct {
-	Obs          raytrace.Observer
-	Gas          scene.Gas
-	Emissivity   scene.Emissivity
+	Obs        raytrace.Observer
+	Gas        scene.Gas
+	Emissivity scene.Emissivity
+	// Lines are the rest lines; a crossing's line intensity is
+	// g³ Lines.At(r) f (Lines.At is Emissivity.At unless a line of a
+	// list has its own law).
+	Lines        scene.RestLines
 	Limb         scene.Limb
 	Inner, Outer float64 // emitting disk edges in M
 	Opaque       bool
@@ -41,7 +45,9 @@ func NewModel(r scene.Resolved) (Model, error) {
 	if err != nil {
 		return Model{}, err
 	}
-	return Model{Obs: o, Gas: r.Gas, Emissivity: r.Emissivity, Limb: r.Limb,
+	lines := r.RestLines
+	lines.Main = r.Emissivity
+	return Model{Obs: o, Gas: r.Gas, Emissivity: r.Emissivity, Lines: lines, Limb: r.Limb,
 		Inner: r.Inner, Outer: r.Disk.OuterRadius, Opaque: r.Disk.Opaque, Orders: r.Disk.Orders,
 		Timing: r.NeedsTiming()}, nil
 }
@@ -101,14 +107,14 @@ func (m *Model) fill(p *raytrace.Path, times []raytrace.Timing, s *Sample) {
 		if !ok {
 			continue
 		}
-		eps := m.Emissivity.At(c.R)
+		eps, epsE := m.Lines.At(c.R), m.Lines.EnergyAt(c.R)
 		limb := m.Limb.At(scene.EmissionCosine(g, c.R, p.Eta))
 		g3 := g * g * g
 		if hidden {
-			s.Hits[n] = Hit{R: c.R, G: g, Line: g3 * eps * limb, Bol: g3 * g * eps * limb, Behind: true, T: math.NaN(), Phi: math.NaN()}
+			s.Hits[n] = Hit{R: c.R, G: g, Line: g3 * eps * limb, Bol: g3 * g * epsE * limb, Behind: true, T: math.NaN(), Phi: math.NaN()}
 			continue
 		}
-		s.Hits[n] = Hit{R: c.R, G: g, Line: g3 * eps * limb, Bol: g3 * g * eps * limb, Seen: true, T: math.NaN(), Phi: math.NaN()}
+		s.Hits[n] = Hit{R: c.R, G: g, Line: g3 * eps * limb, Bol: g3 * g * epsE * limb, Seen: true, T: math.NaN(), Phi: math.NaN()}
 		if times != nil {
 			s.Hits[n].T, s.Hits[n].Phi = times[n].Delay, times[n].DeltaPhi
 		}
