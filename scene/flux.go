@@ -68,7 +68,9 @@ func (r *Resolved) resolvePhotonRate() error {
 // the disk-area integral of the law, by Gauss–Legendre quadrature
 // (quad.Legendre, 16 points) on 64 panels equally spaced in ln r per
 // stretch between the law's kinks (the break radius; isco, where
-// novikov-thorne starts); in ln r a power law is a smooth exponential
+// novikov-thorne starts and a lamp-lit disk's gas starts to plunge; the
+// lamp's table is smooth, log-linear between bin centres, which 64 panels
+// resolve to about 1e-4); in ln r a power law is a smooth exponential
 // (r^{2−q}), which the panels resolve to about machine precision for
 // every index Resolve allows (Press et al., Numerical Recipes, 3rd ed.,
 // sec. 4.6). Closed form for PowerLaw, checked in the tests:
@@ -81,8 +83,8 @@ func (e Emissivity) AreaIntegral(rIn, rOut, isco float64) float64 {
 	switch e.Kind {
 	case BrokenPowerLaw:
 		kink = e.RBreak
-	case NovikovThorne:
-		kink = isco
+	case NovikovThorne, Lamp:
+		kink = isco // Lamp: the gas changes motion there (plunging inside)
 	}
 	cuts := []float64{rIn, rOut}
 	if kink > rIn && kink < rOut {

@@ -252,13 +252,29 @@ func (r *Resolved) lineEmissivity(n int, l Line) (Emissivity, error) {
 	pick("index_outer", l.IndexOuter, &em.IndexOuter)
 	pick("break_radius", l.BreakRad, &em.BreakRad)
 	em.Emissivity = law
-	return checkEmissivity(em, r.Hole.Spin, r.Disk.OuterRadius, keys)
+	e, err := emissivityLaw(em, r.Hole.Spin, r.Disk.OuterRadius, keys)
+	if err != nil {
+		return e, err
+	}
+	if e.Kind == Lamp {
+		// The lamp's keys are [emission]'s: the line shares its lamp.
+		if r.Emissivity.Kind != Lamp {
+			return e, fieldErr(keys["emissivity"], law, "a line lit by the lamp needs emission.emissivity = lamp (the lamp's keys are [emission]'s)")
+		}
+		e.Height, e.PhotonIndex, e.Illumination = r.Emissivity.Height, r.Emissivity.PhotonIndex, r.Emissivity.Illumination
+	}
+	if err := e.Validate(); err != nil {
+		return e, fieldErr(keys["emissivity"], law, "%v", err)
+	}
+	return e, nil
 }
 
-// checkEmissivity builds and checks the law of em's emissivity keys;
-// keys names the scene key of each ("emissivity", "index", "index_inner",
-// "index_outer", "break_radius") in errors.
-func checkEmissivity(em Emission, spin, outer float64, keys map[string]string) (Emissivity, error) {
+// emissivityLaw builds the law of em's emissivity keys and checks its
+// indices and break radius (Emissivity.Validate and a lamp's keys are
+// checked by the caller); keys names the scene key of each
+// ("emissivity", "index", "index_inner", "index_outer", "break_radius")
+// in errors.
+func emissivityLaw(em Emission, spin, outer float64, keys map[string]string) (Emissivity, error) {
 	kind, err := ParseEmissivityKind(em.Emissivity)
 	if err != nil {
 		return Emissivity{}, fieldErr(keys["emissivity"], em.Emissivity, "must be one of %s", strings.Join(emissivityNames[PowerLaw:], ", "))
@@ -280,9 +296,6 @@ func checkEmissivity(em Emission, spin, outer float64, keys map[string]string) (
 		if _, qout := e.IndexLimits(outer); !(math.Abs(em.IndexOuter) <= qout) {
 			return e, fieldErr(keys["index_outer"], em.IndexOuter, "must be within ±%.4g with index_inner = %v, break_radius = %v M and disk.outer_radius = %v M (ε within 10^±%d across the disk)", qout, em.IndexInner, em.BreakRad, outer, EmissivityDecades)
 		}
-	}
-	if err := e.Validate(); err != nil {
-		return e, fieldErr(keys["emissivity"], em.Emissivity, "%v", err)
 	}
 	return e, nil
 }
@@ -331,13 +344,16 @@ func LineField(key string) (f Field, ok bool) {
 }
 
 // Describe writes the law with its parameters, e.g. "powerlaw q = 3",
-// "broken q_in = 6, q_out = 3, r_break = 6 M", "novikov-thorne".
+// "broken q_in = 6, q_out = 3, r_break = 6 M", "novikov-thorne",
+// "lamp h = 10 M, Gamma = 2".
 func (e Emissivity) Describe() string {
 	switch e.Kind {
 	case PowerLaw:
 		return fmt.Sprintf("%s q = %g", e.Kind, e.Q)
 	case BrokenPowerLaw:
 		return fmt.Sprintf("%s q_in = %g, q_out = %g, r_break = %g M", e.Kind, e.QIn, e.QOut, e.RBreak)
+	case Lamp:
+		return fmt.Sprintf("%s h = %g M, Gamma = %g", e.Kind, e.Height, e.PhotonIndex)
 	}
 	return e.Kind.String()
 }

@@ -32,6 +32,8 @@ type Scene struct {
 	Output   Output   `toml:"output"`
 	Scales   Scales   `toml:"scales,omitempty"`
 	Thermal  Thermal  `toml:"thermal"`
+	// Polarisation is the emission model of the polarisation map.
+	Polarisation Polarisation `toml:"polarisation"`
 	// Lines is the line list ([[lines]]); empty: the one line
 	// emission.line_kev (RestLines).
 	Lines []Line `toml:"lines,omitempty"`
@@ -110,12 +112,17 @@ type Disk struct {
 // Emission is the line and how the disk emits it.
 type Emission struct {
 	LineKeV    float64 `toml:"line_kev"`
-	Emissivity string  `toml:"emissivity"` // powerlaw, broken, novikov-thorne
+	Emissivity string  `toml:"emissivity"` // powerlaw, broken, novikov-thorne, lamp
 	Index      float64 `toml:"index"`      // powerlaw q
 	IndexInner float64 `toml:"index_inner"`
 	IndexOuter float64 `toml:"index_outer"`
 	BreakRad   float64 `toml:"break_radius"`
-	Limb       string  `toml:"limb"` // isotropic, laor
+	// LampHeight (M) and PhotonIndex Γ of the lamp emissivity: a point
+	// source on the spin axis lighting the disk (Illuminate). Γ defaults
+	// to DefaultPhotonIndex.
+	LampHeight  *float64 `toml:"lamp_height,omitempty"`
+	PhotonIndex *float64 `toml:"photon_index,omitempty"`
+	Limb        string   `toml:"limb"` // isotropic, laor
 	// LineLuminosityErgS is the line luminosity L in erg/s, both faces
 	// (defined at resolvePhotonRate in flux.go); with mass and distance
 	// it puts the maps and the spectrum in physical units. nil: relative
@@ -144,7 +151,7 @@ type Output struct {
 
 // Map names and format names accepted in Output.
 var (
-	MapNames    = []string{"redshift", "intensity", "radius", "order", "shadow", "delay", "rings", "temperature", "color-temperature"}
+	MapNames    = []string{"redshift", "intensity", "radius", "order", "shadow", "delay", "rings", "temperature", "color-temperature", PolarisationMap}
 	FormatNames = []string{"png", "bare", "fits", "csv"}
 	// defaultMaps are the maps rendered when the scene names none: all
 	// but delay, which doubles the cost of every photon (time delays).
@@ -177,11 +184,12 @@ func Default() Scene {
 		Disk:     Disk{OuterRadius: 30, Opaque: true, Orders: 3},
 		Emission: Emission{LineKeV: 6.4, Emissivity: "powerlaw", Index: DefaultPowerLawIndex,
 			IndexInner: 6, IndexOuter: 3, BreakRad: 6, Limb: "isotropic"},
-		Spectrum: Spectrum{Bins: 240},
-		Refine:   Refine{Depth: 0, TolR: 0.05, TolG: 0.01},
-		Band:     Band{RMin: "isco", RMax: "isco*1.1"},
-		Spot:     DefaultSpot(),
-		Thermal:  Thermal{ColorCorrection: DefaultColorCorrection, Bins: 200},
+		Spectrum:     Spectrum{Bins: 240},
+		Refine:       Refine{Depth: 0, TolR: 0.05, TolG: 0.01},
+		Band:         Band{RMin: "isco", RMax: "isco*1.1"},
+		Spot:         DefaultSpot(),
+		Thermal:      Thermal{ColorCorrection: DefaultColorCorrection, Bins: 200},
+		Polarisation: DefaultPolarisation(),
 		Output: Output{Directory: "kerrscope-out", Maps: append([]string(nil), defaultMaps...),
 			Formats: append([]string(nil), FormatNames...), IntensityScale: "log"},
 	}
@@ -427,6 +435,10 @@ type Resolved struct {
 	Gas              Gas
 	Emissivity       Emissivity
 	Limb             Limb
+	// Polar is the validated polarisation model (always resolved; the
+	// renderer uses it for the polarisation map and when
+	// polarisation.sin_power makes the intensity depend on the field).
+	Polar PolarisationModel
 	// RestLines are the rest lines the disk emits: emission.line_kev, or
 	// the line list.
 	RestLines RestLines
@@ -673,8 +685,16 @@ func (s Scene) Resolve() (Resolved, error) {
 		return r, fieldErr("emission.line_kev", em.LineKeV, "must be a line energy from %g to %g keV", MinLineKeV, MaxLineKeV)
 	}
 	var err error
-	if r.Emissivity, err = checkEmissivity(em, a, d.OuterRadius, mainEmissivityKeys); err != nil {
+	if r.Emissivity, err = emissivityLaw(em, a, d.OuterRadius, mainEmissivityKeys); err != nil {
 		return r, err
+	}
+	if r.Emissivity.Kind == Lamp {
+		if err := r.resolveLamp(); err != nil {
+			return r, err
+		}
+	}
+	if err := r.Emissivity.Validate(); err != nil {
+		return r, fieldErr("emission.emissivity", em.Emissivity, "%v", err)
 	}
 	lk, err := ParseLimbKind(em.Limb)
 	if err != nil {
@@ -688,6 +708,9 @@ func (s Scene) Resolve() (Resolved, error) {
 		return r, err
 	}
 	if err := r.resolveThermal(); err != nil {
+		return r, err
+	}
+	if r.Polar, err = s.Polarisation.resolve(); err != nil {
 		return r, err
 	}
 	if r.Gas, err = NewGas(a); err != nil {
@@ -766,6 +789,9 @@ func (s Scene) Resolve() (Resolved, error) {
 	}
 	if s.NeedsTiming() && s.Refine.Depth > 0 {
 		return r, fmt.Errorf("output.maps includes delay with refine.depth = %d: the adaptive sampler does not record time delays; use refine.depth = 0", s.Refine.Depth)
+	}
+	if s.NeedsPolarisation() && s.Refine.Depth > 0 {
+		return r, fmt.Errorf("output.maps includes %s with refine.depth = %d: the adaptive sampler does not record Stokes Q and U; use refine.depth = 0", PolarisationMap, s.Refine.Depth)
 	}
 	if err := checkNames("output.formats", o.Formats, FormatNames); err != nil {
 		return r, err

@@ -42,6 +42,7 @@ func commands() []command {
 		{"sweep", "render a scene over a range of spins, inclinations, ... (resumable, shardable)", runSweep},
 		{"sweep-merge", "merge a finished sweep: animated GIFs, all spectra in one plot", runSweepMerge},
 		{"spot", "movie of an orbiting hot spot in observer time: frames, GIF, light curve, centroid, line profile vs time", runSpot},
+		{"echo", "the disk's echo of a flash of a lamp on the spin axis: lamp profile and fractions, response ψ(E, t), lag spectra", runEcho},
 		{"probe", "trace the photon of one screen point and list its disk crossings", runProbe},
 		{"version", "print the program version", func(_ context.Context, _ []string, stdout, _ io.Writer) error {
 			_, err := fmt.Fprintln(stdout, "kerrscope", version)

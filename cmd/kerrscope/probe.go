@@ -5,6 +5,7 @@ import (
 	"io"
 	"slices"
 
+	"kerrscope/raytrace"
 	"kerrscope/raytrace/survey"
 	"kerrscope/render/pixels"
 	"kerrscope/scene"
@@ -51,7 +52,10 @@ func runProbe(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	if err != nil {
 		return usagef("%w", err)
 	}
-	rep := survey.Probe(m.Obs, alpha, beta, *orders, m.RedshiftAt)
+	polar := func(b float64, n int, c raytrace.Crossing, lambda, eta float64) (float64, float64, bool) {
+		return m.PolarisationAt(alpha, b, n, c, lambda, eta)
+	}
+	rep := survey.ProbePolarised(m.Obs, alpha, beta, *orders, m.RedshiftAt, polar)
 	if *asJSON {
 		return rep.WriteJSON(stdout)
 	}

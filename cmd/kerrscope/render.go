@@ -251,6 +251,9 @@ func renderAndReport(ctx context.Context, r scene.Resolved, band, quiet bool, st
 	for _, w := range sum.Rings {
 		fmt.Fprintf(stdout, "photon ring n = %d: %s\n", w.Order, w.Caption(r.MicroArcsecPerM))
 	}
+	if il := r.Emissivity.Illumination; il != nil {
+		fmt.Fprintln(stdout, lampLine(il))
+	}
 	fmt.Fprintf(stdout, "traced %d photons; wrote %d files:\n", sum.Photons, len(sum.Files))
 	for _, p := range sum.Files {
 		fmt.Fprintf(stdout, "  %s\n", p)

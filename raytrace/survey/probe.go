@@ -4,6 +4,7 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
+	"math"
 	"text/tabwriter"
 
 	"kerrscope/raytrace"
@@ -23,7 +24,19 @@ type ProbeCrossing struct {
 	// DeltaPhi is the crossing's azimuth minus the observer's, in
 	// radians, not reduced modulo 2π.
 	DeltaPhi float64 `json:"delta_phi"`
+	// EVPAEmitted and EVPAObserved are the electric-vector angles of the
+	// light of a crossing on the disk, in degrees in (−90, 90]: emitted,
+	// in the gas frame from the disk normal projected across the ray;
+	// observed, on the sky from north through east (IAU). Absent off the
+	// disk or where the light is unpolarised.
+	EVPAEmitted  *float64 `json:"evpa_emitted_deg,omitempty"`
+	EVPAObserved *float64 `json:"evpa_observed_deg,omitempty"`
 }
+
+// PolarisationAt gives the emitted and observed polarisation angles, in
+// radians, of crossing n of the photon of screen point β (see
+// ProbeCrossing); ok = false off the disk or for unpolarised light.
+type PolarisationAt func(beta float64, n int, c raytrace.Crossing, lambda, eta float64) (emitted, observed float64, ok bool)
 
 // ProbeReport is what happens to the photon of one screen point. Its JSON
 // keys are fixed so that scripts can rely on them.
@@ -44,6 +57,12 @@ type ProbeReport struct {
 // crossings. redshift, if not nil, gives g of the disk gas at a crossing
 // (ok = false where the crossing misses the disk).
 func Probe(o raytrace.Observer, alpha, beta float64, orders int, redshift func(c raytrace.Crossing, lambda, eta float64) (float64, bool)) ProbeReport {
+	return ProbePolarised(o, alpha, beta, orders, redshift, nil)
+}
+
+// ProbePolarised is Probe that also reports each crossing's polarisation
+// angles from polar (if not nil).
+func ProbePolarised(o raytrace.Observer, alpha, beta float64, orders int, redshift func(c raytrace.Crossing, lambda, eta float64) (float64, bool), polar PolarisationAt) ProbeReport {
 	var p raytrace.TimedPath
 	o.TraceTimed(alpha, beta, orders, &p)
 	rep := ProbeReport{
@@ -57,6 +76,12 @@ func Probe(o raytrace.Observer, alpha, beta float64, orders int, redshift func(c
 		if redshift != nil {
 			if g, ok := redshift(c, p.Lambda, p.Eta); ok {
 				pc.G = &g
+			}
+		}
+		if polar != nil && pc.G != nil {
+			if em, ob, ok := polar(beta, i, c, p.Lambda, p.Eta); ok {
+				em, ob = em*180/math.Pi, ob*180/math.Pi
+				pc.EVPAEmitted, pc.EVPAObserved = &em, &ob
 			}
 		}
 		rep.Crossings = append(rep.Crossings, pc)
@@ -97,7 +122,15 @@ func (r ProbeReport) WriteText(w io.Writer) error {
 	}
 	tw := tabwriter.NewWriter(w, 0, 0, 3, ' ', 0)
 	t := &printer{w: tw}
-	t.println("  order\tr [M]\tMino time [1/M]\tmoving\tg (disk)\tdelay [M]\tΔφ [rad]")
+	polar := false
+	for _, c := range r.Crossings {
+		polar = polar || c.EVPAObserved != nil
+	}
+	head := "  order\tr [M]\tMino time [1/M]\tmoving\tg (disk)\tdelay [M]\tΔφ [rad]"
+	if polar {
+		head += "\tEVPA emitted [°]\tEVPA on sky [°]"
+	}
+	t.println(head)
 	for _, c := range r.Crossings {
 		dir := "toward the hole"
 		if c.Outbound {
@@ -107,7 +140,15 @@ func (r ProbeReport) WriteText(w io.Writer) error {
 		if c.G != nil {
 			g = fmt.Sprintf("%.8f", *c.G)
 		}
-		t.printf("  %d\t%.10g\t%.10g\t%s\t%s\t%.10g\t%.10g\n", c.Order, c.R, c.MinoTime, dir, g, c.TimeDelay, c.DeltaPhi)
+		t.printf("  %d\t%.10g\t%.10g\t%s\t%s\t%.10g\t%.10g", c.Order, c.R, c.MinoTime, dir, g, c.TimeDelay, c.DeltaPhi)
+		if polar {
+			if c.EVPAObserved != nil {
+				t.printf("\t%.6f\t%.6f", *c.EVPAEmitted, *c.EVPAObserved)
+			} else {
+				t.printf("\t–\t–")
+			}
+		}
+		t.println()
 	}
 	if t.err != nil {
 		return t.err

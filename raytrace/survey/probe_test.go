@@ -133,3 +133,41 @@ func TestProbeTimingSchwarzschild(t *testing.T) {
 		t.Errorf("text report lacks the delay column: %v\n%s", err, text.String())
 	}
 }
+
+// ProbePolarised adds the angles of the crossings on the disk, in
+// degrees, to the JSON and the table; Probe and crossings off the disk
+// carry none (the JSON keys are then absent).
+func TestProbePolarisedAngles(t *testing.T) {
+	o, err := raytrace.NewObserver(0.5, 40)
+	if err != nil {
+		t.Fatal(err)
+	}
+	onDisk := func(c raytrace.Crossing, _, _ float64) (float64, bool) { return 1, c.R > 4 }
+	polar := func(beta float64, n int, c raytrace.Crossing, _, _ float64) (float64, float64, bool) {
+		return 0.25, -math.Pi / 4, true
+	}
+	rep := ProbePolarised(o, 6, 2, 3, onDisk, polar)
+	if len(rep.Crossings) == 0 {
+		t.Fatal("no crossings")
+	}
+	for _, c := range rep.Crossings {
+		if (c.G != nil) != (c.EVPAObserved != nil) {
+			t.Errorf("order %d: g %v, EVPA %v", c.Order, c.G, c.EVPAObserved)
+		}
+		if c.EVPAObserved != nil && (math.Abs(*c.EVPAObserved+45) > 1e-12 || math.Abs(*c.EVPAEmitted-0.25*180/math.Pi) > 1e-12) {
+			t.Errorf("order %d: angles %v, %v degrees", c.Order, *c.EVPAEmitted, *c.EVPAObserved)
+		}
+	}
+	var b bytes.Buffer
+	if err := rep.WriteJSON(&b); err != nil || !strings.Contains(b.String(), `"evpa_observed_deg":-45`) {
+		t.Errorf("JSON %s (%v)", b.String(), err)
+	}
+	b.Reset()
+	if err := rep.WriteText(&b); err != nil || !strings.Contains(b.String(), "EVPA on sky [°]") {
+		t.Errorf("text %s (%v)", b.String(), err)
+	}
+	b.Reset()
+	if err := Probe(o, 6, 2, 3, onDisk).WriteJSON(&b); err != nil || strings.Contains(b.String(), "evpa") {
+		t.Errorf("plain probe JSON %s (%v)", b.String(), err)
+	}
+}

@@ -1,5 +1,5 @@
 // Package maps is the table of the renderer's maps: for each map (redshift,
-// intensity, radius, order, shadow, delay, rings, temperature,
+// intensity, radius, order, shadow, delay, rings, polarisation, temperature,
 // color-temperature) the quantity it shows, how a pixel is
 // placed on its colour scale, its colours, its 8-bit palette, and its
 // decorated figure (title, colour bar, contours, overlays). Adding a map is
@@ -17,6 +17,7 @@ import (
 	"kerrscope/raytrace"
 	"kerrscope/render/internal/figure"
 	"kerrscope/render/pixels"
+	"kerrscope/scene"
 )
 
 // Class is what a map pixel shows.
@@ -122,6 +123,13 @@ var table = []Map{
 		scale:    &onScaleMap{value: pixelRow(colorTemperatureAt), position: logPosition(colorTemperatureAt)},
 		palette:  scalePalette(colormap.Sequential),
 		decorate: logBar(colorTemperatureAt, "g f_col kT [keV]"),
+	},
+	{
+		Name: scene.PolarisationMap, Title: "linear polarisation over the line intensity", Scale: colormap.Sequential,
+		needs:    pixels.KeepLine | pixels.KeepStokes,
+		scale:    &onScaleMap{value: totalRow(func(f *pixels.Frame) [][]float32 { return f.Line }), position: intensityPosition},
+		palette:  scalePalette(colormap.Sequential),
+		decorate: polarisationDecoration,
 	},
 }
 

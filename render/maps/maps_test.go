@@ -56,7 +56,7 @@ func TestIndexedMatchesBare(t *testing.T) {
 		}
 		bare := m.Image(f, sc)
 		idx := m.Indexed(f, sc)
-		continuous := name == "redshift" || name == "intensity" || name == "radius" || name == "delay" || name == "temperature" || name == "color-temperature"
+		continuous := name == "redshift" || name == "intensity" || name == "radius" || name == "delay" || name == "temperature" || name == "color-temperature" || name == scene.PolarisationMap
 		seen := map[uint8]bool{}
 		for k := 0; k < f.W*f.H; k++ {
 			x, y := k%f.W, k/f.W
@@ -115,7 +115,7 @@ func TestMapNeedsAreEnough(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	full, err := pixels.Render(context.Background(), r, nil, pixels.KeepAll|pixels.KeepBehind)
+	full, err := pixels.Render(context.Background(), r, nil, pixels.KeepAll|pixels.KeepBehind|pixels.KeepStokes)
 	if err != nil {
 		t.Fatal(err)
 	}

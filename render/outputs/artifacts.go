@@ -43,7 +43,10 @@ const (
 type Artifact struct {
 	Name string // file name in the output directory
 	Kind Kind
-	Map  string // the map, for MapFigure, MapBare and MapIndexed
+	// Map is the map, for MapFigure, MapBare and MapIndexed; for
+	// FITSMaps and SpectrumCSV it is scene.PolarisationMap when the scene
+	// asks for that map, and the file then carries Stokes Q and U too.
+	Map string
 	// Radii: the spectrum needs the source radii (pixels.KeepR), for
 	// rest lines with emissivity laws of their own (Set.LineRadii).
 	Radii bool
@@ -85,11 +88,15 @@ func Artifacts(o scene.Output, s Set) []Artifact {
 	add := func(name string, k Kind, m string) {
 		out = append(out, Artifact{Name: s.Prefix + name, Kind: k, Map: m, Radii: s.LineRadii && (k == SpectrumCSV || k == SpectrumFigure || k == CombinedCSV)})
 	}
+	pol := ""
+	if slices.Contains(o.Maps, scene.PolarisationMap) {
+		pol = scene.PolarisationMap
+	}
 	if o.Has("fits") {
-		add("maps.fits", FITSMaps, "")
+		add("maps.fits", FITSMaps, pol)
 	}
 	if o.Has("csv") {
-		add("spectrum.csv", SpectrumCSV, "")
+		add("spectrum.csv", SpectrumCSV, pol)
 	}
 	if s.Thermal && o.Has("csv") {
 		add("continuum.csv", ContinuumCSV, "")
@@ -181,9 +188,9 @@ func Needs(arts []Artifact) pixels.Keep {
 	for _, a := range arts {
 		switch a.Kind {
 		case FITSMaps:
-			k |= pixels.KeepAll
+			k |= pixels.KeepAll | stokesOf(a)
 		case SpectrumCSV, SpectrumFigure:
-			k |= pixels.KeepG | pixels.KeepLine
+			k |= pixels.KeepG | pixels.KeepLine | stokesOf(a)
 		case ContinuumCSV, ContinuumFigure, CombinedCSV:
 			k |= pixels.KeepR | pixels.KeepG | pixels.KeepLine
 		case MapFigure, MapBare, MapIndexed:
@@ -198,6 +205,14 @@ func Needs(arts []Artifact) pixels.Keep {
 		}
 	}
 	return k
+}
+
+// stokesOf is KeepStokes for a table that carries the polarisation.
+func stokesOf(a Artifact) pixels.Keep {
+	if a.Map == scene.PolarisationMap {
+		return pixels.KeepStokes
+	}
+	return 0
 }
 
 // task is one piece of Write's work done on the worker pool; done is
@@ -452,7 +467,7 @@ func keepNames(k pixels.Keep) string {
 	for _, c := range [...]struct {
 		k    pixels.Keep
 		name string
-	}{{pixels.KeepR, "R"}, {pixels.KeepG, "G"}, {pixels.KeepLine, "Line"}, {pixels.KeepBol, "Bol"}, {pixels.KeepBand, "Band"}, {pixels.KeepBehind, "Behind"}} {
+	}{{pixels.KeepR, "R"}, {pixels.KeepG, "G"}, {pixels.KeepLine, "Line"}, {pixels.KeepBol, "Bol"}, {pixels.KeepBand, "Band"}, {pixels.KeepBehind, "Behind"}, {pixels.KeepStokes, "Q, U"}} {
 		if k&c.k != 0 {
 			out = append(out, c.name)
 		}
@@ -502,6 +517,10 @@ func tableWriter(a Artifact, job Job, spec *pixels.Spectrum) func(io.Writer) err
 		return func(w io.Writer) error {
 			if err := writeClipComment(w, f); err != nil {
 				return err
+			}
+			if a.Map == scene.PolarisationMap {
+				q, u := f.StokesSpectrum()
+				return writeCSV(w, spec, &q, &u, f.Res.Caption(), f.Res)
 			}
 			return WriteCSV(w, spec, f.Res.Caption(), f.Res)
 		}

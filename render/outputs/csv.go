@@ -4,6 +4,7 @@ import (
 	"bufio"
 	"fmt"
 	"io"
+	"math"
 
 	"kerrscope/render/pixels"
 	"kerrscope/scene"
@@ -21,6 +22,16 @@ const PhysicalSpectrumUnits = "photons cm^-2 s^-1 keV^-1 at the observer (physic
 // in photons cm⁻² s⁻¹ keV⁻¹ when r gives mass, distance and line
 // luminosity (scene.Resolved.SpectrumPerUnit), else relative.
 func WriteCSV(w io.Writer, s *pixels.Spectrum, title string, r scene.Resolved) error {
+	return writeCSV(w, s, nil, nil, title, r)
+}
+
+// writeCSV is WriteCSV with, if q and u are not nil (the frame's
+// StokesSpectrum), the polarised spectrum: Stokes Q and U summed over the
+// orders, per keV in the flux columns' units, and the fraction
+// sqrt(Q² + U²)/I and electric-vector position angle ½ atan2(U, Q) in
+// degrees from north through east (IAU) of each bin (empty where the bin
+// has no light).
+func writeCSV(w io.Writer, s, q, u *pixels.Spectrum, title string, r scene.Resolved) error {
 	bw := bufio.NewWriter(w)
 	unit := writeSpectrumHeader(bw, s, title, r)
 	if unit == 0 {
@@ -32,6 +43,10 @@ func WriteCSV(w io.Writer, s *pixels.Spectrum, title string, r scene.Resolved) e
 		fmt.Fprintf(bw, "# pixel solid angle %.10g sr\n", sr)
 	}
 	fmt.Fprintf(bw, "# flux outside the energy range: below %.10g, above %.10g (same units times keV)\n", s.Below*unit, s.Above*unit)
+	if q != nil {
+		fmt.Fprintln(bw, "# stokes_q, stokes_u: polarised flux per keV, same units; IAU convention (angle from north through east,")
+		fmt.Fprintln(bw, "#   Q > 0 for an electric vector north-south); pol_fraction = sqrt(Q^2 + U^2)/I, pol_angle_deg = atan2(U, Q)/2")
+	}
 	fmt.Fprint(bw, "energy_kev,energy_lo_kev,energy_hi_kev,flux_total")
 	for o := range s.Order {
 		fmt.Fprintf(bw, ",flux_order_%d", o)
@@ -39,7 +54,14 @@ func WriteCSV(w io.Writer, s *pixels.Spectrum, title string, r scene.Resolved) e
 	for l := range s.Line {
 		fmt.Fprintf(bw, ",flux_line_%d", l+1)
 	}
+	if q != nil {
+		fmt.Fprint(bw, ",stokes_q,stokes_u,pol_fraction,pol_angle_deg")
+	}
 	fmt.Fprintln(bw)
+	var qt, ut []float64
+	if q != nil {
+		qt, ut = q.Total(), u.Total()
+	}
 	tot := s.Total()
 	wd := s.Width()
 	for k := range tot {
@@ -50,6 +72,14 @@ func WriteCSV(w io.Writer, s *pixels.Spectrum, title string, r scene.Resolved) e
 		}
 		for l := range s.Line {
 			fmt.Fprintf(bw, ",%.10g", s.Line[l][k]*unit/wd)
+		}
+		if q != nil {
+			fmt.Fprintf(bw, ",%.10g,%.10g,", qt[k]*unit/wd, ut[k]*unit/wd)
+			if tot[k] > 0 {
+				fmt.Fprintf(bw, "%.6g,%.4f", math.Hypot(qt[k], ut[k])/tot[k], math.Atan2(ut[k], qt[k])*90/math.Pi)
+			} else {
+				fmt.Fprint(bw, ",")
+			}
 		}
 		fmt.Fprintln(bw)
 	}

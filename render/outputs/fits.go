@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"math/cmplx"
 
 	"kerrscope/raytrace"
 	"kerrscope/render/internal/fits"
@@ -176,9 +177,52 @@ func fitsImages(f *pixels.Frame) []fits.Image {
 			mk("G_ORD"+suffix, "", "redshift factor g of image order "+suffix, fitsCopyRows(f, f.G[o])),
 			inMNote(f, mk("R_ORD"+suffix, "", "source radius in M of image order "+suffix, fitsCopyRows(f, f.R[o]))),
 			rel(mk("I_ORD"+suffix, lu, "line intensity g^3 eps limb of image order "+suffix, scaledRows(f, f.Line[o], lf))))
+		if f.Q != nil {
+			ims = append(ims,
+				rel(stokesNote(mk("Q_ORD"+suffix, lu, "Stokes Q of the line intensity of image order "+suffix, scaledRows(f, f.Q[o], lf)))),
+				rel(stokesNote(mk("U_ORD"+suffix, lu, "Stokes U of the line intensity of image order "+suffix, scaledRows(f, f.U[o], lf)))))
+		}
+	}
+	if f.Q != nil {
+		ims = append(ims,
+			rel(stokesNote(mk("STOKES_Q", lu, "Stokes Q of the line intensity, sum over the orders seen (I: INTENSITY)", fitsRows(f, func(k int) float32 { return scaled(f.TotalAt(f.Q, k), lf) })))),
+			rel(stokesNote(mk("STOKES_U", lu, "Stokes U of the line intensity, sum over the orders seen (I: INTENSITY)", fitsRows(f, func(k int) float32 { return scaled(f.TotalAt(f.U, k), lf) })))))
 	}
 	ims = append(ims, thermalImages(f, mk)...)
 	return append(ims, timingImages(f, mk)...)
+}
+
+// stokesNote states the polarisation convention in a Stokes map's header.
+func stokesNote(im fits.Image) fits.Image {
+	im.Cards = append(im.Cards,
+		fits.Card{Key: "POLCONV", Value: "IAU", Comment: "EVPA = atan2(U, Q)/2 from north through east"},
+		fits.Card{Key: "COMMENT", Value: "IAU (Trans. IAU XVB, 1974): Q > 0 for an electric vector north-south,"},
+		fits.Card{Key: "COMMENT", Value: "U > 0 for one at position angle 45 deg (north-east); the sky axes follow"},
+		fits.Card{Key: "COMMENT", Value: "from POSANGLE, the spin axis position angle (north through east)"})
+	return im
+}
+
+// polarisationCards are the primary cards of a frame with Stokes maps:
+// the emission model, the convention and the net polarisation and β₂ of
+// the whole image (pixels.Frame.Net).
+func polarisationCards(f *pixels.Frame) []fits.Card {
+	if f.Q == nil {
+		return nil
+	}
+	m := f.Res.Polar
+	n := f.Net()
+	return []fits.Card{
+		{Key: "POLCONV", Value: "IAU", Comment: "Stokes Q, U: EVPA from north through east"},
+		{Key: "BFIELDR", Value: m.B[0], Comment: "field direction in the gas frame: radial"},
+		{Key: "BFIELDP", Value: m.B[1], Comment: "field direction: azimuthal, + along the orbit"},
+		{Key: "BFIELDZ", Value: m.B[2], Comment: "field direction: vertical, + along the spin axis"},
+		{Key: "POLEMIT", Value: m.Fraction, Comment: "emitted linear polarisation fraction"},
+		{Key: "SINPOWER", Value: m.SinPower, Comment: "emitted intensity ~ sin^p of photon-field angle"},
+		{Key: "POLNET", Value: n.Fraction, Comment: "net linear polarisation fraction of the image"},
+		{Key: "EVPANET", Value: n.Angle * 180 / math.Pi, Comment: "[deg] net EVPA, north through east"},
+		{Key: "BETA2ABS", Value: cmplx.Abs(n.Beta2), Comment: "|beta_2|, Palumbo, Wong & Prather 2020"},
+		{Key: "BETA2ARG", Value: cmplx.Phase(n.Beta2) * 180 / math.Pi, Comment: "[deg] arg beta_2 (0: radial EVPA pattern)"},
+	}
 }
 
 // scaledRows is fitsCopyRows of v × factor.
@@ -253,6 +297,7 @@ func fitsHeader(f *pixels.Frame, version string) []fits.Card {
 	}
 	cards = append(cards, clipCards(f)...)
 	cards = append(cards, thermalCards(r)...)
+	cards = append(cards, polarisationCards(f)...)
 	return append(cards, skyCards(r)...)
 }
 

@@ -1,8 +1,6 @@
 package outputs
 
 import (
-	"math/bits"
-
 	"kerrscope/render/pixels"
 	"kerrscope/scene"
 )
@@ -52,7 +50,8 @@ const (
 //   - the program (memBase);
 //   - the records the artifacts need (Needs): 2 bytes per pixel for the
 //     fate and first order, 4 per kept record, image order and pixel
-//     (the hidden crossings of KeepBehind only on an opaque disk), and
+//     (the hidden crossings of KeepBehind only on an opaque disk; Q and
+//     U of KeepStokes are two records), and
 //     8 more per order and pixel for the time delays and azimuths of a
 //     delay map;
 //   - with refinement, the corner samples of refineChunk + 1 rows;
@@ -74,7 +73,7 @@ func MemoryEstimate(r scene.Resolved, s Set, workers int) int64 {
 	if !r.Disk.Opaque {
 		need &^= pixels.KeepBehind // a transparent disk's Line holds it
 	}
-	records := int64(bits.OnesCount8(uint8(need)))
+	records := need.Records()
 	spectra := n
 	if r.RestLines.List {
 		spectra += int64(len(r.RestLines.Lines)) // one more per line of a list

@@ -30,6 +30,10 @@ type Frame struct {
 	// T and Phi are the time delay (M, regularised as in raytrace.Timing)
 	// and azimuth φ − φ_o (radians) per order; nil unless Model.Timing.
 	T, Phi [][]float32
+	// Q and U are the Stokes parameters of the line intensity per order
+	// (Hit.Q, Hit.U: IAU angles, north through east; NaN where that order
+	// is not seen); nil unless kept (KeepStokes).
+	Q, U [][]float32
 	// Band is, per order, the fraction of each pixel's area whose seen
 	// crossing of that order lies in the scene's band of source radii
 	// [BandMin, BandMax] (0 … 1; with refinement, summed over the
@@ -77,6 +81,10 @@ const (
 	// opaque disk hides (maps: rings); nothing on a transparent disk,
 	// whose Line holds them already. Not in KeepAll.
 	KeepBehind
+	// KeepStokes keeps Frame.Q and Frame.U (maps: polarisation), two
+	// records per order; the model then carries each crossing's
+	// polarisation to the screen. Not in KeepAll.
+	KeepStokes
 	KeepAll = KeepR | KeepG | KeepLine | KeepBol
 )
 
@@ -90,18 +98,28 @@ func keepOf(keep []Keep) Keep {
 	if len(keep) == 0 {
 		return KeepAll
 	}
-	return keep[0] & (KeepAll | KeepBand | KeepBehind)
+	return keep[0] & (KeepAll | KeepBand | KeepBehind | KeepStokes)
 }
 
 // BytesPerPixel is the memory of the records a frame with these records
 // and image orders holds per pixel: 2 bytes for Fate and First and 4 per
-// kept record and order (KeepBehind counted, as on an opaque disk).
+// kept record and order (KeepBehind counted, as on an opaque disk;
+// KeepStokes is two records, Q and U).
 func (k Keep) BytesPerPixel(orders int) int64 {
+	return 2 + 4*k.Records()*int64(orders)
+}
+
+// Records is the number of per-order float32 records k keeps
+// (KeepStokes counts two).
+func (k Keep) Records() int64 {
 	n := int64(0)
-	for b := k & (KeepAll | KeepBand | KeepBehind); b != 0; b &= b - 1 {
+	for b := k & (KeepAll | KeepBand | KeepBehind | KeepStokes); b != 0; b &= b - 1 {
 		n++
 	}
-	return 2 + 4*n*int64(orders)
+	if k&KeepStokes != 0 {
+		n++
+	}
+	return n
 }
 
 // Has reports whether the frame holds all the records in k.
@@ -109,7 +127,7 @@ func (f *Frame) Has(k Keep) bool {
 	for _, c := range [...]struct {
 		k Keep
 		q [][]float32
-	}{{KeepR, f.R}, {KeepG, f.G}, {KeepLine, f.Line}, {KeepBol, f.Bol}, {KeepBand, f.Band}} {
+	}{{KeepR, f.R}, {KeepG, f.G}, {KeepLine, f.Line}, {KeepBol, f.Bol}, {KeepBand, f.Band}, {KeepStokes, f.Q}} {
 		if k&c.k != 0 && c.q == nil {
 			return false
 		}
@@ -147,6 +165,7 @@ func Render(ctx context.Context, r scene.Resolved, progress func(rows int), keep
 	}
 	w, h, n := r.Screen.Width, r.Screen.Height, r.Disk.Orders
 	m.Behind = m.Opaque && keepOf(keep)&KeepBehind != 0
+	m.Stokes = keepOf(keep)&KeepStokes != 0
 	f := newFrame(r, m, keepOf(keep))
 	var rowBand []bandTally
 	if f.Band != nil {
@@ -210,6 +229,7 @@ func newFrame(r scene.Resolved, m Model, keep Keep) *Frame {
 	if m.Timing {
 		f.T, f.Phi = alloc(keepTiming), alloc(keepTiming)
 	}
+	f.Q, f.U = alloc(KeepStokes), alloc(KeepStokes)
 	return f
 }
 
@@ -246,6 +266,15 @@ func (f *Frame) store(k int, s *Sample) {
 	if f.T != nil {
 		for o := 0; o < f.Orders; o++ {
 			f.T[o][k], f.Phi[o][k] = float32(s.Hits[o].T), float32(s.Hits[o].Phi)
+		}
+	}
+	if f.Q != nil {
+		for o := 0; o < f.Orders; o++ {
+			q, u := nan, nan
+			if s.Hits[o].Seen {
+				q, u = float32(s.Hits[o].Q), float32(s.Hits[o].U)
+			}
+			f.Q[o][k], f.U[o][k] = q, u
 		}
 	}
 }

@@ -234,6 +234,13 @@ func (f *Frame) Spectrum() Spectrum {
 		}
 		return s
 	}
+	return f.collapse(f.Line)
+}
+
+// collapse is Spectrum of the per-order record v (Line, or Stokes Q or
+// U) of a frame that is not refined.
+func (f *Frame) collapse(v [][]float32) Spectrum {
+	r := f.Res
 	s := NewSceneSpectrum(r, f.Orders)
 	dOmega := r.PixelSize * r.PixelSize
 	ls := f.Model.Lines
@@ -244,7 +251,7 @@ func (f *Frame) Spectrum() Spectrum {
 	}
 	for o := 0; o < f.Orders; o++ {
 		g := f.G[o]
-		for k, l := range f.Line[o] {
+		for k, l := range v[o] {
 			if math.IsNaN(float64(l)) {
 				continue
 			}

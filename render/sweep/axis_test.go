@@ -23,6 +23,9 @@ func TestSpacing(t *testing.T) {
 		{"line=0.1:100:5:log", 0.1, 100, 5},
 		{"spin=-0.3:0.3:3", -0.3, 0.3, 3},
 		{"spin=0.7:0.7:1", 0.7, 0.7, 1},
+		{"field-radial=0:1:5", 0, 1, 5},
+		{"polarisation.field_vertical=-1:1:3", -1, 1, 3},
+		{"pol-fraction=0.1:0.7:4", 0.1, 0.7, 4},
 	}
 	for _, c := range cases {
 		a, err := ParseAxis(c.spec)
