@@ -159,12 +159,16 @@ func (r *Resolved) resolveLines() error {
 			Lines: []RestLine{{EnergyKeV: s.Emission.LineKeV, Weight: 1, Fraction: 1, Emissivity: main, scale: 1}}}
 		return nil
 	}
-	if s.isGiven("emission.line_kev") {
-		return fieldErr("emission.line_kev", s.Emission.LineKeV, "give either emission.line_kev (one line) or a [[lines]] list, not both")
-	}
 	if len(s.Lines) > MaxLines {
 		return &FieldError{Key: "lines", Value: strconv.Itoa(len(s.Lines)) + " lines", Allowed: fmt.Sprintf("at most %d [[lines]]", MaxLines)}
 	}
+	// With a list, emission.line_kev is the first line's energy (so the
+	// effective scene, which writes both, loads again); a different one
+	// given with the list is refused.
+	if first := s.Lines[0].EnergyKeV; s.isGiven("emission.line_kev") && s.Emission.LineKeV != first {
+		return fieldErr("emission.line_kev", s.Emission.LineKeV, "a [[lines]] list gives the lines; leave emission.line_kev out (or equal to the first line's energy, %v keV)", first)
+	}
+	r.Emission.LineKeV = s.Lines[0].EnergyKeV
 	ls := RestLines{Main: main, List: true}
 	sum := 0.0
 	for i, l := range s.Lines {

@@ -306,8 +306,8 @@ func typeWords(goType string) string {
 		return "a string"
 	case "[]string":
 		return "a list of strings"
-	case "[]scene.Line":
-		return "an array of tables ([[lines]] blocks)"
+	case "[]scene.Line", "scene.Line":
+		return "an array of tables ([[lines]] blocks, each with energy_kev)"
 	}
 	if strings.HasPrefix(goType, "scene.") || goType == "struct" {
 		return "a table (a [section] of keys)"
