@@ -47,7 +47,7 @@ func SpectrumPlot(s *pixels.Spectrum, title, subtitle string, fluxMax, perUnit f
 		p.Series = append(p.Series, figure.Series{X: x, Y: perKeV(s.Total()), Color: color.RGBA{0x10, 0x10, 0x10, 0xff}, Width: 2.5, Label: "all lines"})
 		for l, e0 := range s.LinesKeV {
 			c := colormap.Order(l)
-			p.Series = append(p.Series, figure.Series{X: x, Y: perKeV(s.Line[l]), Color: c, Width: 1.5, Label: fmt.Sprintf("%g keV", e0), Dashed: l%2 == 1})
+			p.Series = append(p.Series, figure.Series{X: x, Y: perKeV(s.Line[l]), Color: c, Width: 1.5, Label: fmt.Sprintf("%g keV line", e0), Dashed: l%2 == 1})
 			p.VLines = append(p.VLines, figure.VLine{X: e0, Color: c, Dashed: true})
 		}
 		return p
