@@ -246,6 +246,13 @@ func QuantityOf(key string) Quantity {
 	if q, ok := quantities[key]; ok {
 		return q
 	}
+	if _, ok := LineField(key); ok {
+		n, k, _ := strings.Cut(strings.TrimPrefix(key, "lines."), ".")
+		if k == "weight" {
+			return Quantity{"weight of line " + n, "w_" + n, ""}
+		}
+		return Quantity{"energy of line " + n, "E_" + n, "keV"}
+	}
 	return Quantity{Name: key}
 }
 

@@ -18,7 +18,11 @@ const MinLineLuminosity, MaxLineLuminosity = 1e-30, 1e60
 // limb law, and the mass and distance (a luminosity alone has no flux).
 //
 // Definition: L = E_line Ṅ, with Ṅ the disk's photon emission rate in the
-// line, both faces, counted per unit time t of a distant clock. The number
+// line, both faces, counted per unit time t of a distant clock. With a
+// line list ([[lines]]) L is the total over the lines, L = Σ_l E_l Ṅ_l
+// with Ṅ_l = F_l Ṅ (F_l the line's weight over the sum of the weights,
+// RestLines), so Ṅ = L / Ē with Ē = Σ_l F_l E_l (RestLines.MeanKeV); each
+// line carries the luminosity F_l E_l Ṅ. The number
 // of emission events in an element of the disk's worldsheet is
 // N dτ dA = N √|h| dt dr dφ, h the metric induced on θ = π/2 by the Kerr
 // metric in Boyer–Lindquist coordinates (Bardeen, Press & Teukolsky 1972,
@@ -27,7 +31,8 @@ const MinLineLuminosity, MaxLineLuminosity = 1e-30, 1e60
 // Ṅ = ∫∫ N(r) r dr dφ over the emitting disk (Inner to the outer edge,
 // the plunging region included when it shines), where N(r) = K ε(r) is
 // the comoving photon rate per unit proper time and comoving area, both
-// faces, and ε the scene's emissivity law:
+// faces, and ε the scene's emissivity law ([emission]'s; the lines of a
+// list share its photons, RestLines):
 //
 //	K = Ṅ / (2π ∫ ε(r) r dr)   [photons s⁻¹ per M² of disk].
 //
@@ -53,7 +58,7 @@ func (r *Resolved) resolvePhotonRate() error {
 	if !(area > 0) || math.IsInf(area, 0) {
 		return fieldErr(key, *l, "cannot be spread over the disk: its emissivity integral over %.6g–%.6g M is %g (novikov-thorne is 0 inside the ISCO)", r.Inner, r.Disk.OuterRadius, area)
 	}
-	r.PhotonRate = *l / (r.Emission.LineKeV * ErgPerKeV)
+	r.PhotonRate = *l / (r.meanLineKeV() * ErgPerKeV)
 	k := r.PhotonRate / (2 * math.Pi * area)
 	r.PhotonNorm = k / (4 * math.Pi * r.Limb.FluxMoment())
 	return nil
@@ -147,9 +152,19 @@ func (r Resolved) IntensityPerUnit() float64 {
 }
 
 // BolometricPerUnit returns the factor that turns the bolometric map
-// (g⁴ ε f summed over orders) into erg cm⁻² s⁻¹ sr⁻¹: IntensityPerUnit
-// times E_line in erg (an observed photon carries g E_line). 0 unless
-// Physical.
+// (g⁴ ε f summed over orders; with a line list g⁴ f RestLines.EnergyAt)
+// into erg cm⁻² s⁻¹ sr⁻¹: IntensityPerUnit times E_line in erg (an
+// observed photon carries g E_line), RestLines.MeanKeV for a list. 0
+// unless Physical.
 func (r Resolved) BolometricPerUnit() float64 {
-	return r.IntensityPerUnit() * r.Emission.LineKeV * ErgPerKeV
+	return r.IntensityPerUnit() * r.meanLineKeV() * ErgPerKeV
+}
+
+// meanLineKeV is the mean rest energy of a line photon: emission.line_kev,
+// or RestLines.MeanKeV for a line list.
+func (r Resolved) meanLineKeV() float64 {
+	if r.RestLines.List {
+		return r.RestLines.MeanKeV
+	}
+	return r.Emission.LineKeV
 }

@@ -34,6 +34,9 @@ type Scene struct {
 	Thermal  Thermal  `toml:"thermal"`
 	// Polarisation is the emission model of the polarisation map.
 	Polarisation Polarisation `toml:"polarisation"`
+	// Lines is the line list ([[lines]]); empty: the one line
+	// emission.line_kev (RestLines).
+	Lines []Line `toml:"lines,omitempty"`
 
 	// given holds the keys set by the user (scene file or flags); see
 	// markGiven. It is not part of the scene's TOML.
@@ -353,6 +356,8 @@ func typeWords(goType string) string {
 		return "a string"
 	case "[]string":
 		return "a list of strings"
+	case "[]scene.Line", "scene.Line":
+		return "an array of tables ([[lines]] blocks, each with energy_kev)"
 	}
 	if strings.HasPrefix(goType, "scene.") || goType == "struct" {
 		return "a table (a [section] of keys)"
@@ -441,6 +446,9 @@ func sectionAt(data []byte, row int, key string) string {
 
 // validKeys lists the keys of the section of key (or the sections).
 func validKeys(key []string) string {
+	if len(key) > 1 && key[0] == "lines" {
+		return strings.Join(lineKeys, ", ")
+	}
 	if len(key) > 1 {
 		var out []string
 		for _, f := range Fields() {
@@ -459,7 +467,7 @@ func validKeys(key []string) string {
 			secs = append(secs, "["+sec+"]")
 		}
 	}
-	return strings.Join(secs, ", ")
+	return strings.Join(append(secs, "[[lines]]"), ", ")
 }
 
 // Resolved holds the scene's derived quantities, all validated.
@@ -481,6 +489,9 @@ type Resolved struct {
 	// renderer uses it for the polarisation map and when
 	// polarisation.sin_power makes the intensity depend on the field).
 	Polar PolarisationModel
+	// RestLines are the rest lines the disk emits: emission.line_kev, or
+	// the line list.
+	RestLines RestLines
 
 	// GravRadiusCm (GM/c²) and DistanceCm are in cm, if mass and distance
 	// are given (else 0).
@@ -723,29 +734,11 @@ func (s Scene) Resolve() (Resolved, error) {
 	if !(em.LineKeV >= MinLineKeV && em.LineKeV <= MaxLineKeV) {
 		return r, fieldErr("emission.line_kev", em.LineKeV, "must be a line energy from %g to %g keV", MinLineKeV, MaxLineKeV)
 	}
-	kind, err := ParseEmissivityKind(em.Emissivity)
-	if err != nil {
-		return r, fieldErr("emission.emissivity", em.Emissivity, "must be one of %s", strings.Join(emissivityNames[PowerLaw:], ", "))
+	var err error
+	if r.Emissivity, err = emissivityLaw(em, a, d.OuterRadius, mainEmissivityKeys); err != nil {
+		return r, err
 	}
-	r.Emissivity = Emissivity{Kind: kind, Q: em.Index, QIn: em.IndexInner, QOut: em.IndexOuter, RBreak: em.BreakRad, Spin: a}
-	switch kind {
-	case PowerLaw:
-		if qmax, _ := r.Emissivity.IndexLimits(d.OuterRadius); !(math.Abs(em.Index) <= qmax) {
-			return r, fieldErr("emission.index", em.Index, "must be within ±%.4g for disk.outer_radius = %v M (ε = r^-index within 10^±%d across the disk)", qmax, d.OuterRadius, EmissivityDecades)
-		}
-	case BrokenPowerLaw:
-		if !(em.BreakRad >= 1 && em.BreakRad <= MaxLength) {
-			return r, fieldErr("emission.break_radius", em.BreakRad, "must be from 1 M (no horizon is smaller) to %g M", MaxLength)
-		}
-		qin, _ := r.Emissivity.IndexLimits(d.OuterRadius)
-		if !(math.Abs(em.IndexInner) <= qin) {
-			return r, fieldErr("emission.index_inner", em.IndexInner, "must be within ±%.4g for break_radius = %v M and disk.outer_radius = %v M (ε within 10^±%d across the disk)", qin, em.BreakRad, d.OuterRadius, EmissivityDecades)
-		}
-		if _, qout := r.Emissivity.IndexLimits(d.OuterRadius); !(math.Abs(em.IndexOuter) <= qout) {
-			return r, fieldErr("emission.index_outer", em.IndexOuter, "must be within ±%.4g with index_inner = %v, break_radius = %v M and disk.outer_radius = %v M (ε within 10^±%d across the disk)", qout, em.IndexInner, em.BreakRad, d.OuterRadius, EmissivityDecades)
-		}
-	}
-	if kind == Lamp {
+	if r.Emissivity.Kind == Lamp {
 		if err := r.resolveLamp(); err != nil {
 			return r, err
 		}
@@ -758,6 +751,9 @@ func (s Scene) Resolve() (Resolved, error) {
 		return r, fieldErr("emission.limb", em.Limb, "must be one of %s", strings.Join(limbNames[Isotropic:], ", "))
 	}
 	r.Limb = Limb{Kind: lk}
+	if err := r.resolveLines(); err != nil {
+		return r, err
+	}
 	if err := r.resolvePhotonRate(); err != nil {
 		return r, err
 	}
@@ -771,19 +767,25 @@ func (s Scene) Resolve() (Resolved, error) {
 		return r, fieldErr("black_hole.spin", a, "%v", err)
 	}
 	sp := s.Spectrum
-	r.MinKeV, r.MaxKeV = 0.2*em.LineKeV, 1.8*em.LineKeV
+	// With a line list the defaults and bounds follow its lowest and
+	// highest lines.
+	lo, hi, top := em.LineKeV, em.LineKeV, "emission.line_kev"
+	if r.RestLines.List {
+		lo, hi, top = r.RestLines.Lowest(), r.RestLines.Highest(), "the highest line energy"
+	}
+	r.MinKeV, r.MaxKeV = 0.2*lo, 1.8*hi
 	if sp.MinKeV != nil {
 		r.MinKeV = *sp.MinKeV
 	}
 	if sp.MaxKeV != nil {
 		r.MaxKeV = *sp.MaxKeV
 	}
-	emax := MaxEnergyRatio * em.LineKeV
+	emax := MaxEnergyRatio * hi
 	if !(r.MinKeV >= 0 && r.MinKeV < emax) {
-		return r, fieldErr("spectrum.energy_min_kev", r.MinKeV, "must be from 0 to below %g × emission.line_kev = %g keV", float64(MaxEnergyRatio), emax)
+		return r, fieldErr("spectrum.energy_min_kev", r.MinKeV, "must be from 0 to below %g × %s = %g keV", float64(MaxEnergyRatio), top, emax)
 	}
 	if !(r.MaxKeV > 0 && r.MaxKeV <= emax) {
-		return r, fieldErr("spectrum.energy_max_kev", r.MaxKeV, "must be positive, at most %g × emission.line_kev = %g keV", float64(MaxEnergyRatio), emax)
+		return r, fieldErr("spectrum.energy_max_kev", r.MaxKeV, "must be positive, at most %g × %s = %g keV", float64(MaxEnergyRatio), top, emax)
 	}
 	if !(r.MaxKeV-r.MinKeV >= MinEnergySpan*r.MaxKeV) {
 		key, v := "spectrum.energy_max_kev", r.MaxKeV
@@ -795,8 +797,8 @@ func (s Scene) Resolve() (Resolved, error) {
 	if sp.Bins < 1 || sp.Bins > MaxBins {
 		return r, fieldErr("spectrum.bins", sp.Bins, "must be between 1 and %d", MaxBins)
 	}
-	if f := sp.FWHMeV; !(f == 0 || (f >= MinFWHMeV && f <= 1000*em.LineKeV)) {
-		return r, fieldErr("spectrum.instrument_fwhm_ev", f, "must be 0 (no instrument broadening) or from %g eV to the line energy, %g eV", MinFWHMeV, 1000*em.LineKeV)
+	if f := sp.FWHMeV; !(f == 0 || (f >= MinFWHMeV && f <= 1000*hi)) {
+		return r, fieldErr("spectrum.instrument_fwhm_ev", f, "must be 0 (no instrument broadening) or from %g eV to the line energy, %g eV", MinFWHMeV, 1000*hi)
 	}
 	rf := s.Refine
 	if rf.Depth < 0 || rf.Depth > MaxDepth {

@@ -1,6 +1,7 @@
 package scene
 
 import (
+	"fmt"
 	"math"
 	"strconv"
 
@@ -117,6 +118,9 @@ func DefaultSpot() Spot {
 func ResolveSpot(r Resolved) (SpotEmission, error) {
 	sp := r.Spot
 	var s SpotEmission
+	if r.RestLines.List {
+		return s, &FieldError{Key: "lines", Value: fmt.Sprintf("%d lines", len(r.RestLines.Lines)), Allowed: "a spot shines in the one line emission.line_kev; remove the [[lines]] list"}
+	}
 	switch sp.Profile {
 	case "gaussian":
 		s.Profile = SpotGaussian

@@ -129,6 +129,9 @@ func Compute(ctx context.Context, r scene.Resolved, opt Options) (*Response, err
 	if r.Emissivity.Kind != scene.Lamp || r.Emissivity.Illumination == nil {
 		return nil, &scene.FieldError{Key: "emission.emissivity", Value: r.Emission.Emissivity, Allowed: ErrNotLamp.Error()}
 	}
+	if r.RestLines.List {
+		return nil, &scene.FieldError{Key: "lines", Value: fmt.Sprintf("%d lines", len(r.RestLines.Lines)), Allowed: "the echo is of the one line emission.line_kev; remove the [[lines]] list"}
+	}
 	if !(r.Observer.InclinationDeg < 90) {
 		return nil, &scene.FieldError{Key: "observer.inclination_deg", Value: fmt.Sprint(r.Observer.InclinationDeg), Allowed: "must be below 90 for the echo: the lamp lights the disk's upper face"}
 	}

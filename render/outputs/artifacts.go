@@ -40,6 +40,7 @@ const (
 	SpectrumSVG                     // plot of the spectrum as vector graphics (spectrum.svg)
 	BandSVG                         // decorated band figure as vector graphics (band.svg)
 	BandRedshiftSVG                 // band redshift figure as vector graphics (band-redshift.svg)
+	CombinedCSV                     // lines and continuum on the spectrum's bins (lines-continuum.csv)
 )
 
 // Artifact is one file a run writes.
@@ -50,6 +51,9 @@ type Artifact struct {
 	// FITSMaps and SpectrumCSV it is scene.PolarisationMap when the scene
 	// asks for that map, and the file then carries Stokes Q and U too.
 	Map string
+	// Radii: the spectrum needs the source radii (pixels.KeepR), for
+	// rest lines with emissivity laws of their own (Set.LineRadii).
+	Radii bool
 }
 
 // Set chooses the artifacts a run writes besides those the scene's
@@ -62,6 +66,22 @@ type Set struct {
 	// Thermal: the scene has a thermal disk (scene.Resolved.Thermal.On), whose
 	// continuum is written with the spectrum (csv, and its plot with png).
 	Thermal bool
+	// LineRadii: some rest line has an emissivity law of its own
+	// (scene.RestLines.Own), so the spectrum needs the source radii.
+	LineRadii bool
+	// Combined: the lines are in physical units (scene.Resolved.Physical)
+	// and Thermal is set, so the lines and the continuum are also
+	// written on the spectrum's bins, in one table (with csv).
+	Combined bool
+}
+
+// SceneSet returns s with the fields the scene decides: Thermal,
+// LineRadii and Combined.
+func SceneSet(r scene.Resolved, s Set) Set {
+	s.Thermal = r.Thermal.On
+	s.LineRadii = r.RestLines.Own()
+	s.Combined = r.Thermal.On && r.Physical()
+	return s
 }
 
 // Artifacts lists the files a run of a scene with outputs o writes, in
@@ -70,7 +90,7 @@ type Set struct {
 func Artifacts(o scene.Output, s Set) []Artifact {
 	var out []Artifact
 	add := func(name string, k Kind, m string) {
-		out = append(out, Artifact{Name: s.Prefix + name, Kind: k, Map: m})
+		out = append(out, Artifact{Name: s.Prefix + name, Kind: k, Map: m, Radii: s.LineRadii && (k == SpectrumCSV || k == SpectrumFigure || k == CombinedCSV)})
 	}
 	pol := ""
 	if slices.Contains(o.Maps, scene.PolarisationMap) {
@@ -84,6 +104,9 @@ func Artifacts(o scene.Output, s Set) []Artifact {
 	}
 	if s.Thermal && o.Has("csv") {
 		add("continuum.csv", ContinuumCSV, "")
+	}
+	if s.Combined && s.Thermal && o.Has("csv") {
+		add("lines-continuum.csv", CombinedCSV, "")
 	}
 	for _, m := range o.Maps {
 		if o.Has("png") {
@@ -182,7 +205,7 @@ func Needs(arts []Artifact) pixels.Keep {
 			k |= pixels.KeepAll | stokesOf(a)
 		case SpectrumCSV, SpectrumFigure, SpectrumSVG:
 			k |= pixels.KeepG | pixels.KeepLine | stokesOf(a)
-		case ContinuumCSV, ContinuumFigure:
+		case ContinuumCSV, ContinuumFigure, CombinedCSV:
 			k |= pixels.KeepR | pixels.KeepG | pixels.KeepLine
 		case MapFigure, MapBare, MapIndexed, MapSVG:
 			if m, err := maps.Lookup(a.Map); err == nil {
@@ -190,6 +213,9 @@ func Needs(arts []Artifact) pixels.Keep {
 			}
 		case BandJSON, BandText, BandFITS, BandBare, BandFigure, BandRedshift, BandSVG, BandRedshiftSVG:
 			k |= pixels.KeepBand | pixels.KeepG
+		}
+		if a.Radii {
+			k |= pixels.KeepR
 		}
 	}
 	return k
@@ -244,7 +270,7 @@ func Write(ctx context.Context, arts []Artifact, job Job, put Put) error {
 	var spec pixels.Spectrum
 	var specTask *task
 	for _, a := range arts {
-		if a.Kind == SpectrumCSV || a.Kind == SpectrumFigure || a.Kind == SpectrumSVG {
+		if a.Kind == SpectrumCSV || a.Kind == SpectrumFigure || a.Kind == SpectrumSVG || a.Kind == CombinedCSV {
 			if job.Spectrum != nil {
 				spec = *job.Spectrum
 				specTask = &task{done: make(chan struct{})} // done already
@@ -261,6 +287,17 @@ func Write(ctx context.Context, arts []Artifact, job Job, put Put) error {
 	for _, a := range arts {
 		if a.Kind == ContinuumCSV || a.Kind == ContinuumFigure {
 			contTask = add(func(*scratch) { cont, contErr = f.Continuum() })
+			break
+		}
+	}
+	// The continuum at the centres of the spectrum's bins, for the
+	// combined table.
+	var binCont pixels.Continuum
+	var binContErr error
+	var binContTask *task
+	for _, a := range arts {
+		if a.Kind == CombinedCSV {
+			binContTask = add(func(*scratch) { binCont, binContErr = f.ContinuumAt(binCentres(f.Res)) })
 			break
 		}
 	}
@@ -396,6 +433,17 @@ func Write(ctx context.Context, arts []Artifact, job Job, put Put) error {
 				return contErr
 			}
 			write = func(w io.Writer) error { return WriteContinuumCSV(w, &cont, f.Res.Caption(), f.Res) }
+		case a.Kind == CombinedCSV:
+			if err := wait(specTask); err != nil {
+				return err
+			}
+			if err := wait(binContTask); err != nil {
+				return err
+			}
+			if binContErr != nil {
+				return binContErr
+			}
+			write = func(w io.Writer) error { return WriteCombinedCSV(w, &spec, &binCont, f.Res.Caption(), f.Res) }
 		case a.Kind == SpectrumCSV:
 			if err := wait(specTask); err != nil {
 				return err

@@ -177,7 +177,8 @@ var (
 )
 
 // SpectrumPlot returns the figure of the spectrum: total and per order,
-// per keV, with the rest energy marked. perUnit > 0 (scene.Resolved.
+// per keV, with the rest energy marked; for a line list, total and per
+// line, with every rest energy marked. perUnit > 0 (scene.Resolved.
 // SpectrumPerUnit) scales the flux to photons cm⁻² s⁻¹ keV⁻¹; 0 keeps it
 // relative. fluxMax, the top of the axis (0: from the data), is in the
 // units shown, and applies only without normalisation.
@@ -228,10 +229,22 @@ func SpectrumPlot(s *pixels.Spectrum, title, subtitle string, fluxMax, perUnit f
 		Size:   opt.Size,
 		VLines: []figure.VLine{{X: s.LineKeV, Label: fmt.Sprintf("rest energy %g keV", s.LineKeV), Color: restColor, Dashed: true}},
 	}
-	p.Series = append(p.Series, figure.Series{X: x, Y: scaled(total), Color: totalColor, Width: 2.5, Label: "all orders"})
-	if len(s.Order) > 1 {
-		for o, ord := range s.Order {
-			p.Series = append(p.Series, figure.Series{X: x, Y: scaled(perKeV(ord)), Color: colormap.Order(o), Width: 1.5, Label: fmt.Sprintf("order *{n} = %d", o), Dashed: o > 0})
+	if s.Line != nil {
+		// A line list: the sum and each line (all orders), each rest
+		// energy marked; the orders are in the table.
+		p.VLines = nil
+		p.Series = append(p.Series, figure.Series{X: x, Y: scaled(total), Color: totalColor, Width: 2.5, Label: "all lines"})
+		for l, e0 := range s.LinesKeV {
+			c := colormap.Order(l)
+			p.Series = append(p.Series, figure.Series{X: x, Y: scaled(perKeV(s.Line[l])), Color: c, Width: 1.5, Label: fmt.Sprintf("%g keV line", e0), Dashed: l%2 == 1})
+			p.VLines = append(p.VLines, figure.VLine{X: e0, Color: c, Dashed: true})
+		}
+	} else {
+		p.Series = append(p.Series, figure.Series{X: x, Y: scaled(total), Color: totalColor, Width: 2.5, Label: "all orders"})
+		if len(s.Order) > 1 {
+			for o, ord := range s.Order {
+				p.Series = append(p.Series, figure.Series{X: x, Y: scaled(perKeV(ord)), Color: colormap.Order(o), Width: 1.5, Label: fmt.Sprintf("order *{n} = %d", o), Dashed: o > 0})
+			}
 		}
 	}
 	if ov := opt.Overlay; ov != nil {

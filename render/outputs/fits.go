@@ -276,6 +276,14 @@ func fitsHeader(f *pixels.Frame, version string) []fits.Card {
 		{Key: "PIXSIZE", Value: r.PixelSize, Comment: "pixel side [M]"},
 		{Key: "FOV", Value: r.Screen.FieldOfView, Comment: "horizontal field of view [M]"},
 	}
+	if r.RestLines.List {
+		for i := range cards {
+			if cards[i].Key == "LINEKEV" {
+				cards[i] = fits.Card{Key: "LINEKEV", Value: r.RestLines.Lines[0].EnergyKeV, Comment: "rest energy of line 1 [keV] (see NLINES)"}
+			}
+		}
+		cards = append(cards, lineCards(r)...)
+	}
 	cards = append(cards,
 		fits.Card{Key: "REFDEPTH", Value: r.Refine.Depth, Comment: "adaptive refinement levels (0: pixel centres)"},
 		fits.Card{Key: "EMINKEV", Value: r.MinKeV, Comment: "spectrum lower energy [keV]"},
@@ -323,4 +331,27 @@ func writeFITS(w io.Writer, f *pixels.Frame, version string) error {
 		return err
 	}
 	return fits.Encode(w, fitsHeader(f, version), fitsImages(f))
+}
+
+// lineCards are the primary header cards of a line list (none for the one
+// line emission.line_kev): the number of lines and each line's rest
+// energy, fraction of the line photons and emissivity law, and the
+// list's mean photon energy.
+func lineCards(r scene.Resolved) []fits.Card {
+	ls := r.RestLines
+	if !ls.List {
+		return nil
+	}
+	cards := []fits.Card{
+		{Key: "NLINES", Value: len(ls.Lines), Comment: "rest lines of the line list"},
+		{Key: "LMEANKEV", Value: ls.MeanKeV, Comment: "mean rest energy of a line photon [keV]"},
+	}
+	for i, l := range ls.Lines {
+		n := i + 1
+		cards = append(cards,
+			fits.Card{Key: fmt.Sprintf("LKEV%d", n), Value: l.EnergyKeV, Comment: fmt.Sprintf("line %d rest energy [keV]", n)},
+			fits.Card{Key: fmt.Sprintf("LFRAC%d", n), Value: l.Fraction, Comment: fmt.Sprintf("line %d fraction of the line photons", n)},
+			fits.Card{Key: fmt.Sprintf("LLAW%d", n), Value: l.Emissivity.Describe(), Comment: fmt.Sprintf("line %d emissivity", n)})
+	}
+	return cards
 }

@@ -69,12 +69,13 @@ const (
 //   - for the rings figure, one image and one panel per order and its
 //     fonts and buffers;
 //   - for figures wider than about 900 pixels, their larger canvases;
-//   - the spectra (bins × orders float64, three copies).
+//   - the spectra (bins × orders float64, and bins × lines for a line
+//     list, three copies).
 //
 // FITS and CSV are streamed row by row and add nothing that grows with
 // the image. It depends only on its arguments, never on the machine.
 func MemoryEstimate(r scene.Resolved, s Set, workers int) int64 {
-	s.Thermal = s.Thermal || r.Thermal.On
+	s = SceneSet(r, s)
 	arts := Artifacts(r.Output, s)
 	px := int64(r.Screen.Width) * int64(r.Screen.Height)
 	n := int64(r.Disk.Orders)
@@ -83,7 +84,11 @@ func MemoryEstimate(r scene.Resolved, s Set, workers int) int64 {
 		need &^= pixels.KeepBehind // a transparent disk's Line holds it
 	}
 	records := need.Records()
-	b := int64(memBase) + px*(2+4*records*n) + 3*8*int64(r.Spectrum.Bins)*n
+	spectra := n
+	if r.RestLines.List {
+		spectra += int64(len(r.RestLines.Lines)) // one more per line of a list
+	}
+	b := int64(memBase) + px*(2+4*records*n) + 3*8*int64(r.Spectrum.Bins)*spectra
 	if r.NeedsTiming() {
 		b += px * 8 * n
 	}

@@ -64,7 +64,7 @@ func Run(ctx context.Context, r scene.Resolved, opt Options) (Summary, error) {
 		return Summary{}, err
 	}
 	defer lk.Unlock()
-	arts := Artifacts(r.Output, Set{Band: opt.Band, Manifest: true, Thermal: r.Thermal.On})
+	arts := Artifacts(r.Output, SceneSet(r, Set{Band: opt.Band, Manifest: true}))
 	if err := CheckInputs(r, arts); err != nil {
 		return Summary{}, err
 	}

@@ -58,12 +58,23 @@ var ErrNoThermal = errors.New("pixels: the scene has no thermal disk (give therm
 // n_E = scene.PhotonIntensity (g² n_E(E/g; f_col T) = n_E(E; g f_col T)),
 // and the bolometric flux is Σ ΔΩ f LimbNorm g⁴ F(r)/π. ΔΩ is the pixel's
 // solid angle. The limb factor f(μ) of a crossing is the frame's line
-// intensity over g³ ε(r) (Frame.Line holds g³ ε(r) f(μ)); on a refined
+// intensity over g³ ε(r) (Frame.Line holds g³ ε(r) f(μ), ε the lines'
+// emissivity scene.RestLines.At); on a refined
 // frame that ratio also carries the fraction of the pixel the crossing
 // covers, and the continuum uses the pixels' area-averaged r and g. Where
 // the line's emissivity is 0 the limb factor is taken as 1. The frame
 // must hold R, G and Line (KeepR, KeepG, KeepLine).
 func (f *Frame) Continuum() (Continuum, error) {
+	if !f.Res.Thermal.On {
+		return Continuum{}, ErrNoThermal
+	}
+	return f.ContinuumAt(f.Res.Thermal.Energies())
+}
+
+// ContinuumAt is Continuum at the given energies (keV, positive and
+// rising) instead of the scene's, e.g. at the centres of the line
+// spectrum's bins.
+func (f *Frame) ContinuumAt(energies []float64) (Continuum, error) {
 	r := f.Res
 	th := r.Thermal
 	if !th.On {
@@ -72,9 +83,9 @@ func (f *Frame) Continuum() (Continuum, error) {
 	if f.R == nil || f.G == nil || f.Line == nil {
 		return Continuum{}, errors.New("pixels: the continuum needs the frame's R, G and Line records")
 	}
-	c := Continuum{EnergyKeV: th.Energies(), Order: make([][]float64, f.Orders), Bolometric: make([]float64, f.Orders)}
+	c := Continuum{EnergyKeV: energies, Order: make([][]float64, f.Orders), Bolometric: make([]float64, f.Orders)}
 	dOmega := r.PixelSolidAngle()
-	em := f.Model.Emissivity
+	em := f.Model.Lines
 	for o := 0; o < f.Orders; o++ {
 		ord := make([]float64, len(c.EnergyKeV))
 		bol := 0.0

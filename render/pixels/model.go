@@ -18,9 +18,13 @@ import (
 // Model is what one photon sees: the observer, the disk edges and the
 // disk's gas and emission. It is a plain value, safe for concurrent use.
 type Model struct {
-	Obs          raytrace.Observer
-	Gas          scene.Gas
-	Emissivity   scene.Emissivity
+	Obs        raytrace.Observer
+	Gas        scene.Gas
+	Emissivity scene.Emissivity
+	// Lines are the rest lines; a crossing's line intensity is
+	// g³ Lines.At(r) f (Lines.At is Emissivity.At unless a line of a
+	// list has its own law).
+	Lines        scene.RestLines
 	Limb         scene.Limb
 	Inner, Outer float64 // emitting disk edges in M
 	Opaque       bool
@@ -48,7 +52,9 @@ func NewModel(r scene.Resolved) (Model, error) {
 	if err != nil {
 		return Model{}, err
 	}
-	return Model{Obs: o, Gas: r.Gas, Emissivity: r.Emissivity, Limb: r.Limb,
+	lines := r.RestLines
+	lines.Main = r.Emissivity
+	return Model{Obs: o, Gas: r.Gas, Emissivity: r.Emissivity, Lines: lines, Limb: r.Limb,
 		Inner: r.Inner, Outer: r.Disk.OuterRadius, Opaque: r.Disk.Opaque, Orders: r.Disk.Orders,
 		Timing: r.NeedsTiming(), Polar: r.Polar, PositionAngleDeg: r.Observer.PositionAngleDeg}, nil
 }
@@ -115,7 +121,7 @@ func (m *Model) fill(alpha, beta float64, p *raytrace.Path, times []raytrace.Tim
 		if !ok {
 			continue
 		}
-		eps := m.Emissivity.At(c.R)
+		eps, epsE := m.Lines.At(c.R), m.Lines.EnergyAt(c.R)
 		limb := m.Limb.At(scene.EmissionCosine(g, c.R, p.Eta))
 		q, u := nan, nan
 		if m.Stokes || m.Polar.SinPower != 0 {
@@ -125,7 +131,7 @@ func (m *Model) fill(alpha, beta float64, p *raytrace.Path, times []raytrace.Tim
 		}
 		g3 := g * g * g
 		line := g3 * eps * limb
-		hit := Hit{R: c.R, G: g, Line: line, Bol: g3 * g * eps * limb, T: nan, Phi: nan, Q: q * line, U: u * line}
+		hit := Hit{R: c.R, G: g, Line: line, Bol: g3 * g * epsE * limb, T: nan, Phi: nan, Q: q * line, U: u * line}
 		if hidden {
 			hit.Behind = true
 			s.Hits[n] = hit

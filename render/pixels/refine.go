@@ -169,6 +169,10 @@ func (rf *refiner) leaf(x, y, size float64, c *[4]point, acc *pixelAcc, spec *Sp
 		if spec == nil || n == 0 {
 			continue
 		}
+		if spec.Line != nil {
+			rf.leafLines(o, n, c, dOmega, spec)
+			continue
+		}
 		if n == 4 {
 			h := c[0].hits[o].g
 			gx := (float64(c[1].hits[o].g-h) + float64(c[3].hits[o].g-c[2].hits[o].g)) / 2
@@ -181,6 +185,52 @@ func (rf *refiner) leaf(x, y, size float64, c *[4]point, acc *pixelAcc, spec *Sp
 				spec.Add(o, float64(hh.g), float64(hh.line)*dOmega/4)
 			}
 		}
+	}
+}
+
+// leafLines is leaf's spectrum of order o for a line list, whose n corners
+// see the order: each corner's light is shared among the lines by their
+// emissivities at its source radius (scene.RestLines.Parts), and where
+// all four see it each line's light is spread over the cell's bilinear g
+// range, as for one line.
+func (rf *refiner) leafLines(o, n int, c *[4]point, dOmega float64, spec *Spectrum) {
+	ls := &rf.m.Lines
+	nl := len(ls.Lines)
+	var parts, flux [scene.MaxLines]float64
+	ls.Parts(math.NaN(), parts[:nl]) // the fractions, unless a line has its own law
+	if n == 4 {
+		g := 0.0
+		for k := 0; k < 4; k++ {
+			hh := c[k].hits[o]
+			g += float64(hh.g)
+			if ls.Own() {
+				ls.Parts(float64(hh.r), parts[:nl])
+			}
+			for l := range nl {
+				flux[l] += parts[l] * float64(hh.line)
+			}
+		}
+		for l := range nl {
+			flux[l] = flux[l] / 4 * dOmega
+		}
+		h := c[0].hits[o].g
+		gx := (float64(c[1].hits[o].g-h) + float64(c[3].hits[o].g-c[2].hits[o].g)) / 2
+		gy := (float64(c[2].hits[o].g-h) + float64(c[3].hits[o].g-c[1].hits[o].g)) / 2
+		spec.AddLines(o, g/4, gx, gy, flux[:nl])
+		return
+	}
+	for k := 0; k < 4; k++ {
+		hh := c[k].hits[o]
+		if !hh.seen {
+			continue
+		}
+		if ls.Own() {
+			ls.Parts(float64(hh.r), parts[:nl])
+		}
+		for l := range nl {
+			flux[l] = parts[l] * float64(hh.line) * dOmega / 4
+		}
+		spec.AddLines(o, float64(hh.g), 0, 0, flux[:nl])
 	}
 }
 
@@ -208,7 +258,7 @@ func renderRefined(ctx context.Context, r scene.Resolved, ref Refinement, keep K
 	m.Behind = m.Opaque && keepMaps && keep&KeepBehind != 0
 	a0, _, _, b1 := (&Frame{Res: r, W: w, H: h}).Window()
 	rf := &refiner{m: &m, res: r, ref: ref, a0: a0, b0: b1, h: r.PixelSize}
-	total := NewSpectrum(r.MinKeV, r.MaxKeV, r.Emission.LineKeV, r.Spectrum.Bins, n)
+	total := NewSceneSpectrum(r, n)
 	var f *Frame
 	if keepMaps {
 		f = newFrame(r, m, keep)
@@ -225,7 +275,7 @@ func renderRefined(ctx context.Context, r scene.Resolved, ref Refinement, keep K
 	rowBand := make([]bandTally, chunk)
 	rowSpec := make([]Spectrum, chunk)
 	for i := range rowSpec {
-		rowSpec[i] = NewSpectrum(r.MinKeV, r.MaxKeV, r.Emission.LineKeV, r.Spectrum.Bins, n)
+		rowSpec[i] = NewSceneSpectrum(r, n)
 	}
 	captured := 0.0
 	for j0 := 0; j0 < h; j0 += chunk {
@@ -245,10 +295,7 @@ func renderRefined(ctx context.Context, r scene.Resolved, ref Refinement, keep K
 		parallel(ctx, rows, n, func(i int, p *raytrace.Path, s *Sample) {
 			j := j0 + i
 			spec := &rowSpec[i]
-			for o := range spec.Order {
-				clear(spec.Order[o])
-			}
-			spec.Below, spec.Above = 0, 0
+			spec.clear()
 			rowCaptured[i] = 0
 			rowBand[i] = bandTally{}
 			for x := 0; x < w; x++ {

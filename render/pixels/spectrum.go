@@ -1,18 +1,33 @@
 package pixels
 
-import "math"
+import (
+	"math"
+
+	"kerrscope/scene"
+)
 
 // Spectrum is the line profile collapsed from an image: the flux of every
 // seen crossing, g³ ε L ΔΩ, binned at the observed energy g E0
 // (physics: Liouville's theorem, I_ν/ν³ conserved; Cunningham 1975).
 // Flux is per bin, not per keV, in units of M² of screen area for an
 // observer at distance D = 1 M (multiply by (M/D)² for a real distance).
+//
+// A spectrum of a line list (NewSceneSpectrum for a scene with [[lines]])
+// also holds each line's flux summed over the orders; Order then holds
+// the sum over the lines.
 type Spectrum struct {
 	MinKeV, MaxKeV float64
-	LineKeV        float64
-	FWHMeV         float64     // instrument broadening applied (0: none)
-	Order          [][]float64 // [order][bin]
-	Below, Above   float64     // flux that fell outside the energy range
+	// LineKeV is the rest energy of Add and AddSpread: the scene's one
+	// line, or the first line of a list.
+	LineKeV      float64
+	FWHMeV       float64     // instrument broadening applied (0: none)
+	Order        [][]float64 // [order][bin]
+	Below, Above float64     // flux that fell outside the energy range
+	// LinesKeV are the rest energies of a line list and Line[l] the
+	// flux of line l per bin, summed over the orders; both nil for a
+	// spectrum of one line.
+	LinesKeV []float64
+	Line     [][]float64
 }
 
 // NewSpectrum returns an empty spectrum with bins equal bins over [min, max] keV.
@@ -24,6 +39,34 @@ func NewSpectrum(minKeV, maxKeV, lineKeV float64, bins, orders int) Spectrum {
 	return s
 }
 
+// NewSceneSpectrum returns the empty spectrum of the scene: its energy
+// range and bins, with orders image orders, and one flux per line when
+// the scene gives a line list (scene.RestLines.List).
+func NewSceneSpectrum(r scene.Resolved, orders int) Spectrum {
+	ls := r.RestLines
+	s := NewSpectrum(r.MinKeV, r.MaxKeV, r.Emission.LineKeV, r.Spectrum.Bins, orders)
+	if ls.List {
+		s.LineKeV = ls.Lines[0].EnergyKeV
+		s.LinesKeV = ls.Energies()
+		s.Line = make([][]float64, len(ls.Lines))
+		for l := range s.Line {
+			s.Line[l] = make([]float64, r.Spectrum.Bins)
+		}
+	}
+	return s
+}
+
+// clear empties the spectrum, keeping its binning.
+func (s *Spectrum) clear() {
+	for o := range s.Order {
+		clear(s.Order[o])
+	}
+	for l := range s.Line {
+		clear(s.Line[l])
+	}
+	s.Below, s.Above = 0, 0
+}
+
 // Bins returns the number of bins.
 func (s *Spectrum) Bins() int { return len(s.Order[0]) }
 
@@ -31,8 +74,20 @@ func (s *Spectrum) Bins() int { return len(s.Order[0]) }
 func (s *Spectrum) Width() float64 { return (s.MaxKeV - s.MinKeV) / float64(s.Bins()) }
 
 // Add deposits flux of image order o observed with redshift factor g.
-func (s *Spectrum) Add(o int, g, flux float64) {
-	e := g * s.LineKeV
+func (s *Spectrum) Add(o int, g, flux float64) { s.add(o, -1, s.LineKeV, g, flux) }
+
+// AddLines deposits flux[l] of each line l of a line list, of image
+// order o, observed at redshift g spread over the pixel as in AddSpread
+// (dgx = dgy = 0: at g alone, as Add).
+func (s *Spectrum) AddLines(o int, g, dgx, dgy float64, flux []float64) {
+	for l, e0 := range s.LinesKeV {
+		s.spread(o, l, e0, g, dgx, dgy, flux[l])
+	}
+}
+
+// add is Add of line l (-1: no line list) of rest energy e0.
+func (s *Spectrum) add(o, l int, e0, g, flux float64) {
+	e := g * e0
 	if e < s.MinKeV {
 		s.Below += flux
 		return
@@ -47,6 +102,9 @@ func (s *Spectrum) Add(o int, g, flux float64) {
 		}
 	}
 	s.Order[o][k] += flux
+	if l >= 0 {
+		s.Line[l][k] += flux
+	}
 }
 
 // Merge adds another spectrum of the same binning.
@@ -54,6 +112,11 @@ func (s *Spectrum) Merge(t *Spectrum) {
 	for o := range s.Order {
 		for k := range s.Order[o] {
 			s.Order[o][k] += t.Order[o][k]
+		}
+	}
+	for l := range s.Line {
+		for k := range s.Line[l] {
+			s.Line[l][k] += t.Line[l][k]
 		}
 	}
 	s.Below += t.Below
@@ -87,14 +150,19 @@ func (s *Spectrum) Sum() float64 {
 // trapezoid), which this integrates exactly over every bin. It removes the
 // shot noise of depositing each pixel at its centre value alone.
 func (s *Spectrum) AddSpread(o int, g, dgx, dgy, flux float64) {
-	wa, wb := math.Abs(dgx)*s.LineKeV, math.Abs(dgy)*s.LineKeV
+	s.spread(o, -1, s.LineKeV, g, dgx, dgy, flux)
+}
+
+// spread is AddSpread of line l (-1: no line list) of rest energy e0.
+func (s *Spectrum) spread(o, l int, e0, g, dgx, dgy, flux float64) {
+	wa, wb := math.Abs(dgx)*e0, math.Abs(dgy)*e0
 	if wa < wb {
 		wa, wb = wb, wa
 	}
-	e := g * s.LineKeV
+	e := g * e0
 	half := (wa + wb) / 2
 	if !(half > 1e-6*s.Width()) || math.IsInf(half, 0) {
-		s.Add(o, g, flux)
+		s.add(o, l, e0, g, flux)
 		return
 	}
 	lo, hi := e-half, e+half
@@ -109,7 +177,11 @@ func (s *Spectrum) AddSpread(o int, g, dgx, dgy, flux float64) {
 	k1 := min(s.Bins()-1, int(math.Floor((hi-s.MinKeV)/w)))
 	for k := k0; k <= k1; k++ {
 		bl := s.MinKeV + float64(k)*w - e
-		s.Order[o][k] += flux * (trapezoidCDF(bl+w, wa, wb) - trapezoidCDF(bl, wa, wb))
+		v := flux * (trapezoidCDF(bl+w, wa, wb) - trapezoidCDF(bl, wa, wb))
+		s.Order[o][k] += v
+		if l >= 0 {
+			s.Line[l][k] += v
+		}
 	}
 }
 
@@ -145,9 +217,14 @@ func trapezoidCDF(x, a, b float64) float64 {
 // covers (AddSpread) using the differences of g to the neighbouring
 // pixels of the same image order.
 //
+// With a line list each line l gets the share of the light its
+// emissivity has at the pixel's source radius (scene.RestLines.Parts),
+// at energy g E_l.
+//
 // For a frame made by RenderRefined it is the spectrum of the refined
 // samples, weighted by their areas. Otherwise the frame must hold G and
-// Line (KeepG, KeepLine).
+// Line (KeepG, KeepLine), and R too for a line list whose lines have laws
+// of their own (KeepR; scene.RestLines.Own).
 func (f *Frame) Spectrum() Spectrum {
 	r := f.Res
 	if f.refined != nil {
@@ -157,18 +234,41 @@ func (f *Frame) Spectrum() Spectrum {
 		}
 		return s
 	}
-	s := NewSpectrum(r.MinKeV, r.MaxKeV, r.Emission.LineKeV, r.Spectrum.Bins, f.Orders)
+	return f.collapse(f.Line)
+}
+
+// collapse is Spectrum of the per-order record v (Line, or Stokes Q or
+// U) of a frame that is not refined.
+func (f *Frame) collapse(v [][]float32) Spectrum {
+	r := f.Res
+	s := NewSceneSpectrum(r, f.Orders)
 	dOmega := r.PixelSize * r.PixelSize
+	ls := f.Model.Lines
+	var parts, flux []float64
+	if s.Line != nil {
+		parts, flux = make([]float64, len(ls.Lines)), make([]float64, len(ls.Lines))
+		ls.Parts(math.NaN(), parts) // the fractions, unless a line has its own law
+	}
 	for o := 0; o < f.Orders; o++ {
 		g := f.G[o]
-		for k, l := range f.Line[o] {
+		for k, l := range v[o] {
 			if math.IsNaN(float64(l)) {
 				continue
 			}
 			i, j := k%f.W, k/f.W
 			dx := f.slope(g, k, i, j, 1)
 			dy := f.slope(g, k, i, j, f.W)
-			s.AddSpread(o, float64(g[k]), dx, dy, float64(l)*dOmega)
+			if s.Line == nil {
+				s.AddSpread(o, float64(g[k]), dx, dy, float64(l)*dOmega)
+				continue
+			}
+			if ls.Own() && f.R != nil {
+				ls.Parts(float64(f.R[o][k]), parts)
+			}
+			for n := range flux {
+				flux[n] = parts[n] * float64(l) * dOmega
+			}
+			s.AddLines(o, float64(g[k]), dx, dy, flux)
 		}
 	}
 	if r.Spectrum.FWHMeV > 0 {
@@ -238,16 +338,27 @@ func (s Spectrum) Broaden(fwhmEV float64) Spectrum {
 	w := s.Width()
 	reach := int(math.Ceil(8*sigma/w)) + 1
 	cdf := func(x float64) float64 { return 0.5 * math.Erfc(-x/(math.Sqrt2*sigma)) }
-	for o, ord := range s.Order {
-		for i, v := range ord {
+	broaden := func(src, dst []float64) {
+		for i, v := range src {
 			if v == 0 {
 				continue
 			}
 			ei := s.MinKeV + (float64(i)+0.5)*w
 			for j := max(0, i-reach); j <= min(s.Bins()-1, i+reach); j++ {
 				lo := s.MinKeV + float64(j)*w - ei
-				out.Order[o][j] += v * (cdf(lo+w) - cdf(lo))
+				dst[j] += v * (cdf(lo+w) - cdf(lo))
 			}
+		}
+	}
+	for o, ord := range s.Order {
+		broaden(ord, out.Order[o])
+	}
+	if s.Line != nil {
+		out.LinesKeV = s.LinesKeV
+		out.Line = make([][]float64, len(s.Line))
+		for l, v := range s.Line {
+			out.Line[l] = make([]float64, len(v))
+			broaden(v, out.Line[l])
 		}
 	}
 	return out

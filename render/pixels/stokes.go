@@ -83,26 +83,3 @@ func (f *Frame) Net() NetPolarisation {
 func (f *Frame) StokesSpectrum() (q, u Spectrum) {
 	return f.collapse(f.Q), f.collapse(f.U)
 }
-
-// collapse is Spectrum of the per-order record v in place of Line.
-func (f *Frame) collapse(v [][]float32) Spectrum {
-	r := f.Res
-	s := NewSpectrum(r.MinKeV, r.MaxKeV, r.Emission.LineKeV, r.Spectrum.Bins, f.Orders)
-	dOmega := r.PixelSize * r.PixelSize
-	for o := 0; o < f.Orders; o++ {
-		g := f.G[o]
-		for k, l := range v[o] {
-			if math.IsNaN(float64(l)) {
-				continue
-			}
-			i, j := k%f.W, k/f.W
-			dx := f.slope(g, k, i, j, 1)
-			dy := f.slope(g, k, i, j, f.W)
-			s.AddSpread(o, float64(g[k]), dx, dy, float64(l)*dOmega)
-		}
-	}
-	if r.Spectrum.FWHMeV > 0 {
-		s = s.Broaden(r.Spectrum.FWHMeV)
-	}
-	return s
-}

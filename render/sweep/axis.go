@@ -69,8 +69,13 @@ var fixedKeys = map[string]string{
 
 // numericField returns the scene field named by a flag name ("spin") or
 // a scene key ("black_hole.spin") if a sweep can vary it: it must take a
-// real number and must not be one of the values all frames share.
+// real number and must not be one of the values all frames share. The
+// weight and energy of line N of a line list are named
+// "lines.N.weight" and "lines.N.energy_kev" (scene.LineField).
 func numericField(name string) (scene.Field, error) {
+	if f, ok := scene.LineField(name); ok {
+		return f, nil
+	}
 	for _, f := range scene.Fields() {
 		if f.Flag != name && f.Key != name {
 			continue
@@ -91,6 +96,7 @@ func numericField(name string) (scene.Field, error) {
 			names = append(names, f.Flag)
 		}
 	}
+	names = append(names, "lines.N.weight", "lines.N.energy_kev")
 	return scene.Field{}, fmt.Errorf("unknown scene value %q (sweepable: %s)", name, strings.Join(names, ", "))
 }
 

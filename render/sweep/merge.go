@@ -324,8 +324,15 @@ func (p *Plan) spectraPlots(sc maps.Scales) ([]namedPlot, error) {
 		if len(p.Axes) == 2 {
 			pl.Subtitle += "; " + scene.QuantityOf(p.Axes[1].Key).Value(formatValue(g[0].Values[1]))
 		}
-		if !slices.Contains([]string{a.Key, axisKey(p, 1)}, "emission.line_kev") {
-			pl.VLines = []figure.VLine{{X: base.Emission.LineKeV, Label: fmt.Sprintf("rest energy %g keV", base.Emission.LineKeV), Color: color.RGBA{0x60, 0x60, 0x60, 0xff}, Dashed: true}}
+		if !slices.Contains([]string{a.Key, axisKey(p, 1)}, "emission.line_kev") && !base.RestLines.List {
+			pl.VLines = []figure.VLine{{X: base.Emission.LineKeV, Label: fmt.Sprintf("%g keV rest", base.Emission.LineKeV), Color: color.RGBA{0x60, 0x60, 0x60, 0xff}, Dashed: true}}
+		}
+		if base.RestLines.List {
+			for n, e := range base.RestLines.Energies() {
+				if !slices.Contains([]string{a.Key, axisKey(p, 1)}, scene.LineKey(n+1, "energy_kev")) {
+					pl.VLines = append(pl.VLines, figure.VLine{X: e, Label: fmt.Sprintf("%g", e), Color: color.RGBA{0x60, 0x60, 0x60, 0xff}, Dashed: true})
+				}
+			}
 		}
 		xlo, xhi := math.Inf(1), math.Inf(-1)
 		for _, pt := range g {

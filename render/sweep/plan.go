@@ -174,7 +174,7 @@ func (p *Plan) framePrefix(k int) string { return fmt.Sprintf("frame-%0*d", p.di
 // spectrum as CSV (csv) and plot (png and csv), and so the thermal
 // continuum when the scene has one; the FITS maps (fits).
 func (p *Plan) artifacts(k int) []outputs.Artifact {
-	return outputs.Artifacts(p.Base.Output, outputs.Set{Prefix: p.framePrefix(k) + "-", Indexed: true, Thermal: p.Points[k].Scene.Thermal.On})
+	return outputs.Artifacts(p.Base.Output, outputs.SceneSet(p.Points[k].Scene, outputs.Set{Prefix: p.framePrefix(k) + "-", Indexed: true}))
 }
 
 // fileNames returns the names of the files of frame k, sorted.
