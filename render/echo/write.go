@@ -193,7 +193,7 @@ func (r *Response) Panel() figure.Panel {
 	}
 	bar := &figure.ColorBar{Colors: cm.Table(256), Label: "ψ(E, t) [keV⁻¹ M⁻¹, relative]"}
 	for d := 0; d <= 4; d++ {
-		bar.Ticks = append(bar.Ticks, figure.Tick{T: float64(d) / 4, Label: fmt.Sprintf("%.3g", lo*math.Pow(10, float64(d)))})
+		bar.Ticks = append(bar.Ticks, figure.Tick{T: float64(d) / 4, Label: figure.BarNumber(lo * math.Pow(10, float64(d)))})
 	}
 	il := r.Illum
 	return figure.Panel{
@@ -203,6 +203,7 @@ func (r *Response) Panel() figure.Panel {
 		Title:    "Echo of a flash of the lamp",
 		Subtitle: fmt.Sprintf("lamp h = %g M, Γ = %g; %s; first echo %.3g M", il.Height, il.Index, r.Res.Caption(), r.First),
 		Bar:      bar,
+		Fills:    []figure.Swatch{{Color: colormap.NoHit, Label: "no echo in the bin"}},
 		Lines:    []figure.Polyline{{Points: [][2]float64{{0, r.Res.Emission.LineKeV}, {r.TMax, r.Res.Emission.LineKeV}}, Color: color.RGBA{0x60, 0x60, 0x60, 0xff}, Dashed: true}},
 	}
 }

@@ -126,16 +126,8 @@ func decadeLabel(v float64) string {
 	return "10^{" + strings.ReplaceAll(strconv.Itoa(n), "-", "−") + "}"
 }
 
-// barNumber writes a colour-bar end value with three significant digits,
-// a typographic minus and a power of ten for very large or small values.
-func barNumber(v float64) string {
-	s := strconv.FormatFloat(v, 'g', 3, 64)
-	if m, e, ok := strings.Cut(s, "e"); ok {
-		n, _ := strconv.Atoi(e)
-		s = m + "×10^{" + strings.ReplaceAll(strconv.Itoa(n), "-", "−") + "}"
-	}
-	return strings.ReplaceAll(s, "-", "−")
-}
+// barNumber writes a colour-bar end value (figure.BarNumber).
+func barNumber(v float64) string { return figure.BarNumber(v) }
 
 func intensityBar(f *pixels.Frame, sc Scales, p *figure.Panel) {
 	bar := &figure.ColorBar{Colors: colormap.Sequential.Table(256), Label: "*{I} [relative]", Note: "*{g}^{3} *{ε}(*{r}) × limb law"}

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"image/color"
 	"math"
+	"strconv"
 	"strings"
 	"sync"
 	"unicode/utf8"
@@ -388,3 +389,15 @@ func luma(c color.RGBA) float64 {
 // Plain returns a label without its markup (`_{}`, `^{}`, `*{}`), as a
 // reader sees it, for text drawn outside this package (e.g. GIF strips).
 func Plain(s string) string { return plain(s) }
+
+// BarNumber writes a colour-bar or tick value with three significant
+// digits, a typographic minus and a power of ten (in label markup) for
+// very large or small values: 0.0656, 6.56×10^{−6}.
+func BarNumber(v float64) string {
+	s := strconv.FormatFloat(v, 'g', 3, 64)
+	if m, e, ok := strings.Cut(s, "e"); ok {
+		n, _ := strconv.Atoi(e)
+		s = m + "×10^{" + strings.ReplaceAll(strconv.Itoa(n), "-", "−") + "}"
+	}
+	return strings.ReplaceAll(s, "-", "−")
+}
