@@ -12,6 +12,8 @@ import (
 
 	"kerrscope/colormap"
 	"kerrscope/render/internal/figure"
+	"kerrscope/render/maps"
+	"kerrscope/scene"
 )
 
 // continuaPlots returns one plot of all frames' thermal continua, E² N_E
@@ -28,7 +30,8 @@ func (p *Plan) continuaPlots() ([]namedPlot, error) {
 			groups[pt.Index%n1] = append(groups[pt.Index%n1], pt)
 		}
 	}
-	bar := &figure.ColorBar{Label: a.Key}
+	q := scene.QuantityOf(a.Key)
+	bar := &figure.ColorBar{Label: q.Title()}
 	for i := 0; i < 256; i++ {
 		bar.Colors = append(bar.Colors, colormap.Sequential.At(seqLo+(seqHi-seqLo)*float64(i)/255))
 	}
@@ -46,14 +49,15 @@ func (p *Plan) continuaPlots() ([]namedPlot, error) {
 	for j, g := range groups {
 		pl := figure.Plot{
 			Title:    "thermal continua over the sweep",
-			Subtitle: fmt.Sprintf("%d frames, %s from %s to %s (%s spacing)", len(g), a.Key, formatValue(a.From), formatValue(a.To), a.Spacing),
-			XLabel:   "log₁₀ (observed energy E / keV)",
-			YLabel:   "E² N_E [keV cm⁻² s⁻¹]",
+			Subtitle: fmt.Sprintf("%d frames, %s (%s spacing)", len(g), rangeText(q, a.From, a.To), a.Spacing),
+			XLabel:   "log₁₀ (observed energy *{E}_{obs} / keV)",
+			YLabel:   "*{E}^{2} *{N}_{E} [keV cm⁻² s⁻¹]",
 			LogY:     true,
 			Bar:      bar,
+			Size:     maps.FigureSize(p.Points[0].Scene.Output),
 		}
 		if len(p.Axes) == 2 {
-			pl.Subtitle += fmt.Sprintf("; %s = %s", p.Axes[1].Key, formatValue(g[0].Values[1]))
+			pl.Subtitle += "; " + scene.QuantityOf(p.Axes[1].Key).Value(formatValue(g[0].Values[1]))
 		}
 		peak := 0.0
 		for _, pt := range g {
