@@ -154,6 +154,11 @@ func Merge(ctx context.Context, dir string, opt MergeOptions) ([]string, error) 
 			if err := out.Write(pl.name, func(w io.Writer) error { return figure.EncodePNG(w, img) }); err != nil {
 				return fail(err)
 			}
+			if p.Base.Output.Has("svg") { // the same plot as vector graphics
+				if err := out.Write(strings.TrimSuffix(pl.name, ".png")+".svg", func(w io.Writer) error { return figure.PlotSVG(w, pl.plot) }); err != nil {
+					return fail(fmt.Errorf("%s: %w", pl.name, err))
+				}
+			}
 		}
 	}
 	if err := out.Write("sweep-frames.csv", p.writeTable); err != nil {
