@@ -50,7 +50,7 @@ func BenchmarkUpdate256(b *testing.B) {
 }
 
 // BenchmarkUpdate256Reframed changes the spin on every update, so that
-// every update also frames its automatic window (pixels.FrameWindow).
+// every update also frames its automatic window (pixels.FrameWindowAt, liveFramingSide).
 func BenchmarkUpdate256Reframed(b *testing.B) {
 	s, req := benchView(b, nil)
 	spins := []string{"0.5", "0.6", "0.7", "0.8", "0.9", "0.95", "0.99", "0.3"}

@@ -117,7 +117,14 @@ type frameCache struct {
 
 const frameCacheSize = 64
 
-// framingKey holds everything pixels.FrameWindow reads: the model (hole,
+// liveFramingSide is the side of the coarse framing pass of a view's
+// automatic window (pixels.FrameWindowAt): 160² = 25 600 photons, a
+// quarter of a render's framing, so that reframing after a change of spin
+// or inclination stays within the time of a view. The window it frames is
+// the one the view shows and a saved scene keeps.
+const liveFramingSide = 160
+
+// framingKey holds everything pixels.FrameWindowAt reads: the model (hole,
 // observer, disk, gas) and the screen's shape and given centre.
 func framingKey(r scene.Resolved) string {
 	return fmt.Sprintf("%v|%v|%v|%v|%v|%v|%v|%v|%v|%v|%v|%v", r.Hole.Spin, r.Observer.InclinationDeg, r.Inner,
@@ -140,13 +147,13 @@ func (c *frameCache) cached(r scene.Resolved) (scene.Resolved, bool) {
 	return r, false
 }
 
-// frame returns r with a concrete window (pixels.FrameWindow), cached.
+// frame returns r with a concrete window (pixels.FrameWindowAt, liveFramingSide), cached.
 func (c *frameCache) frame(ctx context.Context, r scene.Resolved) (scene.Resolved, error) {
 	if f, ok := c.cached(r); ok {
 		return f, nil
 	}
 	key := framingKey(r)
-	f, err := pixels.FrameWindow(ctx, r)
+	f, err := pixels.FrameWindowAt(ctx, r, liveFramingSide)
 	if err != nil {
 		return r, err
 	}

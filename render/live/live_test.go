@@ -279,7 +279,7 @@ func pixelBytes(t *testing.T, text string) []byte {
 
 // An update answers a coarse pass, then the full view, whose image is the
 // map of the engine's own render of the same window, pixel for pixel, and
-// whose window is the one pixels.FrameWindow frames for the scene.
+// whose window is the one pixels.FrameWindowAt frames for the scene at liveFramingSide.
 func TestUpdateCoarseThenFull(t *testing.T) {
 	_, ts := newTestServer(t, Config{})
 	params := map[string]string{"spin": "0.6", "inclination": "70", "width": "96", "height": "64"}
@@ -311,7 +311,7 @@ func TestUpdateCoarseThenFull(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	framed, err := pixels.FrameWindow(context.Background(), r)
+	framed, err := pixels.FrameWindowAt(context.Background(), r, liveFramingSide)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -515,7 +515,7 @@ func TestSaveResolvesToTheView(t *testing.T) {
 		if got.AutoField || got.Screen.FieldOfView != win.Field || got.Screen.CenterAlpha != win.Alpha || got.Screen.CenterBeta != win.Beta {
 			t.Errorf("saved scene's window %+v (automatic %v); the view showed %+v", got.Screen, got.AutoField, win)
 		}
-		framed, err := pixels.FrameWindow(context.Background(), want)
+		framed, err := pixels.FrameWindowAt(context.Background(), want, liveFramingSide)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -767,11 +767,11 @@ func TestOneOrderAlone(t *testing.T) {
 
 // When a change needs the automatic window framed again, the coarse pass
 // shows the page's last window at once and the full pass the newly framed
-// one, pixels.FrameWindow's for the new scene.
+// one, pixels.FrameWindowAt's for the new scene.
 func TestCoarsePassKeepsLastWindowWhileFraming(t *testing.T) {
 	_, ts := newTestServer(t, Config{})
 	view := func(client, spin string) (Window, Window) {
-		resp, body := post(t, ts, "/api/view", ViewRequest{Client: client, Params: map[string]string{"spin": spin}})
+		resp, body := post(t, ts, "/api/view", ViewRequest{Client: client, Params: map[string]string{"inclination": spin}})
 		if resp.StatusCode != http.StatusOK {
 			t.Fatalf("status %d: %s", resp.StatusCode, body)
 		}
@@ -782,30 +782,30 @@ func TestCoarsePassKeepsLastWindowWhileFraming(t *testing.T) {
 		return field[Window](t, lines[0], "window"), field[Window](t, lines[1], "window")
 	}
 	framed := func(spin string) Window {
-		r, err := resolve(testBase(), map[string]string{"spin": spin})
+		r, err := resolve(testBase(), map[string]string{"inclination": spin})
 		if err != nil {
 			t.Fatal(err)
 		}
-		f, err := pixels.FrameWindow(context.Background(), r)
+		f, err := pixels.FrameWindowAt(context.Background(), r, liveFramingSide)
 		if err != nil {
 			t.Fatal(err)
 		}
 		return Window{Field: f.Screen.FieldOfView, Alpha: f.Screen.CenterAlpha, Beta: f.Screen.CenterBeta}
 	}
-	c1, f1 := view("p", "0.1")
-	if want := framed("0.1"); c1 != want || f1 != want {
+	c1, f1 := view("p", "20")
+	if want := framed("20"); c1 != want || f1 != want {
 		t.Fatalf("first view: coarse %+v, full %+v, framed %+v", c1, f1, want)
 	}
-	c2, f2 := view("p", "-0.95")
-	want := framed("-0.95")
+	c2, f2 := view("p", "80")
+	want := framed("80")
 	if want == f1 {
-		t.Fatal("the two spins frame the same window; not a test")
+		t.Fatal("the two inclinations frame the same window; not a test")
 	}
 	if c2 != f1 || f2 != want {
 		t.Errorf("second view: coarse %+v (last %+v), full %+v (framed %+v)", c2, f1, f2, want)
 	}
 	// Another page has no last window: its coarse pass is framed.
-	if c3, _ := view("q", "0.3"); c3 != framed("0.3") {
+	if c3, _ := view("q", "45"); c3 != framed("45") {
 		t.Errorf("new page's coarse window %+v", c3)
 	}
 }

@@ -47,10 +47,17 @@ const (
 // cell), the provisional window of Resolve, the whole ImageBox, is kept.
 // The result depends only on r: every process computes the same window.
 func FrameWindow(ctx context.Context, r scene.Resolved) (scene.Resolved, error) {
+	return FrameWindowAt(ctx, r, framingSide)
+}
+
+// FrameWindowAt is FrameWindow with side × side coarse samples instead of
+// framingSide × framingSide: a cheaper, coarser framing for interactive
+// views (side ≥ 16; the margin grows with the coarser cells).
+func FrameWindowAt(ctx context.Context, r scene.Resolved, side int) (scene.Resolved, error) {
 	if !r.AutoField {
 		return r, nil
 	}
-	box, ok, err := DiskBox(ctx, r)
+	box, ok, err := diskBox(ctx, r, max(side, 16))
 	if err != nil {
 		return r, err
 	}
@@ -74,22 +81,27 @@ func (b Box) Union(c Box) Box {
 // whether any sample landed. Sweeps take the union of their frames'
 // boxes (Box.Union, Box.Window).
 func DiskBox(ctx context.Context, r scene.Resolved) (Box, bool, error) {
+	return diskBox(ctx, r, framingSide)
+}
+
+// diskBox is DiskBox on side × side coarse samples.
+func diskBox(ctx context.Context, r scene.Resolved, side int) (Box, bool, error) {
 	m, err := NewModel(r)
 	if err != nil {
 		return Box{}, false, err
 	}
 	m.Timing = false
 	half := r.ImageBox()
-	cell := 2 * half / framingSide
+	cell := 2 * half / float64(side)
 	at := func(k int) float64 { return -half + (float64(k)+0.5)*cell }
 	type rowBox struct {
 		i0, i1 int // first and last column that lands, -1 none
 	}
-	rows := make([]rowBox, framingSide)
-	parallel(ctx, framingSide, m.Orders, func(j int, p *raytrace.Path, s *Sample) {
+	rows := make([]rowBox, side)
+	parallel(ctx, side, m.Orders, func(j int, p *raytrace.Path, s *Sample) {
 		rb := rowBox{-1, -1}
 		beta := at(j)
-		for i := 0; i < framingSide; i++ {
+		for i := 0; i < side; i++ {
 			m.Shade(at(i), beta, p, s)
 			if s.First >= 0 {
 				if rb.i0 < 0 {
@@ -103,7 +115,7 @@ func DiskBox(ctx context.Context, r scene.Resolved) (Box, bool, error) {
 	if err := ctx.Err(); err != nil {
 		return Box{}, false, err
 	}
-	i0, i1, j0, j1 := framingSide, -1, framingSide, -1
+	i0, i1, j0, j1 := side, -1, side, -1
 	for j, rb := range rows {
 		if rb.i0 < 0 {
 			continue
