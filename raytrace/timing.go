@@ -253,6 +253,20 @@ type radialTimer struct {
 	atRoot       [3]bool    // case II: the pole r± sits on the root r2 (see setupII)
 	coefInf      float64    // 2A'B'r21/(b0 b1)
 	logInfFinite float64    // ln(2A'B'r21/(b0 b1)): finite part of ln(1 + γ∞ cn) at infinity
+	// inf is set on first need (infinity): case I escaping photons add
+	// the integrals from infinity instead (sumsI, addI).
+	haveInf bool
+	// case I, escaping photons (escI, addI): the regularised R_C at infinity,
+	// sn, cn, dn of F0, and for the characteristics N = ν, n₊, n₋:
+	// N, 1 − N, 1 − N sn²F0 and k² = N(m − N)(1 − N).
+	escI               bool
+	rcInf              float64
+	s0, c0, d0         float64
+	nch, omn, on0, kk2 [3]float64
+	// Complete integrals ∫₀^K sn² and (P_N(K) − K)/N, set on first need.
+	haveComp bool
+	zc       float64
+	qc       [3]float64
 }
 
 // init sets up rt, a zero radialTimer, for the photon with radial roots
@@ -307,17 +321,181 @@ func (rt *radialTimer) setupI(q *quartic, rad *radial) {
 	rt.k2 = rt.r31 * rt.r32 / 2
 	rt.q431, rt.q432 = rt.r43/rt.r31, rt.r43/rt.r42
 	// Infinity: s² = r31/r41, c² = r43/r41, d² = r43/r42.
-	s2 := rt.r31 / rt.r41
 	c2 := rt.r43 / rt.r41
 	d2 := rt.r43 / rt.r42
 	onu := rt.r43 * (rt.r31 + rt.r42) / (rt.r41 * rt.r42) // 1 − ν s²
 	// ln y = ln r43 + ln(1 − νs²) − ln(r − r3): keep the finite part,
 	// R_C → [ln(2√x) − ½ ln(r43 (1 − νs²))]/√x = ½ ln(4x/(r43 (1 − νs²)))/√x
 	// with x = c²d² = r43²/(r41 r42) (rcRegular).
-	rcInf := 0.5 * math.Log(4*rt.r43/(rt.r41*rt.r42*onu)) / math.Sqrt(c2*d2)
-	rt.inf = rt.jI(rt.x0, s2, c2, d2, onu, rt.r43*rt.id4p, rt.r43*rt.id4m, rcInf, true)
+	rt.rcInf = 0.5 * math.Log(4*rt.r43/(rt.r41*rt.r42*onu)) / math.Sqrt(c2*d2)
 	// sqrt((r−r1)(r−r2)(r−r4)/(r−r3)) = r + (r3 − r1 − r2 − r4)/2 + O(1/r).
 	rt.breg = (rt.r3 - rt.r1 - rt.r2 - rt.r4) / 2
+	if math.IsInf(rad.turn, 1) {
+		return // captured: from J(F0) − J(Y) (infI)
+	}
+	// Escaping photons: the characteristics ν and n± = n (r3 − r±)/d₄±,
+	// with 1 − N, m − N and 1 − N s0² written without cancellation:
+	// 1 − ν = r43/r42, m − ν = m r43/r41, 1 − ν s0² = onu;
+	// 1 − n_c = r43 (c − r1)/(r31 d₄), m − n_c = r41 r43 (c − r2)/(r31 r42 d₄),
+	// 1 − n_c s0² = r43/d₄.
+	rt.escI = true
+	rt.s0, rt.c0, rt.d0 = rad.sn0, rad.cn0, rad.dn0
+	rt.nch[0], rt.omn[0], rt.on0[0] = rt.nu, rt.q432, onu
+	rt.kk2[0] = rt.nu * (rt.m * rt.r43 / rt.r41) * rt.q432
+	for i, c := range [2]float64{rt.rp, rt.rm} {
+		id4 := rt.id4p
+		if i == 1 {
+			id4 = rt.id4m
+		}
+		nc := rt.n * (rt.r3 - c) * id4
+		omn := rt.r43 * (c - rt.r1) / rt.r31 * id4
+		mmn := rt.r41 * rt.r43 * (c - rt.r2) / (rt.r31 * rt.r42) * id4
+		rt.nch[i+1], rt.omn[i+1], rt.on0[i+1] = nc, omn, rt.r43*id4
+		rt.kk2[i+1] = nc * mmn * omn
+	}
+}
+
+// infI sets rt.inf, the case-I integrals from the turning point to
+// infinity (Y = F0), on first need.
+func (rt *radialTimer) infI() {
+	rt.haveInf = true
+	s2 := rt.r31 / rt.r41
+	c2 := rt.r43 / rt.r41
+	d2 := rt.r43 / rt.r42
+	onu := rt.r43 * (rt.r31 + rt.r42) / (rt.r41 * rt.r42)
+	rt.inf = rt.jI(rt.x0, s2, c2, d2, onu, rt.r43*rt.id4p, rt.r43*rt.id4m, rt.rcInf, true)
+}
+
+// The case-I integrals from infinity to a point of an escaping photon's
+// path, without their value at infinity. With P_N(u) = ∫₀^u dX/(1 − N sn²X)
+// and Z(u) = ∫₀^u sn²X dX, the addition theorems
+//
+//	Z(u+v) = Z(u) + Z(v) + s_u s_v s_w
+//	P_N(u+v) = P_N(u) + P_N(v) + N t R_C(G², G² − k² t²)
+//
+// with w = u + v, t = s_u s_v s_w, G = 1 − N s_w² + N s_u s_v c_w d_w,
+// k² = N(m − N)(1 − N) (for k² < 0 the R_C term is N arctan2(|k| t, G)/|k|)
+// (Z: DLMF 22.16.27 for Jacobi's epsilon function, ℰ = u − mZ; P_N: Jacobi's
+// addition theorem for the third kind, Whittaker & Watson 1927, §22.741,
+// with N = m sn²a written without a) turn the integral from infinity
+// (Y = F0) to the point Y into one evaluation: before the turning point,
+// J(F0) − J(Y) = J(δ) + D(Y, δ) with δ = F0 − Y the distance from
+// infinity that trace's r(τ) already carries; after it,
+// J(F0) + J(Y) = J(F0 + Y) − D(F0, Y). The pole at infinity stays in
+// the elementary R_C of Π(n) (see setupI), which is evaluated at both
+// ends as before; the ν part has no pole (ν < m), and neither do n± for
+// r1 < r± < r4: on 0 ≤ u ≤ 2K the radius of sn u covers only r ≥ r4 and
+// r ≤ r1. For u > K, Z(u) = 2Z(K) − Z(2K − u) and likewise P_N, the
+// complete values by Bulirsch's cel.
+
+// addQ returns the addition term of P_N divided by N: t R_C(G², G² − k²t²),
+// t ≥ 0, G the G of the addition theorem.
+func addQ(k2, t, G float64) float64 {
+	if t == 0 {
+		return 0
+	}
+	if k2 < 0 {
+		k := math.Sqrt(-k2)
+		return math.Atan2(k*t, G) / k
+	}
+	g2 := G * G
+	return t * carlsonRC(g2, g2-k2*t*t)
+}
+
+// completeI sets the complete integrals Z(K) and (P_N(K) − K)/N =
+// R_J(0, 1 − m, 1, 1 − N)/3 (DLMF 19.25.2), by cel (see bulirschCel).
+func (rt *radialTimer) completeI() {
+	rt.haveComp = true
+	kc := math.Sqrt(rt.mc)
+	rt.zc = bulirschCel(kc, 1, 0, 1)
+	for i := 0; i < rt.numPoles(); i++ {
+		rt.qc[i] = bulirschCel(kc, rt.omn[i], 0, 1)
+	}
+}
+
+// sumsI returns, for an escaping case-I photon, Σy, ΣZ and ΣQ_N
+// (Q_N = (P_N − y)/N): the integrals of 1, sn² and the third kinds from
+// infinity to the point jac (see the addition theorems above).
+func (rt *radialTimer) sumsI(jac *pathJacobi) (sy, sz float64, sq [3]float64) {
+	sY, cY, dY := jac.sn, jac.cn, jac.dn
+	s0, c0, d0 := rt.s0, rt.c0, rt.d0
+	var u, su, cu, du float64
+	var t, sg float64
+	var gg [3]float64 // G − (1 − N s_w²) = N s_u s_v c_w d_w, without N
+	ng := rt.numPoles()
+	if jac.sgn < 0 {
+		// Before the turning point: u = δ, v = Y, w = F0.
+		u, su, cu, du = jac.d, jac.sd, jac.cd, jac.dd
+		t = sY * su * s0
+		sg = 1
+		for i := 0; i < ng; i++ {
+			gg[i] = rt.on0[i] + rt.nch[i]*sY*su*c0*d0
+		}
+	} else {
+		// After it: u = F0, v = Y, w = F0 + Y, whose sn, cn, dn follow
+		// from those of F0 and Y (DLMF 22.8.1–3); below, su, cu, du
+		// are those of w.
+		// cn and dn of u lose digits near u = K; take them from jacobi
+		// where they would cancel by more than 4.
+		u = rt.x0 + jac.y
+		den := dY*dY + rt.m*c0*c0*sY*sY // 1 − m s0² sY²
+		a, b := c0*cY, s0*sY*d0*dY
+		e, f := d0*dY, rt.m*s0*sY*c0*cY
+		if math.Abs(a-b) >= 0.25*max(a, b) && e-f >= 0.25*e {
+			su = (s0*cY*dY + sY*c0*d0) / den
+			cu = (a - b) / den
+			du = (e - f) / den
+		} else {
+			su, cu, du = jacobi(u, rt.m, rt.mc)
+		}
+		t = s0 * sY * su
+		sg = -1
+		for i := 0; i < ng; i++ {
+			n := rt.nch[i]
+			var onw float64 // 1 − N s_w²
+			if n > 0 {
+				onw = rt.omn[i] + n*cu*cu
+			} else {
+				onw = 1 - n*su*su
+			}
+			gg[i] = onw + n*s0*sY*cu*du
+		}
+	}
+	sy = u
+	if su == 0 {
+		return sy, 0, sq
+	}
+	s2, c2, d2 := su*su, cu*cu, du*du
+	var ps [3]float64
+	for i := 0; i < ng; i++ {
+		if n := rt.nch[i]; n > 0 {
+			ps[i] = rt.omn[i] + n*c2 // 1 − N s², N < 1
+		} else {
+			ps[i] = 1 - n*s2
+		}
+	}
+	var rj [3]float64
+	rd := carlsonDJ(c2, d2, 1, ps[:ng], rj[:0])
+	s3 := s2 * su / 3
+	z := s3 * rd
+	var q [3]float64
+	for i := 0; i < ng; i++ {
+		q[i] = s3 * rj[i]
+	}
+	if cu < 0 {
+		if !rt.haveComp {
+			rt.completeI()
+		}
+		z = 2*rt.zc - z
+		for i := 0; i < ng; i++ {
+			q[i] = 2*rt.qc[i] - q[i]
+		}
+	}
+	sz = z + sg*t
+	for i := 0; i < ng; i++ {
+		sq[i] = q[i] + sg*addQ(rt.kk2[i], t, gg[i])
+	}
+	return sy, sz, sq
 }
 
 // jI returns the case-I integrals ∫₀^Y of 1, r, r² (elliptic part), and
@@ -559,11 +737,17 @@ func (rt *radialTimer) at(tau, r float64, jac *pathJacobi) (it, iphi float64) {
 			onn = rt.r43 / (r - rt.r3)
 		}
 		onu := rt.q432 + rt.nu*c2
+		// sqrt(R)/(r − r3) with (r − r4)/(r − r3) = n s².
+		bnd = math.Sqrt((r-rt.r1)*(r-rt.r2)*rt.n) * sn
+		if rt.escI && jac != nil {
+			return rt.finish(rt.addI(jac, sn, c2*dn*dn, onn*onu), sgn, bnd)
+		}
 		onp := (r - rt.rp) * onn * rt.id4p
 		onm := (r - rt.rm) * onn * rt.id4m
 		j = rt.jI(y, s2, c2, dn*dn, onu, onp, onm, onn*onu, false)
-		// sqrt(R)/(r − r3) with (r − r4)/(r − r3) = n s².
-		bnd = math.Sqrt((r-rt.r1)*(r-rt.r2)*rt.n) * sn
+		if !rt.haveInf {
+			rt.infI()
+		}
 	default:
 		var y, sn, cn, dn float64
 		if jac != nil {
@@ -587,6 +771,34 @@ func (rt *radialTimer) at(tau, r float64, jac *pathJacobi) (it, iphi float64) {
 	for k := range iv {
 		iv[k] = (rt.inf[k] + sgn*j[k]) * rt.iscale
 	}
+	return rt.finish(iv, sgn, bnd)
+}
+
+// addI returns the case-I integrals of 1, r, r² (elliptic part) and
+// 1/(r − r±) from infinity to the point jac of an escaping photon, in τ
+// (see sumsI), given sn Y, c²d² and (1 − n s²)(1 − ν s²) of the point
+// (the R_C of Π(n), see setupI).
+func (rt *radialTimer) addI(jac *pathJacobi, sn, x, yc float64) [5]float64 {
+	sy, sz, sq := rt.sumsI(jac)
+	// Π(n) from infinity: the R_C part at both ends, minus ν ΣQ_ν.
+	pin := rt.s0*rt.rcInf + jac.sgn*sn*carlsonRC(x, yc) - rt.nu*sq[0]
+	var iv [5]float64
+	iv[0] = sy
+	iv[1] = rt.r3*sy + rt.r43*pin
+	iv[2] = rt.r3*rt.r3*sy - rt.k2*(sy-rt.n*sz)
+	iv[3] = sy*rt.id4p - 3*rt.kp*sq[1]
+	if !rt.skipM {
+		iv[4] = sy*rt.id4m - 3*rt.km*sq[2]
+	}
+	for k := range iv {
+		iv[k] *= rt.iscale
+	}
+	return iv
+}
+
+// finish combines the integrals iv (in τ) into I_t and I_φ, with the
+// boundary term bnd of I₂ taken with sign sgn.
+func (rt *radialTimer) finish(iv [5]float64, sgn, bnd float64) (it, iphi float64) {
 	i2 := iv[2] + rt.breg + sgn*bnd
 	it = i2 + 2*iv[1] + 4*iv[0] + rt.cp*iv[3]
 	iphi = rt.ap * iv[3]
