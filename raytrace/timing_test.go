@@ -1,9 +1,12 @@
 package raytrace
 
 import (
+	"fmt"
 	"math"
 	"math/rand/v2"
 	"testing"
+
+	"gonum.org/v1/gonum/integrate/quad"
 )
 
 // timingScale is the size against which a time or azimuth error is judged:
@@ -444,4 +447,117 @@ func TestTimingInvariants(t *testing.T) {
 			}
 		}
 	}
+}
+
+// legendreQuad integrates f(sin²θ)/sqrt(1 − m sin²θ) over θ from 0 to φ
+// (0 ≤ φ < π) by Gauss–Legendre quadrature (gonum), independently of the
+// Carlson functions: the Legendre forms of Z(u) = ∫₀^u sn² (f = s) and
+// P_N(u) = ∫₀^u du'/(1 − N sn²) (f = 1/(1 − N s)), φ = am u (DLMF 19.2.4–7).
+// The integrands peak at θ = π/2 (width sqrt(1 − m), or sqrt(1 − N)):
+// the range is split there and the nodes crowded towards it.
+func legendreQuad(f func(s float64) float64, phi, m float64) float64 {
+	g := func(th float64) float64 {
+		s := math.Sin(th)
+		return f(s*s) / math.Sqrt(1-m*s*s)
+	}
+	p1 := math.Min(phi, math.Pi/2)
+	// θ = p1 (1 − (1 − x)²) on [0, p1], θ = π/2 + (φ − π/2) x² beyond.
+	lo := func(x float64) float64 { return g(p1*(1-(1-x)*(1-x))) * 2 * p1 * (1 - x) }
+	sum := quad.Fixed(lo, 0, 1, 600, quad.Legendre{}, 0)
+	if phi > math.Pi/2 {
+		d := phi - math.Pi/2
+		hi := func(x float64) float64 { return g(math.Pi/2+d*x*x) * 2 * d * x }
+		sum += quad.Fixed(hi, 0, 1, 600, quad.Legendre{}, 0)
+	}
+	return sum
+}
+
+// TestAdditionTheorems checks the addition theorems that TraceTimed uses
+// to add the integrals from infinity (see radialTimer.sumsI):
+// Z(u+v) = Z(u) + Z(v) + s_u s_v s_w (DLMF 22.16.27 with ℰ = u − mZ) and
+// P_N(u+v) = P_N(u) + P_N(v) + N·addQ(k², t, G) (Whittaker & Watson
+// 1927, §22.741), against quadrature of the Legendre forms, for
+// characteristics on both sides of 0, m and 1 and sums beyond K.
+func TestAdditionTheorems(t *testing.T) {
+	for _, m := range []float64{0.3, 0.9, 0.999} {
+		k := ellipK(1 - m)
+		for _, n := range []float64{-30, -0.2, 0.1, 0.5 * m, (1 + m) / 2, 0.999, 1.5} {
+			for _, uv := range [][2]float64{{0.1, 0.2}, {0.5, 0.7}, {0.3, k - 0.4}, {0.9 * k, 0.05 * k}, {0.6 * k, 0.7 * k}, {0.95 * k, 0.9 * k}} {
+				u, v := uv[0], uv[1]
+				w := u + v
+				su, cu, _ := jacobi(u, m, 1-m)
+				sv, cv, _ := jacobi(v, m, 1-m)
+				sw, cw, dw := jacobi(w, m, 1-m)
+				if n*math.Max(sw*sw, math.Max(su*su, sv*sv)) >= 1 || (n > 1 && w > k) {
+					continue // a pole of 1/(1 − N sn²) on the path
+				}
+				am := func(s, c float64) float64 { return math.Atan2(s, c) }
+				pf := func(s float64) float64 { return 1 / (1 - n*s) }
+				zf := func(s float64) float64 { return s }
+				P := func(s, c float64) float64 { return legendreQuad(pf, am(s, c), m) }
+				Z := func(s, c float64) float64 { return legendreQuad(zf, am(s, c), m) }
+				tt := su * sv * sw
+				G := 1 - n*sw*sw + n*su*sv*cw*dw
+				k2 := n * (m - n) * (1 - n)
+				dp := P(sw, cw) - P(su, cu) - P(sv, cv)
+				dz := Z(sw, cw) - Z(su, cu) - Z(sv, cv)
+				near(t, fmt.Sprintf("P_N addition m=%v N=%v u=%v v=%v", m, n, u, v), n*addQ(k2, tt, G), dp, 1e-12*(1+math.Abs(P(sw, cw))))
+				near(t, fmt.Sprintf("Z addition m=%v u=%v v=%v", m, u, v), tt, dz, 1e-12*(1+math.Abs(Z(sw, cw))))
+			}
+		}
+	}
+}
+
+// TestTimingAdditionMatchesTwoEvaluations: for escaping photons with
+// four real roots, the radial integrals from infinity by the addition
+// theorems (one evaluation at the point, sumsI) agree with their
+// difference of two evaluations, at infinity and at the point, with
+// Jacobi functions computed afresh (the form used for later crossings
+// and captured photons), at points before and after the turning point,
+// including the quarter period K itself after it (where the addition
+// theorem's cn and dn of F0 + Y cancel and jacobi is used).
+func TestTimingAdditionMatchesTwoEvaluations(t *testing.T) {
+	rng := rand.New(rand.NewPCG(5, 8))
+	worst, count, nearK := 0.0, 0, 0
+	for i := 0; i < 600; i++ {
+		a := -0.999 + 1.998*rng.Float64()
+		o, _ := NewObserver(a, 5+170*rng.Float64())
+		al, be := -15+30*rng.Float64(), -15+30*rng.Float64()
+		if i%3 == 0 { // grazing the critical curve
+			cc := o.CriticalCurve(12)
+			q := cc[rng.IntN(len(cc))]
+			f := 1 + math.Pow(10, -2-6*rng.Float64())
+			al, be = q.Alpha*f, q.Beta*f
+		}
+		lambda, eta := o.constants(al, be)
+		var p Path
+		var in timingInput
+		o.trace(lambda, eta, be, 1, &p, &in)
+		if !in.ok || in.rad.cs != FourReal || p.Fate != Escaped {
+			continue
+		}
+		var rt radialTimer
+		rt.init(&in.q, &in.rad, a, lambda, o.horizon)
+		taus := []float64{0.1 * p.Turn, 0.5 * p.Turn, 0.97 * p.Turn, 1.2 * p.Turn, 1.9 * p.Turn}
+		if k := ellipK(rt.mc); k > rt.x0 && k < 2*rt.x0 {
+			taus = append(taus, k/rt.scale)
+			nearK++
+		}
+		for _, tau := range taus {
+			var jac pathJacobi
+			r := in.rad.eval(tau, &jac)
+			it, ip := rt.at(tau, r, &jac)
+			it2, ip2 := rt.at(tau, r, nil)
+			e := math.Max(timingErr(it, it2, r), timingErr(ip, ip2)) / (1 + extremalAllowance(a)*1e8)
+			worst = math.Max(worst, e)
+			count++
+			if e > 1e-11 {
+				t.Errorf("a=%v α=%v β=%v τ=%v (turn %v): addition %v %v, two evaluations %v %v", a, al, be, tau, p.Turn, it, ip, it2, ip2)
+			}
+		}
+	}
+	if nearK == 0 {
+		t.Error("no photon reached the quarter period after its turning point")
+	}
+	t.Logf("%d points (%d photons past K), worst relative difference %.2e", count, nearK, worst)
 }
