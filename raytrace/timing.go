@@ -267,6 +267,10 @@ type radialTimer struct {
 	haveComp bool
 	zc       float64
 	qc       [3]float64
+	// case II: 1 + γ cn at infinity for each pole, and the elementary
+	// terms of the integrals at infinity (see addII).
+	onegcInf [3]float64
+	einf     [5]float64
 }
 
 // init sets up rt, a zero radialTimer, for the photon with radial roots
@@ -568,39 +572,64 @@ func (rt *radialTimer) setupII(q *quartic, rad *radial) {
 			rt.g[i+1] = 0 // not used; keeps the other formulas finite
 		}
 	}
-	// Complete integrals at Y = K (φ = π/2).
+	// The characteristics of the Π parts (see jII): for γ² > 1,
+	// ν = m(γ² − 1)/γ² (1 − ν = mc + m/γ², m − ν = m/γ²); else
+	// N = γ²/(γ² − 1) < 0 (1 − N = 1/(1 − γ²), m − N = m + γ²/(1 − γ²)).
 	m, mc := rt.m, rt.mc
-	var ps [3]float64
 	ng := rt.numPoles()
 	for i := 0; i < ng; i++ {
 		g2 := rt.g[i] * rt.g[i]
+		var n, omn, mmn float64
 		if g2 > 1 {
-			ps[i] = mc + m/g2 // 1 − ν, ν = m(γ²−1)/γ²
+			n, omn, mmn = m*(g2-1)/g2, mc+m/g2, m/g2
 		} else {
-			ps[i] = 1 / (1 - g2) // 1 − N, N = γ²/(γ² − 1)
+			n, omn = g2/(g2-1), 1/(1-g2)
+			mmn = m - n
 		}
-	}
-	// R_D(0, mc, 1) = 3 cel(kc, 1, 0, 1), R_J(0, mc, 1, p) = 3 cel(kc, p, 0, 1)
-	// (kc² = mc; DLMF 19.25.1–19.25.2 with 19.2.11).
-	kc := math.Sqrt(mc)
-	rt.compRD = 3 * bulirschCel(kc, 1, 0, 1)
-	for i := 0; i < ng; i++ {
-		rt.compRJ[i] = 3 * bulirschCel(kc, ps[i], 0, 1)
+		rt.nch[i], rt.omn[i], rt.kk2[i] = n, omn, n*mmn*omn
 	}
 	// Infinity: cn = c0 = (A' − B')/(A' + B'), sn² = 4A'B'/(A'+B')².
 	c0 := (rt.apr - rt.bpr) / (rt.apr + rt.bpr)
 	s2 := 4 * ab / ((rt.apr + rt.bpr) * (rt.apr + rt.bpr))
 	d2 := mc + m*c0*c0
+	rt.s0, rt.c0, rt.d0 = math.Sqrt(s2), c0, math.Sqrt(d2)
+	for i := 0; i < ng; i++ {
+		if n := rt.nch[i]; n > 0 {
+			rt.on0[i] = d2 + m*s2/(rt.g[i]*rt.g[i]) // 1 − ν s0²
+		} else {
+			rt.on0[i] = 1 - n*s2
+		}
+	}
 	// 1 + γ cn at infinity for the poles r±: (r − c)(b0 + b1 cn)/p0 with
 	// (b0 + b1 cn)(r − a1/b1) = 2A'B'r21/b1 as r → ∞.
-	var onegc [3]float64
-	onegc[0] = 0
+	rt.onegcInf[0] = 0
 	for i := 1; i < ng; i++ {
-		onegc[i] = 2 * ab * rt.r21 / (rt.b1 * rt.p0[i])
+		rt.onegcInf[i] = 2 * ab * rt.r21 / (rt.b1 * rt.p0[i])
 	}
-	rt.inf = rt.jII(rt.x0, math.Sqrt(s2), c0, math.Sqrt(d2), onegc, true)
+	// The elementary terms at infinity (see addII).
+	var zero [3]float64
+	rt.einf = rt.combII(0, 0, zero, rt.s0, c0, rt.d0, rt.onegcInf, true, true)
 	// sqrt((r−r2)((r−re)² + im²)/(r−r1)) = r + (r1 − r2 − 2re)/2 + O(1/r).
 	rt.breg = (rt.r1 - rt.r2 - 2*rt.re) / 2
+}
+
+// completeII sets the complete integrals at Y = K (φ = π/2):
+// R_D(0, mc, 1) = 3 cel(kc, 1, 0, 1) and R_J(0, mc, 1, 1 − N) =
+// 3 cel(kc, 1 − N, 0, 1) (kc² = mc; DLMF 19.25.1–19.25.2 with 19.2.11).
+func (rt *radialTimer) completeII() {
+	rt.haveComp = true
+	kc := math.Sqrt(rt.mc)
+	rt.compRD = 3 * bulirschCel(kc, 1, 0, 1)
+	for i := 0; i < rt.numPoles(); i++ {
+		rt.compRJ[i] = 3 * bulirschCel(kc, rt.omn[i], 0, 1)
+	}
+}
+
+// infII sets rt.inf, the case-II integrals from Y = 0 to infinity, on
+// first need.
+func (rt *radialTimer) infII() {
+	rt.haveInf = true
+	rt.inf = rt.jII(rt.x0, rt.s0, rt.c0, rt.d0, rt.onegcInf, true)
 }
 
 func (rt *radialTimer) numPoles() int {
@@ -615,14 +644,15 @@ func (rt *radialTimer) numPoles() int {
 // each pole (index 0: infinity; ignored if reg, where the regularised
 // logarithm is used instead).
 func (rt *radialTimer) jII(y, sn, cn, dn float64, onegc [3]float64, reg bool) [5]float64 {
-	var out [5]float64
-	out[0] = y
-	m, mc := rt.m, rt.mc
+	m := rt.m
 	s2, c2, d2 := sn*sn, cn*cn, dn*dn
 	s3 := s2 * sn
 	eps := 1.0
 	if cn < 0 {
 		eps = -1
+		if !rt.haveComp {
+			rt.completeII()
+		}
 	}
 	ng := rt.numPoles()
 	var ps [3]float64
@@ -637,8 +667,31 @@ func (rt *radialTimer) jII(y, sn, cn, dn float64, onegc [3]float64, reg bool) [5
 	}
 	var rj [3]float64
 	rd := carlsonDJ(c2, d2, 1, ps[:ng], rj[:0])
-	// ∫₀^Y sn² = ε (s³/3) R_D(c², d², 1) + (1 − ε)(1/3) R_D(0, mc, 1).
+	// ∫₀^Y sn² = ε (s³/3) R_D(c², d², 1) + (1 − ε)(1/3) R_D(0, mc, 1), and
+	// likewise Q_N(Y) = (P_N(Y) − Y)/N with R_J.
 	dsn := (eps*s3*rd + (1-eps)*rt.compRD) / 3
+	var qv [3]float64
+	for i := 0; i < ng; i++ {
+		qv[i] = (eps*s3*rj[i] + (1-eps)*rt.compRJ[i]) / 3
+	}
+	return rt.combII(y, dsn, qv, sn, cn, dn, onegc, reg, true)
+}
+
+// combII returns the case-II integrals of jII from Y, ∫₀^Y sn² (dsn), the
+// Q_N(Y) of the Π parts (qv) and the elementary terms at the point (sn,
+// cn, dn, onegc, reg as for jII). They are linear in y, dsn, qv and the
+// elementary terms together; with elem false the elementary terms are
+// left out (see addII).
+func (rt *radialTimer) combII(y, dsn float64, qv [3]float64, sn, cn, dn float64, onegc [3]float64, reg, elem bool) [5]float64 {
+	var out [5]float64
+	out[0] = y
+	m, mc := rt.m, rt.mc
+	s2, c2, d2 := sn*sn, cn*cn, dn*dn
+	eps := 1.0
+	if cn < 0 {
+		eps = -1
+	}
+	ng := rt.numPoles()
 	var q [3]float64
 	for i := 0; i < ng; i++ {
 		g := rt.g[i]
@@ -646,41 +699,47 @@ func (rt *radialTimer) jII(y, sn, cn, dn float64, onegc [3]float64, reg bool) [5
 		p := 1 - g2
 		qc := m + g2*mc
 		var pi, om float64
-		if g2 > 1 {
-			nu := m * (g2 - 1) / g2
+		switch {
+		case g2 > 1 && !elem:
+			pi = -rt.nch[i] * qv[i]
+		case g2 > 1:
+			ps := d2 + m*s2/g2 // 1 − ν s²
 			x := c2 * d2
 			var rc, l1, l2 float64 // l1, l2: ln|1 + γ cn|, ln|γ cn − 1|
 			if reg && i == 0 {
 				// ln|y|, y = (1 − N s²)(1 − ν s²), 1 − N s² = (γcn−1)(γcn+1)/(γ²−1),
 				// with ln|1 + γ∞ cn| → its finite part (cn → −1/γ∞).
 				l1, l2 = rt.logInfFinite, math.Log(2)
-				logy := l1 + l2 - math.Log(g2-1) + math.Log(ps[i])
+				logy := l1 + l2 - math.Log(g2-1) + math.Log(ps)
 				rc = rcRegular(x) - 0.5*logy/math.Sqrt(x)
 			} else {
 				l1 = math.Log(math.Abs(onegc[i]))
 				l2 = math.Log(math.Abs(onegc[i] - 2))
-				rc = carlsonRC(x, onegc[i]*(onegc[i]-2)/(g2-1)*ps[i])
+				rc = carlsonRC(x, onegc[i]*(onegc[i]-2)/(g2-1)*ps)
 			}
-			pi = eps*(sn*rc-nu/3*s3*rj[i]) - (1-eps)*nu/3*rt.compRJ[i]
+			pi = eps*sn*rc - rt.nch[i]*qv[i]
 			// ω = −½ ln|(1+v)/(1−v)| / sqrt(−p Qc), v = (sn/dn) sqrt(Qc/−p),
 			// 1 − v² = (γcn − 1)(γcn + 1)/(dn² (γ² − 1)).
 			v := sn / dn * math.Sqrt(qc/-p)
 			l1mv2 := l1 + l2 - math.Log(d2*(g2-1))
 			om = -(math.Log1p(v) - 0.5*l1mv2) / math.Sqrt(-p*qc)
-		} else {
-			nn := g2 / (g2 - 1)
-			pi = y + nn/3*(eps*s3*rj[i]+(1-eps)*rt.compRJ[i])
-			w := sn / dn
-			om = math.Atan(w*math.Sqrt(qc/p)) / math.Sqrt(p*qc)
+		default:
+			pi = y + rt.nch[i]*qv[i]
+			if elem {
+				w := sn / dn
+				om = math.Atan(w*math.Sqrt(qc/p)) / math.Sqrt(p*qc)
+			}
 		}
 		q[i] = pi/p - g*om
 	}
 	out[1] = rt.a1/rt.b1*y + rt.coefInf*q[0]
 	// ∫ dY/(1 + cn) = sn dn/(1 + cn) + m ∫sn²; sn/(1 + cn) = (1 − cn)/sn.
 	var h float64
-	if cn >= 0 {
+	switch {
+	case !elem:
+	case cn >= 0:
 		h = sn * dn / (1 + cn)
-	} else {
+	default:
 		h = dn * (1 - cn) / sn
 	}
 	r1 := rt.r1
@@ -692,9 +751,11 @@ func (rt *radialTimer) jII(y, sn, cn, dn float64, onegc [3]float64, reg bool) [5
 			// ∫dY/(1 − cn) = −sn dn/(1 − cn) + m ∫sn² (shift Y by 2K in
 			// the formula for 1/(1 + cn)); sn/(1 − cn) = (1 + cn)/sn.
 			var g float64
-			if cn <= 0 {
+			switch {
+			case !elem:
+			case cn <= 0:
 				g = -sn * dn / (1 - cn)
-			} else {
+			default:
 				g = -dn * (1 + cn) / sn
 			}
 			out[i+2] = (-rt.b1*y + 2*rt.bpr*(g+m*dsn)) / (rt.apr * rt.r21)
@@ -763,9 +824,15 @@ func (rt *radialTimer) at(tau, r float64, jac *pathJacobi) (it, iphi float64) {
 		onegc[0] = bb / rt.b0
 		onegc[1] = (r - rt.rp) * bb / rt.p0[1]
 		onegc[2] = (r - rt.rm) * bb / rt.p0[2]
-		j = rt.jII(y, sn, cn, dn, onegc, false)
 		d1 := r - rt.re
 		bnd = math.Sqrt((r - rt.r2) * (d1*d1 + rt.im*rt.im) / (r - rt.r1))
+		if jac != nil {
+			return rt.finish(rt.addII(jac, onegc), sgn, bnd)
+		}
+		j = rt.jII(y, sn, cn, dn, onegc, false)
+		if !rt.haveInf {
+			rt.infII()
+		}
 	}
 	var iv [5]float64
 	for k := range iv {
@@ -792,6 +859,65 @@ func (rt *radialTimer) addI(jac *pathJacobi, sn, x, yc float64) [5]float64 {
 	}
 	for k := range iv {
 		iv[k] *= rt.iscale
+	}
+	return iv
+}
+
+// addII returns the case-II integrals of 1, r, r² (elliptic part) and
+// 1/(r − r±) from infinity to the point jac, in τ, with onegc as for jII:
+// J(X0) − J(Y) is the difference of the elementary terms (at infinity,
+// rt.einf, and at Y) plus the linear part (combII) of δ = X0 − Y and of
+// ΣZ = Z(δ) + t and ΣQ_N = Q_N(δ) + addQ(k², t, G), t = s_Y s_δ s_X0,
+// G = 1 − N s²_X0 + N s_Y s_δ c_X0 d_X0 (the addition theorems of sumsI;
+// the characteristics ν < m and N < 0 of jII have no poles).
+func (rt *radialTimer) addII(jac *pathJacobi, onegc [3]float64) [5]float64 {
+	sY := jac.sn
+	sd, cd, dd := jac.sd, jac.cd, jac.dd
+	m := rt.m
+	ng := rt.numPoles()
+	t := sY * sd * rt.s0
+	var sz float64
+	var sq [3]float64
+	if sd != 0 {
+		s2, c2, d2 := sd*sd, cd*cd, dd*dd
+		var ps [3]float64
+		for i := 0; i < ng; i++ {
+			g2 := rt.g[i] * rt.g[i]
+			if g2 > 1 {
+				ps[i] = d2 + m*s2/g2 // 1 − ν s²
+			} else {
+				ps[i] = (1 - g2*c2) / (1 - g2) // 1 − N s²
+			}
+		}
+		var rj [3]float64
+		rd := carlsonDJ(c2, d2, 1, ps[:ng], rj[:0])
+		s3 := s2 * sd / 3
+		z := s3 * rd
+		var q [3]float64
+		for i := 0; i < ng; i++ {
+			q[i] = s3 * rj[i]
+		}
+		if cd < 0 { // δ > K: Z(δ) = 2Z(K) − Z(2K − δ), likewise Q_N
+			if !rt.haveComp {
+				rt.completeII()
+			}
+			z = 2*rt.compRD/3 - z
+			for i := 0; i < ng; i++ {
+				q[i] = 2*rt.compRJ[i]/3 - q[i]
+			}
+		}
+		sz = z + t
+		for i := 0; i < ng; i++ {
+			g := rt.on0[i] + rt.nch[i]*sY*sd*rt.c0*rt.d0
+			sq[i] = q[i] + addQ(rt.kk2[i], t, g)
+		}
+	}
+	lin := rt.combII(jac.d, sz, sq, 0, 1, 1, onegc, false, false)
+	var zero [3]float64
+	ey := rt.combII(0, 0, zero, sY, jac.cn, jac.dn, onegc, false, true)
+	var iv [5]float64
+	for k := range iv {
+		iv[k] = (rt.einf[k] + lin[k] - ey[k]) * rt.iscale
 	}
 	return iv
 }

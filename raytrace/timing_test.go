@@ -508,40 +508,52 @@ func TestAdditionTheorems(t *testing.T) {
 	}
 }
 
-// TestTimingAdditionMatchesTwoEvaluations: for escaping photons with
-// four real roots, the radial integrals from infinity by the addition
-// theorems (one evaluation at the point, sumsI) agree with their
-// difference of two evaluations, at infinity and at the point, with
-// Jacobi functions computed afresh (the form used for later crossings
-// and captured photons), at points before and after the turning point,
-// including the quarter period K itself after it (where the addition
-// theorem's cn and dn of F0 + Y cancel and jacobi is used).
+// TestTimingAdditionMatchesTwoEvaluations: the radial integrals from
+// infinity by the addition theorems (one evaluation at the point: sumsI
+// for escaping photons with four real roots, addII for two real roots)
+// agree with their difference of two evaluations, at infinity and at the
+// point, with Jacobi functions computed afresh (the form used for later
+// crossings and captured four-root photons), at points before and after
+// the turning point, including the quarter period K itself (where the
+// addition theorem's cn and dn of F0 + Y cancel and jacobi is used, and
+// where case II passes from δ < K to δ > K).
 func TestTimingAdditionMatchesTwoEvaluations(t *testing.T) {
 	rng := rand.New(rand.NewPCG(5, 8))
-	worst, count, nearK := 0.0, 0, 0
-	for i := 0; i < 600; i++ {
+	worst, count, nearK, two := 0.0, 0, 0, 0
+	for i := 0; i < 900; i++ {
 		a := -0.999 + 1.998*rng.Float64()
 		o, _ := NewObserver(a, 5+170*rng.Float64())
 		al, be := -15+30*rng.Float64(), -15+30*rng.Float64()
-		if i%3 == 0 { // grazing the critical curve
+		if i%3 == 0 { // grazing the critical curve, outside and inside
 			cc := o.CriticalCurve(12)
 			q := cc[rng.IntN(len(cc))]
-			f := 1 + math.Pow(10, -2-6*rng.Float64())
+			f := 1 + math.Copysign(math.Pow(10, -2-6*rng.Float64()), rng.Float64()-0.5)
 			al, be = q.Alpha*f, q.Beta*f
 		}
 		lambda, eta := o.constants(al, be)
 		var p Path
 		var in timingInput
 		o.trace(lambda, eta, be, 1, &p, &in)
-		if !in.ok || in.rad.cs != FourReal || p.Fate != Escaped {
+		if !in.ok || (in.rad.cs == FourReal && p.Fate != Escaped) {
 			continue
 		}
 		var rt radialTimer
 		rt.init(&in.q, &in.rad, a, lambda, o.horizon)
-		taus := []float64{0.1 * p.Turn, 0.5 * p.Turn, 0.97 * p.Turn, 1.2 * p.Turn, 1.9 * p.Turn}
-		if k := ellipK(rt.mc); k > rt.x0 && k < 2*rt.x0 {
-			taus = append(taus, k/rt.scale)
-			nearK++
+		var taus []float64
+		k := ellipK(rt.mc)
+		if in.rad.cs == FourReal {
+			taus = []float64{0.1 * p.Turn, 0.5 * p.Turn, 0.97 * p.Turn, 1.2 * p.Turn, 1.9 * p.Turn}
+			if k > rt.x0 && k < 2*rt.x0 {
+				taus = append(taus, k/rt.scale)
+				nearK++
+			}
+		} else {
+			two++
+			taus = []float64{0.1 * p.Mino, 0.5 * p.Mino, 0.9 * p.Mino, 0.999 * p.Mino}
+			if k/rt.scale < p.Mino {
+				taus = append(taus, k/rt.scale)
+				nearK++
+			}
 		}
 		for _, tau := range taus {
 			var jac pathJacobi
@@ -556,8 +568,8 @@ func TestTimingAdditionMatchesTwoEvaluations(t *testing.T) {
 			}
 		}
 	}
-	if nearK == 0 {
-		t.Error("no photon reached the quarter period after its turning point")
+	if nearK == 0 || two == 0 {
+		t.Errorf("%d photons reached the quarter period, %d had two real roots", nearK, two)
 	}
-	t.Logf("%d points (%d photons past K), worst relative difference %.2e", count, nearK, worst)
+	t.Logf("%d points (%d photons with two real roots, %d past K), worst relative difference %.2e", count, two, nearK, worst)
 }
