@@ -50,7 +50,11 @@ type TimedPath struct {
 // 1/(r − r±); radialTimer expresses their integrals through Legendre's
 // integrals of the first, second and third kind, evaluated with Carlson's
 // R_F, R_D, R_J and R_C (carlson.go). The divergent ∫r² dτ and ∫r dτ are
-// regularised as described for Timing.
+// regularised as described for Timing. The integrals from infinity to
+// each of the first four crossings take one evaluation of R_D and the
+// R_J, at the Mino distance from infinity that the trace's r(τ) already
+// carries, through the addition theorems of the elliptic integrals
+// (radialTimer.sumsI, addII); none is spent at infinity itself.
 //
 // Accuracy: against an independent integration of the rates (see
 // IntegrateTimed and timing_test.go) about 1e-10 of the delay and 1e-9
@@ -217,6 +221,13 @@ const rootPoleGap = 1e-8
 // second-kind integral and a boundary term carrying the divergence r_o.
 // The logarithmic divergence of I₁ sits in one R_C (case I) or one
 // logarithm (case II), whose finite part gives the regularised value.
+//
+// Each integral from infinity is J(∞) ∓ J(Y) in the normal-form variable
+// Y of the case. For the crossings whose Jacobi functions trace passed on
+// (pathJacobi) it is added in one evaluation (sumsI, addII); otherwise
+// (crossings past the fourth, captured photons with four real roots) it
+// is the difference of the evaluations at the point (jI, jII) and at
+// infinity (inf, set on first need).
 type radialTimer struct {
 	cs       RootCase
 	cp, cm   float64 // C₊, C₋
@@ -253,17 +264,20 @@ type radialTimer struct {
 	atRoot       [3]bool    // case II: the pole r± sits on the root r2 (see setupII)
 	coefInf      float64    // 2A'B'r21/(b0 b1)
 	logInfFinite float64    // ln(2A'B'r21/(b0 b1)): finite part of ln(1 + γ∞ cn) at infinity
-	// inf is set on first need (infinity): case I escaping photons add
-	// the integrals from infinity instead (sumsI, addI).
+	// inf is set on first need (infII, infI): the additions from
+	// infinity (addI, addII) do without it.
 	haveInf bool
-	// case I, escaping photons (escI, addI): the regularised R_C at infinity,
-	// sn, cn, dn of F0, and for the characteristics N = ν, n₊, n₋:
-	// N, 1 − N, 1 − N sn²F0 and k² = N(m − N)(1 − N).
+	// The regularised R_C at infinity (case I), whether the photon
+	// escapes with four real roots (escI), sn, cn, dn at infinity (of F0,
+	// X0), and for the characteristics of the third kinds (case I: ν,
+	// n₊, n₋; case II: those of jII): N, 1 − N, 1 − N sn² at infinity and
+	// k² = N(m − N)(1 − N).
 	escI               bool
 	rcInf              float64
 	s0, c0, d0         float64
 	nch, omn, on0, kk2 [3]float64
-	// Complete integrals ∫₀^K sn² and (P_N(K) − K)/N, set on first need.
+	// Complete integrals, set on first need: case I ∫₀^K sn² and
+	// (P_N(K) − K)/N (zc, qc); case II compRD, compRJ.
 	haveComp bool
 	zc       float64
 	qc       [3]float64
