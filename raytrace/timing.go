@@ -50,15 +50,22 @@ type TimedPath struct {
 // 1/(r − r±); radialTimer expresses their integrals through Legendre's
 // integrals of the first, second and third kind, evaluated with Carlson's
 // R_F, R_D, R_J and R_C (carlson.go). The divergent ∫r² dτ and ∫r dτ are
-// regularised as described for Timing.
+// regularised as described for Timing. The integrals from infinity to
+// each of the first four crossings take one evaluation of R_D and the
+// R_J, at the Mino distance from infinity that the trace's r(τ) already
+// carries, through the addition theorems of the elliptic integrals
+// (radialTimer.sumsI, addII); none is spent at infinity itself.
 //
 // Accuracy: against an independent integration of the rates (see
 // IntegrateTimed and timing_test.go) about 1e-10 of the delay and 1e-9
 // rad, except near extremality, where the coefficients C±, A± grow like
 // 1/(r₊ − r₋) with opposite signs and magnify the rounding of I±: the
 // error grows to about 1e-12/(r₊ − r₋) of the size (1e-6 at
-// |a| = 1 − 1e-12); and on the critical curve itself, where the crossings
-// are ambiguous.
+// |a| = 1 − 1e-12); for captured photons with four real roots near
+// extremality, whose integrals are still a difference of two evaluations
+// (radialTimer), where it reaches 2e-4 of the delay at a crossing 1e-6
+// from the horizon (measured at a = −(1 − 1e-9), θo = 90°); and on the
+// critical curve itself, where the crossings are ambiguous.
 func (o Observer) TraceTimed(alpha, beta float64, orders int, tp *TimedPath) {
 	o = o.resolved()
 	lambda, eta := o.constants(alpha, beta)
@@ -217,6 +224,13 @@ const rootPoleGap = 1e-8
 // second-kind integral and a boundary term carrying the divergence r_o.
 // The logarithmic divergence of I₁ sits in one R_C (case I) or one
 // logarithm (case II), whose finite part gives the regularised value.
+//
+// Each integral from infinity is J(∞) ∓ J(Y) in the normal-form variable
+// Y of the case. For the crossings whose Jacobi functions trace passed on
+// (pathJacobi) it is added in one evaluation (sumsI, addII); otherwise
+// (crossings past the fourth, captured photons with four real roots) it
+// is the difference of the evaluations at the point (jI, jII) and at
+// infinity (inf, set on first need).
 type radialTimer struct {
 	cs       RootCase
 	cp, cm   float64 // C₊, C₋
@@ -253,6 +267,27 @@ type radialTimer struct {
 	atRoot       [3]bool    // case II: the pole r± sits on the root r2 (see setupII)
 	coefInf      float64    // 2A'B'r21/(b0 b1)
 	logInfFinite float64    // ln(2A'B'r21/(b0 b1)): finite part of ln(1 + γ∞ cn) at infinity
+	// inf is set on first need (infII, infI): the additions from
+	// infinity (addI, addII) do without it.
+	haveInf bool
+	// The regularised R_C at infinity (case I), whether the photon
+	// escapes with four real roots (escI), sn, cn, dn at infinity (of F0,
+	// X0), and for the characteristics of the third kinds (case I: ν,
+	// n₊, n₋; case II: those of jII): N, 1 − N, 1 − N sn² at infinity and
+	// k² = N(m − N)(1 − N).
+	escI               bool
+	rcInf              float64
+	s0, c0, d0         float64
+	nch, omn, on0, kk2 [3]float64
+	// Complete integrals, set on first need: case I ∫₀^K sn² and
+	// (P_N(K) − K)/N (zc, qc); case II compRD, compRJ.
+	haveComp bool
+	zc       float64
+	qc       [3]float64
+	// case II: 1 + γ cn at infinity for each pole, and the elementary
+	// terms of the integrals at infinity (see addII).
+	onegcInf [3]float64
+	einf     [5]float64
 }
 
 // init sets up rt, a zero radialTimer, for the photon with radial roots
@@ -307,17 +342,181 @@ func (rt *radialTimer) setupI(q *quartic, rad *radial) {
 	rt.k2 = rt.r31 * rt.r32 / 2
 	rt.q431, rt.q432 = rt.r43/rt.r31, rt.r43/rt.r42
 	// Infinity: s² = r31/r41, c² = r43/r41, d² = r43/r42.
-	s2 := rt.r31 / rt.r41
 	c2 := rt.r43 / rt.r41
 	d2 := rt.r43 / rt.r42
 	onu := rt.r43 * (rt.r31 + rt.r42) / (rt.r41 * rt.r42) // 1 − ν s²
 	// ln y = ln r43 + ln(1 − νs²) − ln(r − r3): keep the finite part,
 	// R_C → [ln(2√x) − ½ ln(r43 (1 − νs²))]/√x = ½ ln(4x/(r43 (1 − νs²)))/√x
 	// with x = c²d² = r43²/(r41 r42) (rcRegular).
-	rcInf := 0.5 * math.Log(4*rt.r43/(rt.r41*rt.r42*onu)) / math.Sqrt(c2*d2)
-	rt.inf = rt.jI(rt.x0, s2, c2, d2, onu, rt.r43*rt.id4p, rt.r43*rt.id4m, rcInf, true)
+	rt.rcInf = 0.5 * math.Log(4*rt.r43/(rt.r41*rt.r42*onu)) / math.Sqrt(c2*d2)
 	// sqrt((r−r1)(r−r2)(r−r4)/(r−r3)) = r + (r3 − r1 − r2 − r4)/2 + O(1/r).
 	rt.breg = (rt.r3 - rt.r1 - rt.r2 - rt.r4) / 2
+	if math.IsInf(rad.turn, 1) {
+		return // captured: from J(F0) − J(Y) (infI)
+	}
+	// Escaping photons: the characteristics ν and n± = n (r3 − r±)/d₄±,
+	// with 1 − N, m − N and 1 − N s0² written without cancellation:
+	// 1 − ν = r43/r42, m − ν = m r43/r41, 1 − ν s0² = onu;
+	// 1 − n_c = r43 (c − r1)/(r31 d₄), m − n_c = r41 r43 (c − r2)/(r31 r42 d₄),
+	// 1 − n_c s0² = r43/d₄.
+	rt.escI = true
+	rt.s0, rt.c0, rt.d0 = rad.sn0, rad.cn0, rad.dn0
+	rt.nch[0], rt.omn[0], rt.on0[0] = rt.nu, rt.q432, onu
+	rt.kk2[0] = rt.nu * (rt.m * rt.r43 / rt.r41) * rt.q432
+	for i, c := range [2]float64{rt.rp, rt.rm} {
+		id4 := rt.id4p
+		if i == 1 {
+			id4 = rt.id4m
+		}
+		nc := rt.n * (rt.r3 - c) * id4
+		omn := rt.r43 * (c - rt.r1) / rt.r31 * id4
+		mmn := rt.r41 * rt.r43 * (c - rt.r2) / (rt.r31 * rt.r42) * id4
+		rt.nch[i+1], rt.omn[i+1], rt.on0[i+1] = nc, omn, rt.r43*id4
+		rt.kk2[i+1] = nc * mmn * omn
+	}
+}
+
+// infI sets rt.inf, the case-I integrals from the turning point to
+// infinity (Y = F0), on first need.
+func (rt *radialTimer) infI() {
+	rt.haveInf = true
+	s2 := rt.r31 / rt.r41
+	c2 := rt.r43 / rt.r41
+	d2 := rt.r43 / rt.r42
+	onu := rt.r43 * (rt.r31 + rt.r42) / (rt.r41 * rt.r42)
+	rt.inf = rt.jI(rt.x0, s2, c2, d2, onu, rt.r43*rt.id4p, rt.r43*rt.id4m, rt.rcInf, true)
+}
+
+// The case-I integrals from infinity to a point of an escaping photon's
+// path, without their value at infinity. With P_N(u) = ∫₀^u dX/(1 − N sn²X)
+// and Z(u) = ∫₀^u sn²X dX, the addition theorems
+//
+//	Z(u+v) = Z(u) + Z(v) + s_u s_v s_w
+//	P_N(u+v) = P_N(u) + P_N(v) + N t R_C(G², G² − k² t²)
+//
+// with w = u + v, t = s_u s_v s_w, G = 1 − N s_w² + N s_u s_v c_w d_w,
+// k² = N(m − N)(1 − N) (for k² < 0 the R_C term is N arctan2(|k| t, G)/|k|)
+// (Z: DLMF 22.16.27 for Jacobi's epsilon function, ℰ = u − mZ; P_N: Jacobi's
+// addition theorem for the third kind, Whittaker & Watson 1927, §22.741,
+// with N = m sn²a written without a) turn the integral from infinity
+// (Y = F0) to the point Y into one evaluation: before the turning point,
+// J(F0) − J(Y) = J(δ) + D(Y, δ) with δ = F0 − Y the distance from
+// infinity that trace's r(τ) already carries; after it,
+// J(F0) + J(Y) = J(F0 + Y) − D(F0, Y). The pole at infinity stays in
+// the elementary R_C of Π(n) (see setupI), which is evaluated at both
+// ends as before; the ν part has no pole (ν < m), and neither do n± for
+// r1 < r± < r4: on 0 ≤ u ≤ 2K the radius of sn u covers only r ≥ r4 and
+// r ≤ r1. For u > K, Z(u) = 2Z(K) − Z(2K − u) and likewise P_N, the
+// complete values by Bulirsch's cel.
+
+// addQ returns the addition term of P_N divided by N: t R_C(G², G² − k²t²),
+// t ≥ 0, G the G of the addition theorem.
+func addQ(k2, t, G float64) float64 {
+	if t == 0 {
+		return 0
+	}
+	if k2 < 0 {
+		k := math.Sqrt(-k2)
+		return math.Atan2(k*t, G) / k
+	}
+	g2 := G * G
+	return t * carlsonRC(g2, g2-k2*t*t)
+}
+
+// completeI sets the complete integrals Z(K) and (P_N(K) − K)/N =
+// R_J(0, 1 − m, 1, 1 − N)/3 (DLMF 19.25.2), by cel (see bulirschCel).
+func (rt *radialTimer) completeI() {
+	rt.haveComp = true
+	kc := math.Sqrt(rt.mc)
+	rt.zc = bulirschCel(kc, 1, 0, 1)
+	for i := 0; i < rt.numPoles(); i++ {
+		rt.qc[i] = bulirschCel(kc, rt.omn[i], 0, 1)
+	}
+}
+
+// sumsI returns, for an escaping case-I photon, Σy, ΣZ and ΣQ_N
+// (Q_N = (P_N − y)/N): the integrals of 1, sn² and the third kinds from
+// infinity to the point jac (see the addition theorems above).
+func (rt *radialTimer) sumsI(jac *pathJacobi) (sy, sz float64, sq [3]float64) {
+	sY, cY, dY := jac.sn, jac.cn, jac.dn
+	s0, c0, d0 := rt.s0, rt.c0, rt.d0
+	var u, su, cu, du float64
+	var t, sg float64
+	var gg [3]float64 // G − (1 − N s_w²) = N s_u s_v c_w d_w, without N
+	ng := rt.numPoles()
+	if jac.sgn < 0 {
+		// Before the turning point: u = δ, v = Y, w = F0.
+		u, su, cu, du = jac.d, jac.sd, jac.cd, jac.dd
+		t = sY * su * s0
+		sg = 1
+		for i := 0; i < ng; i++ {
+			gg[i] = rt.on0[i] + rt.nch[i]*sY*su*c0*d0
+		}
+	} else {
+		// After it: u = F0, v = Y, w = F0 + Y, whose sn, cn, dn follow
+		// from those of F0 and Y (DLMF 22.8.1–3); below, su, cu, du
+		// are those of w.
+		// cn and dn of u lose digits near u = K; take them from jacobi
+		// where they would cancel by more than 4.
+		u = rt.x0 + jac.y
+		den := dY*dY + rt.m*c0*c0*sY*sY // 1 − m s0² sY²
+		a, b := c0*cY, s0*sY*d0*dY
+		e, f := d0*dY, rt.m*s0*sY*c0*cY
+		if math.Abs(a-b) >= 0.25*max(a, b) && e-f >= 0.25*e {
+			su = (s0*cY*dY + sY*c0*d0) / den
+			cu = (a - b) / den
+			du = (e - f) / den
+		} else {
+			su, cu, du = jacobi(u, rt.m, rt.mc)
+		}
+		t = s0 * sY * su
+		sg = -1
+		for i := 0; i < ng; i++ {
+			n := rt.nch[i]
+			var onw float64 // 1 − N s_w²
+			if n > 0 {
+				onw = rt.omn[i] + n*cu*cu
+			} else {
+				onw = 1 - n*su*su
+			}
+			gg[i] = onw + n*s0*sY*cu*du
+		}
+	}
+	sy = u
+	if su == 0 {
+		return sy, 0, sq
+	}
+	s2, c2, d2 := su*su, cu*cu, du*du
+	var ps [3]float64
+	for i := 0; i < ng; i++ {
+		if n := rt.nch[i]; n > 0 {
+			ps[i] = rt.omn[i] + n*c2 // 1 − N s², N < 1
+		} else {
+			ps[i] = 1 - n*s2
+		}
+	}
+	var rj [3]float64
+	rd := carlsonDJ(c2, d2, 1, ps[:ng], rj[:0])
+	s3 := s2 * su / 3
+	z := s3 * rd
+	var q [3]float64
+	for i := 0; i < ng; i++ {
+		q[i] = s3 * rj[i]
+	}
+	if cu < 0 {
+		if !rt.haveComp {
+			rt.completeI()
+		}
+		z = 2*rt.zc - z
+		for i := 0; i < ng; i++ {
+			q[i] = 2*rt.qc[i] - q[i]
+		}
+	}
+	sz = z + sg*t
+	for i := 0; i < ng; i++ {
+		sq[i] = q[i] + sg*addQ(rt.kk2[i], t, gg[i])
+	}
+	return sy, sz, sq
 }
 
 // jI returns the case-I integrals ∫₀^Y of 1, r, r² (elliptic part), and
@@ -390,39 +589,64 @@ func (rt *radialTimer) setupII(q *quartic, rad *radial) {
 			rt.g[i+1] = 0 // not used; keeps the other formulas finite
 		}
 	}
-	// Complete integrals at Y = K (φ = π/2).
+	// The characteristics of the Π parts (see jII): for γ² > 1,
+	// ν = m(γ² − 1)/γ² (1 − ν = mc + m/γ², m − ν = m/γ²); else
+	// N = γ²/(γ² − 1) < 0 (1 − N = 1/(1 − γ²), m − N = m + γ²/(1 − γ²)).
 	m, mc := rt.m, rt.mc
-	var ps [3]float64
 	ng := rt.numPoles()
 	for i := 0; i < ng; i++ {
 		g2 := rt.g[i] * rt.g[i]
+		var n, omn, mmn float64
 		if g2 > 1 {
-			ps[i] = mc + m/g2 // 1 − ν, ν = m(γ²−1)/γ²
+			n, omn, mmn = m*(g2-1)/g2, mc+m/g2, m/g2
 		} else {
-			ps[i] = 1 / (1 - g2) // 1 − N, N = γ²/(γ² − 1)
+			n, omn = g2/(g2-1), 1/(1-g2)
+			mmn = m - n
 		}
-	}
-	// R_D(0, mc, 1) = 3 cel(kc, 1, 0, 1), R_J(0, mc, 1, p) = 3 cel(kc, p, 0, 1)
-	// (kc² = mc; DLMF 19.25.1–19.25.2 with 19.2.11).
-	kc := math.Sqrt(mc)
-	rt.compRD = 3 * bulirschCel(kc, 1, 0, 1)
-	for i := 0; i < ng; i++ {
-		rt.compRJ[i] = 3 * bulirschCel(kc, ps[i], 0, 1)
+		rt.nch[i], rt.omn[i], rt.kk2[i] = n, omn, n*mmn*omn
 	}
 	// Infinity: cn = c0 = (A' − B')/(A' + B'), sn² = 4A'B'/(A'+B')².
 	c0 := (rt.apr - rt.bpr) / (rt.apr + rt.bpr)
 	s2 := 4 * ab / ((rt.apr + rt.bpr) * (rt.apr + rt.bpr))
 	d2 := mc + m*c0*c0
+	rt.s0, rt.c0, rt.d0 = math.Sqrt(s2), c0, math.Sqrt(d2)
+	for i := 0; i < ng; i++ {
+		if n := rt.nch[i]; n > 0 {
+			rt.on0[i] = d2 + m*s2/(rt.g[i]*rt.g[i]) // 1 − ν s0²
+		} else {
+			rt.on0[i] = 1 - n*s2
+		}
+	}
 	// 1 + γ cn at infinity for the poles r±: (r − c)(b0 + b1 cn)/p0 with
 	// (b0 + b1 cn)(r − a1/b1) = 2A'B'r21/b1 as r → ∞.
-	var onegc [3]float64
-	onegc[0] = 0
+	rt.onegcInf[0] = 0
 	for i := 1; i < ng; i++ {
-		onegc[i] = 2 * ab * rt.r21 / (rt.b1 * rt.p0[i])
+		rt.onegcInf[i] = 2 * ab * rt.r21 / (rt.b1 * rt.p0[i])
 	}
-	rt.inf = rt.jII(rt.x0, math.Sqrt(s2), c0, math.Sqrt(d2), onegc, true)
+	// The elementary terms at infinity (see addII).
+	var zero [3]float64
+	rt.einf = rt.combII(0, 0, zero, rt.s0, c0, rt.d0, rt.onegcInf, true, true)
 	// sqrt((r−r2)((r−re)² + im²)/(r−r1)) = r + (r1 − r2 − 2re)/2 + O(1/r).
 	rt.breg = (rt.r1 - rt.r2 - 2*rt.re) / 2
+}
+
+// completeII sets the complete integrals at Y = K (φ = π/2):
+// R_D(0, mc, 1) = 3 cel(kc, 1, 0, 1) and R_J(0, mc, 1, 1 − N) =
+// 3 cel(kc, 1 − N, 0, 1) (kc² = mc; DLMF 19.25.1–19.25.2 with 19.2.11).
+func (rt *radialTimer) completeII() {
+	rt.haveComp = true
+	kc := math.Sqrt(rt.mc)
+	rt.compRD = 3 * bulirschCel(kc, 1, 0, 1)
+	for i := 0; i < rt.numPoles(); i++ {
+		rt.compRJ[i] = 3 * bulirschCel(kc, rt.omn[i], 0, 1)
+	}
+}
+
+// infII sets rt.inf, the case-II integrals from Y = 0 to infinity, on
+// first need.
+func (rt *radialTimer) infII() {
+	rt.haveInf = true
+	rt.inf = rt.jII(rt.x0, rt.s0, rt.c0, rt.d0, rt.onegcInf, true)
 }
 
 func (rt *radialTimer) numPoles() int {
@@ -437,14 +661,15 @@ func (rt *radialTimer) numPoles() int {
 // each pole (index 0: infinity; ignored if reg, where the regularised
 // logarithm is used instead).
 func (rt *radialTimer) jII(y, sn, cn, dn float64, onegc [3]float64, reg bool) [5]float64 {
-	var out [5]float64
-	out[0] = y
-	m, mc := rt.m, rt.mc
+	m := rt.m
 	s2, c2, d2 := sn*sn, cn*cn, dn*dn
 	s3 := s2 * sn
 	eps := 1.0
 	if cn < 0 {
 		eps = -1
+		if !rt.haveComp {
+			rt.completeII()
+		}
 	}
 	ng := rt.numPoles()
 	var ps [3]float64
@@ -459,8 +684,31 @@ func (rt *radialTimer) jII(y, sn, cn, dn float64, onegc [3]float64, reg bool) [5
 	}
 	var rj [3]float64
 	rd := carlsonDJ(c2, d2, 1, ps[:ng], rj[:0])
-	// ∫₀^Y sn² = ε (s³/3) R_D(c², d², 1) + (1 − ε)(1/3) R_D(0, mc, 1).
+	// ∫₀^Y sn² = ε (s³/3) R_D(c², d², 1) + (1 − ε)(1/3) R_D(0, mc, 1), and
+	// likewise Q_N(Y) = (P_N(Y) − Y)/N with R_J.
 	dsn := (eps*s3*rd + (1-eps)*rt.compRD) / 3
+	var qv [3]float64
+	for i := 0; i < ng; i++ {
+		qv[i] = (eps*s3*rj[i] + (1-eps)*rt.compRJ[i]) / 3
+	}
+	return rt.combII(y, dsn, qv, sn, cn, dn, onegc, reg, true)
+}
+
+// combII returns the case-II integrals of jII from Y, ∫₀^Y sn² (dsn), the
+// Q_N(Y) of the Π parts (qv) and the elementary terms at the point (sn,
+// cn, dn, onegc, reg as for jII). They are linear in y, dsn, qv and the
+// elementary terms together; with elem false the elementary terms are
+// left out (see addII).
+func (rt *radialTimer) combII(y, dsn float64, qv [3]float64, sn, cn, dn float64, onegc [3]float64, reg, elem bool) [5]float64 {
+	var out [5]float64
+	out[0] = y
+	m, mc := rt.m, rt.mc
+	s2, c2, d2 := sn*sn, cn*cn, dn*dn
+	eps := 1.0
+	if cn < 0 {
+		eps = -1
+	}
+	ng := rt.numPoles()
 	var q [3]float64
 	for i := 0; i < ng; i++ {
 		g := rt.g[i]
@@ -468,41 +716,47 @@ func (rt *radialTimer) jII(y, sn, cn, dn float64, onegc [3]float64, reg bool) [5
 		p := 1 - g2
 		qc := m + g2*mc
 		var pi, om float64
-		if g2 > 1 {
-			nu := m * (g2 - 1) / g2
+		switch {
+		case g2 > 1 && !elem:
+			pi = -rt.nch[i] * qv[i]
+		case g2 > 1:
+			ps := d2 + m*s2/g2 // 1 − ν s²
 			x := c2 * d2
 			var rc, l1, l2 float64 // l1, l2: ln|1 + γ cn|, ln|γ cn − 1|
 			if reg && i == 0 {
 				// ln|y|, y = (1 − N s²)(1 − ν s²), 1 − N s² = (γcn−1)(γcn+1)/(γ²−1),
 				// with ln|1 + γ∞ cn| → its finite part (cn → −1/γ∞).
 				l1, l2 = rt.logInfFinite, math.Log(2)
-				logy := l1 + l2 - math.Log(g2-1) + math.Log(ps[i])
+				logy := l1 + l2 - math.Log(g2-1) + math.Log(ps)
 				rc = rcRegular(x) - 0.5*logy/math.Sqrt(x)
 			} else {
 				l1 = math.Log(math.Abs(onegc[i]))
 				l2 = math.Log(math.Abs(onegc[i] - 2))
-				rc = carlsonRC(x, onegc[i]*(onegc[i]-2)/(g2-1)*ps[i])
+				rc = carlsonRC(x, onegc[i]*(onegc[i]-2)/(g2-1)*ps)
 			}
-			pi = eps*(sn*rc-nu/3*s3*rj[i]) - (1-eps)*nu/3*rt.compRJ[i]
+			pi = eps*sn*rc - rt.nch[i]*qv[i]
 			// ω = −½ ln|(1+v)/(1−v)| / sqrt(−p Qc), v = (sn/dn) sqrt(Qc/−p),
 			// 1 − v² = (γcn − 1)(γcn + 1)/(dn² (γ² − 1)).
 			v := sn / dn * math.Sqrt(qc/-p)
 			l1mv2 := l1 + l2 - math.Log(d2*(g2-1))
 			om = -(math.Log1p(v) - 0.5*l1mv2) / math.Sqrt(-p*qc)
-		} else {
-			nn := g2 / (g2 - 1)
-			pi = y + nn/3*(eps*s3*rj[i]+(1-eps)*rt.compRJ[i])
-			w := sn / dn
-			om = math.Atan(w*math.Sqrt(qc/p)) / math.Sqrt(p*qc)
+		default:
+			pi = y + rt.nch[i]*qv[i]
+			if elem {
+				w := sn / dn
+				om = math.Atan(w*math.Sqrt(qc/p)) / math.Sqrt(p*qc)
+			}
 		}
 		q[i] = pi/p - g*om
 	}
 	out[1] = rt.a1/rt.b1*y + rt.coefInf*q[0]
 	// ∫ dY/(1 + cn) = sn dn/(1 + cn) + m ∫sn²; sn/(1 + cn) = (1 − cn)/sn.
 	var h float64
-	if cn >= 0 {
+	switch {
+	case !elem:
+	case cn >= 0:
 		h = sn * dn / (1 + cn)
-	} else {
+	default:
 		h = dn * (1 - cn) / sn
 	}
 	r1 := rt.r1
@@ -514,9 +768,11 @@ func (rt *radialTimer) jII(y, sn, cn, dn float64, onegc [3]float64, reg bool) [5
 			// ∫dY/(1 − cn) = −sn dn/(1 − cn) + m ∫sn² (shift Y by 2K in
 			// the formula for 1/(1 + cn)); sn/(1 − cn) = (1 + cn)/sn.
 			var g float64
-			if cn <= 0 {
+			switch {
+			case !elem:
+			case cn <= 0:
 				g = -sn * dn / (1 - cn)
-			} else {
+			default:
 				g = -dn * (1 + cn) / sn
 			}
 			out[i+2] = (-rt.b1*y + 2*rt.bpr*(g+m*dsn)) / (rt.apr * rt.r21)
@@ -559,11 +815,17 @@ func (rt *radialTimer) at(tau, r float64, jac *pathJacobi) (it, iphi float64) {
 			onn = rt.r43 / (r - rt.r3)
 		}
 		onu := rt.q432 + rt.nu*c2
+		// sqrt(R)/(r − r3) with (r − r4)/(r − r3) = n s².
+		bnd = math.Sqrt((r-rt.r1)*(r-rt.r2)*rt.n) * sn
+		if rt.escI && jac != nil {
+			return rt.finish(rt.addI(jac, sn, c2*dn*dn, onn*onu), sgn, bnd)
+		}
 		onp := (r - rt.rp) * onn * rt.id4p
 		onm := (r - rt.rm) * onn * rt.id4m
 		j = rt.jI(y, s2, c2, dn*dn, onu, onp, onm, onn*onu, false)
-		// sqrt(R)/(r − r3) with (r − r4)/(r − r3) = n s².
-		bnd = math.Sqrt((r-rt.r1)*(r-rt.r2)*rt.n) * sn
+		if !rt.haveInf {
+			rt.infI()
+		}
 	default:
 		var y, sn, cn, dn float64
 		if jac != nil {
@@ -579,14 +841,107 @@ func (rt *radialTimer) at(tau, r float64, jac *pathJacobi) (it, iphi float64) {
 		onegc[0] = bb / rt.b0
 		onegc[1] = (r - rt.rp) * bb / rt.p0[1]
 		onegc[2] = (r - rt.rm) * bb / rt.p0[2]
-		j = rt.jII(y, sn, cn, dn, onegc, false)
 		d1 := r - rt.re
 		bnd = math.Sqrt((r - rt.r2) * (d1*d1 + rt.im*rt.im) / (r - rt.r1))
+		if jac != nil {
+			return rt.finish(rt.addII(jac, onegc), sgn, bnd)
+		}
+		j = rt.jII(y, sn, cn, dn, onegc, false)
+		if !rt.haveInf {
+			rt.infII()
+		}
 	}
 	var iv [5]float64
 	for k := range iv {
 		iv[k] = (rt.inf[k] + sgn*j[k]) * rt.iscale
 	}
+	return rt.finish(iv, sgn, bnd)
+}
+
+// addI returns the case-I integrals of 1, r, r² (elliptic part) and
+// 1/(r − r±) from infinity to the point jac of an escaping photon, in τ
+// (see sumsI), given sn Y, c²d² and (1 − n s²)(1 − ν s²) of the point
+// (the R_C of Π(n), see setupI).
+func (rt *radialTimer) addI(jac *pathJacobi, sn, x, yc float64) [5]float64 {
+	sy, sz, sq := rt.sumsI(jac)
+	// Π(n) from infinity: the R_C part at both ends, minus ν ΣQ_ν.
+	pin := rt.s0*rt.rcInf + jac.sgn*sn*carlsonRC(x, yc) - rt.nu*sq[0]
+	var iv [5]float64
+	iv[0] = sy
+	iv[1] = rt.r3*sy + rt.r43*pin
+	iv[2] = rt.r3*rt.r3*sy - rt.k2*(sy-rt.n*sz)
+	iv[3] = sy*rt.id4p - 3*rt.kp*sq[1]
+	if !rt.skipM {
+		iv[4] = sy*rt.id4m - 3*rt.km*sq[2]
+	}
+	for k := range iv {
+		iv[k] *= rt.iscale
+	}
+	return iv
+}
+
+// addII returns the case-II integrals of 1, r, r² (elliptic part) and
+// 1/(r − r±) from infinity to the point jac, in τ, with onegc as for jII:
+// J(X0) − J(Y) is the difference of the elementary terms (at infinity,
+// rt.einf, and at Y) plus the linear part (combII) of δ = X0 − Y and of
+// ΣZ = Z(δ) + t and ΣQ_N = Q_N(δ) + addQ(k², t, G), t = s_Y s_δ s_X0,
+// G = 1 − N s²_X0 + N s_Y s_δ c_X0 d_X0 (the addition theorems of sumsI;
+// the characteristics ν < m and N < 0 of jII have no poles).
+func (rt *radialTimer) addII(jac *pathJacobi, onegc [3]float64) [5]float64 {
+	sY := jac.sn
+	sd, cd, dd := jac.sd, jac.cd, jac.dd
+	m := rt.m
+	ng := rt.numPoles()
+	t := sY * sd * rt.s0
+	var sz float64
+	var sq [3]float64
+	if sd != 0 {
+		s2, c2, d2 := sd*sd, cd*cd, dd*dd
+		var ps [3]float64
+		for i := 0; i < ng; i++ {
+			g2 := rt.g[i] * rt.g[i]
+			if g2 > 1 {
+				ps[i] = d2 + m*s2/g2 // 1 − ν s²
+			} else {
+				ps[i] = (1 - g2*c2) / (1 - g2) // 1 − N s²
+			}
+		}
+		var rj [3]float64
+		rd := carlsonDJ(c2, d2, 1, ps[:ng], rj[:0])
+		s3 := s2 * sd / 3
+		z := s3 * rd
+		var q [3]float64
+		for i := 0; i < ng; i++ {
+			q[i] = s3 * rj[i]
+		}
+		if cd < 0 { // δ > K: Z(δ) = 2Z(K) − Z(2K − δ), likewise Q_N
+			if !rt.haveComp {
+				rt.completeII()
+			}
+			z = 2*rt.compRD/3 - z
+			for i := 0; i < ng; i++ {
+				q[i] = 2*rt.compRJ[i]/3 - q[i]
+			}
+		}
+		sz = z + t
+		for i := 0; i < ng; i++ {
+			g := rt.on0[i] + rt.nch[i]*sY*sd*rt.c0*rt.d0
+			sq[i] = q[i] + addQ(rt.kk2[i], t, g)
+		}
+	}
+	lin := rt.combII(jac.d, sz, sq, 0, 1, 1, onegc, false, false)
+	var zero [3]float64
+	ey := rt.combII(0, 0, zero, sY, jac.cn, jac.dn, onegc, false, true)
+	var iv [5]float64
+	for k := range iv {
+		iv[k] = (rt.einf[k] + lin[k] - ey[k]) * rt.iscale
+	}
+	return iv
+}
+
+// finish combines the integrals iv (in τ) into I_t and I_φ, with the
+// boundary term bnd of I₂ taken with sign sgn.
+func (rt *radialTimer) finish(iv [5]float64, sgn, bnd float64) (it, iphi float64) {
 	i2 := iv[2] + rt.breg + sgn*bnd
 	it = i2 + 2*iv[1] + 4*iv[0] + rt.cp*iv[3]
 	iphi = rt.ap * iv[3]

@@ -1,9 +1,12 @@
 package raytrace
 
 import (
+	"fmt"
 	"math"
 	"math/rand/v2"
 	"testing"
+
+	"gonum.org/v1/gonum/integrate/quad"
 )
 
 // timingScale is the size against which a time or azimuth error is judged:
@@ -222,6 +225,88 @@ func TestTimingNearExtremal(t *testing.T) {
 		}
 	}
 	t.Logf("%d near-extremal rays, worst error %.2e of the allowance", count, worst*1e8)
+}
+
+// TestTimingNearExtremalCounterRotating: rays just outside the vertical
+// piece of the shadow edge of a counter-rotating near-extremal hole, at
+// α ≈ +2/sin θo (the mirror image of the a → 1 edge, Bardeen 1973),
+// whose crossings lie near the horizon and whose integrals from infinity
+// pass close to the turning point r4 ≈ r₊, against the integrator.
+func TestTimingNearExtremalCounterRotating(t *testing.T) {
+	rng := rand.New(rand.NewPCG(78, 2))
+	worst, count := 0.0, 0
+	for _, a := range []float64{-(1 - 1e-12), -(1 - 1e-9), -(1 - 2e-7)} {
+		for _, inc := range []float64{17, 60, 85, 90, 120} {
+			o, err := NewObserver(a, inc)
+			if err != nil {
+				t.Fatal(err)
+			}
+			n := 16
+			if testing.Short() {
+				n = 4
+			}
+			for i := 0; i < n; i++ {
+				al := 2/o.SinInclination() + 0.05*rng.Float64()
+				be := -1.5 + 3*rng.Float64()
+				if i%2 == 1 { // near the middle of the piece: |α − 2/sin θo| < 1.5e-3, |β| < 0.02
+					al = 2/o.SinInclination() + 1.5e-3*(2*rng.Float64()-1)
+					be = -0.02 + 0.04*rng.Float64()
+				}
+				if nearCritical(o, al, be, 1e-9) {
+					continue
+				}
+				// Only escaping photons: the captured ones just inside
+				// the edge keep the two-evaluation form, which errs by up
+				// to 2e-4 of the delay at crossings within 1e-6 of the
+				// horizon here (see TraceTimed).
+				var p Path
+				o.Trace(al, be, 0, &p)
+				if p.Fate != Escaped {
+					continue
+				}
+				w, ok := compareTimed(t, o, al, be, 3, 1e-13)
+				if !ok {
+					t.Errorf("a=%v i=%v α=%v β=%v: crossing counts or fates differ", a, inc, al, be)
+					continue
+				}
+				count++
+				worst = math.Max(worst, w)
+				if w > 1e-8 {
+					t.Errorf("a=%v i=%v α=%v β=%v: error %.2e of the allowance", a, inc, al, be, w*1e8)
+				}
+			}
+		}
+	}
+	t.Logf("%d rays, worst error %.2e of the allowance", count, worst*1e8)
+}
+
+// TestTimingNearExtremalEdge: escaping rays at the vertical piece of the
+// shadow edge of near-extremal holes (α ≈ ∓2/sin θo, Bardeen 1973), found
+// by a seeded random scan, where the integrals from infinity as a
+// difference of two evaluations (at infinity and at the crossing) lost
+// up to 1.5e-4 of the delay; added in one evaluation (radialTimer.sumsI)
+// they are within the allowance, against the integrator.
+func TestTimingNearExtremalEdge(t *testing.T) {
+	for _, c := range [][4]float64{ // a, θo, α, β
+		{-0.9999999992529687, 125.35377860285091, 2.4522524231627045, -0.002423910011037219},
+		{-0.9999998135311192, 88.84099468452524, 2.0014670792370093, 0.015981882400965416},
+		{-0.9999999987546334, 126.75575773847572, 2.4963414244498003, 0.00451804390166657},
+		{0.9999999401487483, 120.43208502446106, -2.320115653287856, 0.04557287585827847},
+		{0.9999999997953919, 113.64948230927158, -2.1833999764069536, -0.30148797985691045},
+	} {
+		o, err := NewObserver(c[0], c[1])
+		if err != nil {
+			t.Fatal(err)
+		}
+		w, ok := compareTimed(t, o, c[2], c[3], 3, 1e-13)
+		if !ok {
+			t.Errorf("a=%v i=%v α=%v β=%v: crossing counts or fates differ", c[0], c[1], c[2], c[3])
+			continue
+		}
+		if w > 1e-8 {
+			t.Errorf("a=%v i=%v α=%v β=%v: error %.2e of the allowance", c[0], c[1], c[2], c[3], w*1e8)
+		}
+	}
 }
 
 // TestTimingGrazing: rays a relative 1e-3 to 1e-7 outside and inside the
@@ -444,4 +529,129 @@ func TestTimingInvariants(t *testing.T) {
 			}
 		}
 	}
+}
+
+// legendreQuad integrates f(sin²θ)/sqrt(1 − m sin²θ) over θ from 0 to φ
+// (0 ≤ φ < π) by Gauss–Legendre quadrature (gonum), independently of the
+// Carlson functions: the Legendre forms of Z(u) = ∫₀^u sn² (f = s) and
+// P_N(u) = ∫₀^u du'/(1 − N sn²) (f = 1/(1 − N s)), φ = am u (DLMF 19.2.4–7).
+// The integrands peak at θ = π/2 (width sqrt(1 − m), or sqrt(1 − N)):
+// the range is split there and the nodes crowded towards it.
+func legendreQuad(f func(s float64) float64, phi, m float64) float64 {
+	g := func(th float64) float64 {
+		s := math.Sin(th)
+		return f(s*s) / math.Sqrt(1-m*s*s)
+	}
+	p1 := math.Min(phi, math.Pi/2)
+	// θ = p1 (1 − (1 − x)²) on [0, p1], θ = π/2 + (φ − π/2) x² beyond.
+	lo := func(x float64) float64 { return g(p1*(1-(1-x)*(1-x))) * 2 * p1 * (1 - x) }
+	sum := quad.Fixed(lo, 0, 1, 600, quad.Legendre{}, 0)
+	if phi > math.Pi/2 {
+		d := phi - math.Pi/2
+		hi := func(x float64) float64 { return g(math.Pi/2+d*x*x) * 2 * d * x }
+		sum += quad.Fixed(hi, 0, 1, 600, quad.Legendre{}, 0)
+	}
+	return sum
+}
+
+// TestAdditionTheorems checks the addition theorems that TraceTimed uses
+// to add the integrals from infinity (see radialTimer.sumsI):
+// Z(u+v) = Z(u) + Z(v) + s_u s_v s_w (DLMF 22.16.27 with ℰ = u − mZ) and
+// P_N(u+v) = P_N(u) + P_N(v) + N·addQ(k², t, G) (Whittaker & Watson
+// 1927, §22.741), against quadrature of the Legendre forms, for
+// characteristics on both sides of 0, m and 1 and sums beyond K.
+func TestAdditionTheorems(t *testing.T) {
+	for _, m := range []float64{0.3, 0.9, 0.999} {
+		k := ellipK(1 - m)
+		for _, n := range []float64{-30, -0.2, 0.1, 0.5 * m, (1 + m) / 2, 0.999, 1.5} {
+			for _, uv := range [][2]float64{{0.1, 0.2}, {0.5, 0.7}, {0.3, k - 0.4}, {0.9 * k, 0.05 * k}, {0.6 * k, 0.7 * k}, {0.95 * k, 0.9 * k}} {
+				u, v := uv[0], uv[1]
+				w := u + v
+				su, cu, _ := jacobi(u, m, 1-m)
+				sv, cv, _ := jacobi(v, m, 1-m)
+				sw, cw, dw := jacobi(w, m, 1-m)
+				if n*math.Max(sw*sw, math.Max(su*su, sv*sv)) >= 1 || (n > 1 && w > k) {
+					continue // a pole of 1/(1 − N sn²) on the path
+				}
+				am := func(s, c float64) float64 { return math.Atan2(s, c) }
+				pf := func(s float64) float64 { return 1 / (1 - n*s) }
+				zf := func(s float64) float64 { return s }
+				P := func(s, c float64) float64 { return legendreQuad(pf, am(s, c), m) }
+				Z := func(s, c float64) float64 { return legendreQuad(zf, am(s, c), m) }
+				tt := su * sv * sw
+				G := 1 - n*sw*sw + n*su*sv*cw*dw
+				k2 := n * (m - n) * (1 - n)
+				dp := P(sw, cw) - P(su, cu) - P(sv, cv)
+				dz := Z(sw, cw) - Z(su, cu) - Z(sv, cv)
+				near(t, fmt.Sprintf("P_N addition m=%v N=%v u=%v v=%v", m, n, u, v), n*addQ(k2, tt, G), dp, 1e-12*(1+math.Abs(P(sw, cw))))
+				near(t, fmt.Sprintf("Z addition m=%v u=%v v=%v", m, u, v), tt, dz, 1e-12*(1+math.Abs(Z(sw, cw))))
+			}
+		}
+	}
+}
+
+// TestTimingAdditionMatchesTwoEvaluations: the radial integrals from
+// infinity by the addition theorems (one evaluation at the point: sumsI
+// for escaping photons with four real roots, addII for two real roots)
+// agree with their difference of two evaluations, at infinity and at the
+// point, with Jacobi functions computed afresh (the form used for later
+// crossings and captured four-root photons), at points before and after
+// the turning point, including the quarter period K itself (where the
+// addition theorem's cn and dn of F0 + Y cancel and jacobi is used, and
+// where case II passes from δ < K to δ > K).
+func TestTimingAdditionMatchesTwoEvaluations(t *testing.T) {
+	rng := rand.New(rand.NewPCG(5, 8))
+	worst, count, nearK, two := 0.0, 0, 0, 0
+	for i := 0; i < 900; i++ {
+		a := -0.999 + 1.998*rng.Float64()
+		o, _ := NewObserver(a, 5+170*rng.Float64())
+		al, be := -15+30*rng.Float64(), -15+30*rng.Float64()
+		if i%3 == 0 { // grazing the critical curve, outside and inside
+			cc := o.CriticalCurve(12)
+			q := cc[rng.IntN(len(cc))]
+			f := 1 + math.Copysign(math.Pow(10, -2-6*rng.Float64()), rng.Float64()-0.5)
+			al, be = q.Alpha*f, q.Beta*f
+		}
+		lambda, eta := o.constants(al, be)
+		var p Path
+		var in timingInput
+		o.trace(lambda, eta, be, 1, &p, &in)
+		if !in.ok || (in.rad.cs == FourReal && p.Fate != Escaped) {
+			continue
+		}
+		var rt radialTimer
+		rt.init(&in.q, &in.rad, a, lambda, o.horizon)
+		var taus []float64
+		k := ellipK(rt.mc)
+		if in.rad.cs == FourReal {
+			taus = []float64{0.1 * p.Turn, 0.5 * p.Turn, 0.97 * p.Turn, 1.2 * p.Turn, 1.9 * p.Turn}
+			if k > rt.x0 && k < 2*rt.x0 {
+				taus = append(taus, k/rt.scale)
+				nearK++
+			}
+		} else {
+			two++
+			taus = []float64{0.1 * p.Mino, 0.5 * p.Mino, 0.9 * p.Mino, 0.999 * p.Mino}
+			if k/rt.scale < p.Mino {
+				taus = append(taus, k/rt.scale)
+				nearK++
+			}
+		}
+		for _, tau := range taus {
+			var jac pathJacobi
+			r := in.rad.eval(tau, &jac)
+			it, ip := rt.at(tau, r, &jac)
+			it2, ip2 := rt.at(tau, r, nil)
+			e := math.Max(timingErr(it, it2, r), timingErr(ip, ip2)) / (1 + extremalAllowance(a)*1e8)
+			worst = math.Max(worst, e)
+			count++
+			if e > 1e-11 {
+				t.Errorf("a=%v α=%v β=%v τ=%v (turn %v): addition %v %v, two evaluations %v %v", a, al, be, tau, p.Turn, it, ip, it2, ip2)
+			}
+		}
+	}
+	if nearK == 0 || two == 0 {
+		t.Errorf("%d photons reached the quarter period, %d had two real roots", nearK, two)
+	}
+	t.Logf("%d points (%d photons with two real roots, %d past K), worst relative difference %.2e", count, two, nearK, worst)
 }

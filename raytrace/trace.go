@@ -419,6 +419,10 @@ func (rd radial) at(tau float64) float64 { return rd.eval(tau, nil) }
 type pathJacobi struct {
 	y, sn, cn, dn, sgn float64
 	den                float64 // D of the addition theorem (see eval)
+	// δ = X0 − Y (case I: folded onto the incoming half) and its sn,
+	// cn, dn, from which the timing adds the integrals from infinity
+	// (radialTimer.sumsI).
+	d, sd, cd, dd float64
 }
 
 // eval is at; if jac is not nil it also receives the pathJacobi of the
@@ -481,6 +485,7 @@ func (rd radial) pathJacobi(jac *pathJacobi, d, sd, cd, dd float64) {
 	jac.dn = (d0*dd + rd.m*s0*c0*sd*cd) / den
 	jac.sgn = -1
 	jac.den = den
+	jac.d, jac.sd, jac.cd, jac.dd = d, sd, cd, dd
 }
 
 // legendre is the fixed Gauss–Legendre rule of minoQuad on [0, 1], set up
