@@ -6,6 +6,8 @@ import (
 	"math"
 	"strconv"
 	"strings"
+
+	"github.com/pelletier/go-toml/v2"
 )
 
 // Field is one scene value that a command-line flag can override.
@@ -284,4 +286,38 @@ func (q Quantity) Value(v string) string {
 		return sym + " = " + v + "°"
 	}
 	return sym + " = " + v + " " + q.Unit
+}
+
+// Values returns the scene's values by key ("black_hole.spin"), as the
+// text its TOML gives them, lists joined by commas: the defaults that help
+// texts show and the values a page fills its controls with. Keys of
+// array tables ([[lines]]) are left out.
+func (s Scene) Values() map[string]string {
+	out := map[string]string{}
+	text, err := s.TOML()
+	if err != nil {
+		return out
+	}
+	var m map[string]any
+	if toml.Unmarshal(text, &m) != nil {
+		return out
+	}
+	for sec, body := range m {
+		kv, ok := body.(map[string]any)
+		if !ok {
+			continue
+		}
+		for k, v := range kv {
+			if list, ok := v.([]any); ok {
+				parts := make([]string, len(list))
+				for i, e := range list {
+					parts[i] = fmt.Sprint(e)
+				}
+				out[sec+"."+k] = strings.Join(parts, ",")
+				continue
+			}
+			out[sec+"."+k] = fmt.Sprint(v)
+		}
+	}
+	return out
 }

@@ -148,7 +148,7 @@ func (f *flags) help() {
 	fmt.Fprintf(f.out, "usage: kerrscope %s [flags]\n\nflags:\n", f.fs.Name())
 	var defaults map[string]string
 	if f.base != nil {
-		defaults = sceneDefaults(*f.base)
+		defaults = f.base.Values()
 	}
 	f.fs.VisitAll(func(fl *flag.Flag) {
 		if f.hidden[fl.Name] {

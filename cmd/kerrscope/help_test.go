@@ -57,7 +57,7 @@ func TestHelpShowsTheDefaultsUsed(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		usedText, baseText := sceneDefaults(used), sceneDefaults(c.base)
+		usedText, baseText := used.Values(), c.base.Values()
 		// An automatic value is the one the renderer chooses for the
 		// run's scene (pixels.FrameWindow).
 		run := c.base
@@ -70,7 +70,7 @@ func TestHelpShowsTheDefaultsUsed(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		autoText := sceneDefaults(framed.Scene)
+		autoText := framed.Scene.Values()
 		for key, def := range printed {
 			want := usedText[key]
 			if overridden[key] {
@@ -112,7 +112,7 @@ func TestHelpDefaultsPerCommand(t *testing.T) {
 		t.Errorf("locate --help: refine depth default %q, want 3", locate["refine.depth"])
 	}
 	// The commands that start from the built-in scene print its values.
-	base := sceneDefaults(scene.Default())
+	base := scene.Default().Values()
 	for _, cmd := range []string{"sweep", "spot", "probe"} {
 		printed, _ := helpDefaults(t, cmd)
 		for key, def := range printed {

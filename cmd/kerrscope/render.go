@@ -10,7 +10,6 @@ import (
 	"strconv"
 	"strings"
 
-	"github.com/pelletier/go-toml/v2"
 	"golang.org/x/term"
 
 	"kerrscope/render/maps"
@@ -269,31 +268,3 @@ func renderAndReport(ctx context.Context, r scene.Resolved, band, quiet bool, st
 }
 
 var _ flag.Value = sceneFlag{}
-
-// sceneDefaults returns base's values by scene key, as text.
-func sceneDefaults(base scene.Scene) map[string]string {
-	out := map[string]string{}
-	text, err := base.TOML()
-	if err != nil {
-		return out
-	}
-	var m map[string]map[string]any
-	if toml.Unmarshal(text, &m) != nil {
-		return out
-	}
-	for sec, kv := range m {
-		for k, v := range kv {
-			switch x := v.(type) {
-			case []any:
-				parts := make([]string, len(x))
-				for i, e := range x {
-					parts[i] = fmt.Sprint(e)
-				}
-				out[sec+"."+k] = strings.Join(parts, ",")
-			default:
-				out[sec+"."+k] = fmt.Sprint(v)
-			}
-		}
-	}
-	return out
-}

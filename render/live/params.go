@@ -8,8 +8,6 @@ import (
 	"strconv"
 	"strings"
 
-	"github.com/pelletier/go-toml/v2"
-
 	"kerrscope/render/maps"
 	"kerrscope/scene"
 )
@@ -236,7 +234,7 @@ type Initial struct {
 // initials lists the values of base for every field the page may set.
 // A switch is on when setting it leaves base as it is.
 func initials(base scene.Scene) []Initial {
-	vals := tomlValues(base)
+	vals := base.Values()
 	var out []Initial
 	for _, f := range sceneFields() {
 		in := Initial{Flag: f.Flag, Key: f.Key, Usage: f.Usage, Bool: f.Bool, Value: vals[f.Key], Automatic: base.Automatic(f.Key)}
@@ -256,31 +254,4 @@ func sameTOML(a, b scene.Scene) bool {
 	ta, errA := a.TOML()
 	tb, errB := b.TOML()
 	return errA == nil && errB == nil && string(ta) == string(tb)
-}
-
-// tomlValues returns the scene's values by key, as text.
-func tomlValues(s scene.Scene) map[string]string {
-	out := map[string]string{}
-	text, err := s.TOML()
-	if err != nil {
-		return out
-	}
-	var m map[string]map[string]any
-	if toml.Unmarshal(text, &m) != nil {
-		return out
-	}
-	for sec, kv := range m {
-		for k, v := range kv {
-			if list, ok := v.([]any); ok {
-				parts := make([]string, len(list))
-				for i, e := range list {
-					parts[i] = fmt.Sprint(e)
-				}
-				out[sec+"."+k] = strings.Join(parts, ",")
-				continue
-			}
-			out[sec+"."+k] = fmt.Sprint(v)
-		}
-	}
-	return out
 }
