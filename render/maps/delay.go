@@ -44,8 +44,11 @@ func delayRow(f *pixels.Frame, j int, row []float32) {
 // frame (0, 0 if none).
 func delayRange(f *pixels.Frame) (lo, hi float64) {
 	lo, hi = math.Inf(1), math.Inf(-1)
-	for _, v := range delayValues(f) {
-		if x := float64(v); !math.IsNaN(x) && !math.IsInf(x, 0) {
+	if f.T == nil { // no timing: no delays, nothing to gather
+		return 0, 0
+	}
+	for k := 0; k < f.W*f.H; k++ {
+		if x := float64(f.FirstSeenAt(f.T, k)); !math.IsNaN(x) && !math.IsInf(x, 0) {
 			lo, hi = math.Min(lo, x), math.Max(hi, x)
 		}
 	}

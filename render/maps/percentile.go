@@ -88,6 +88,45 @@ func IntensitySamples(dst []Sample, f *pixels.Frame) []Sample {
 	return dst
 }
 
+// gExtremes returns the smallest and largest g of the first image seen
+// over the frame's pixels: Percentiles(GSamples(nil, f), 0) without
+// gathering the samples.
+func gExtremes(f *pixels.Frame) (lo, hi float64, ok bool) {
+	if f.G == nil {
+		return 0, 0, false
+	}
+	return extremes(f.W*f.H, func(k int) float64 { return float64(f.FirstSeenAt(f.G, k)) })
+}
+
+// intensityExtremes is Percentiles(IntensitySamples(nil, f), 0) without
+// gathering the samples.
+func intensityExtremes(f *pixels.Frame) (lo, hi float64, ok bool) {
+	if f.Line == nil {
+		return 0, 0, false
+	}
+	return extremes(f.W*f.H, func(k int) float64 {
+		if v := float64(f.TotalAt(f.Line, k)); v > 0 {
+			return v
+		}
+		return math.NaN()
+	})
+}
+
+// extremes returns the smallest and largest of value(k), k < n, NaN left
+// out; ok is false when every value is NaN.
+func extremes(n int, value func(k int) float64) (lo, hi float64, ok bool) {
+	lo, hi = math.Inf(1), math.Inf(-1)
+	for k := 0; k < n; k++ {
+		if v := value(k); !math.IsNaN(v) {
+			lo, hi, ok = math.Min(lo, v), math.Max(hi, v), true
+		}
+	}
+	if !ok {
+		return 0, 0, false
+	}
+	return lo, hi, true
+}
+
 // percentileOf is the scene's scales.percentile, 0 when not given.
 func percentileOf(s scene.Scales) float64 {
 	if s.Percentile == nil {

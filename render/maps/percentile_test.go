@@ -125,3 +125,29 @@ func TestAutoScalesPercentile(t *testing.T) {
 		t.Errorf("fixed g min: %v–%v, want 0.3–%v", got.GMin, got.GMax, sc.GMax)
 	}
 }
+
+// The full ranges AutoScales takes at percentile 0 without gathering
+// samples are those of Percentiles over the gathered samples.
+func TestExtremesArePercentileZero(t *testing.T) {
+	s := scene.Default()
+	s.Screen.Width, s.Screen.Height, s.Screen.FieldOfView = 64, 48, 50
+	s.Disk.Opaque = false
+	r, err := s.Resolve()
+	if err != nil {
+		t.Fatal(err)
+	}
+	f, err := pixels.Render(context.Background(), r, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for name, c := range map[string]struct {
+		fast    func(*pixels.Frame) (float64, float64, bool)
+		samples func([]Sample, *pixels.Frame) []Sample
+	}{"g": {gExtremes, GSamples}, "intensity": {intensityExtremes, IntensitySamples}} {
+		lo, hi, ok := c.fast(f)
+		wlo, whi, wok := Percentiles(c.samples(nil, f), 0)
+		if !ok || !wok || lo != wlo || hi != whi {
+			t.Errorf("%s: extremes %v … %v (%v), percentile 0 %v … %v (%v)", name, lo, hi, ok, wlo, whi, wok)
+		}
+	}
+}

@@ -37,10 +37,15 @@ func AutoScales(f *pixels.Frame) Scales {
 	sc := Scales{IDecades: 4, RMin: r.Inner, RMax: r.Disk.OuterRadius}
 	p := percentileOf(r.Scales)
 	sc.GMin, sc.GMax = 1/1.5, 1.5
-	if lo, hi, ok := Percentiles(GSamples(nil, f), p); ok && hi > 0 {
+	gRange, iRange := func() (float64, float64, bool) { return Percentiles(GSamples(nil, f), p) },
+		func() (float64, float64, bool) { return Percentiles(IntensitySamples(nil, f), p) }
+	if !(p > 0) { // the full ranges: no samples to gather and sort
+		gRange, iRange = func() (float64, float64, bool) { return gExtremes(f) }, func() (float64, float64, bool) { return intensityExtremes(f) }
+	}
+	if lo, hi, ok := gRange(); ok && hi > 0 {
 		sc.GMin, sc.GMax = math.Min(0.95, lo), math.Max(1.05, hi)
 	}
-	if _, hi, ok := Percentiles(IntensitySamples(nil, f), p); ok && hi > 0 {
+	if _, hi, ok := iRange(); ok && hi > 0 {
 		sc.IMax = hi
 	}
 	if sc.IMax == 0 {
