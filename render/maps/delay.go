@@ -15,19 +15,6 @@ import (
 // smallest value on the frame (or Scales.TMin). Only such differences
 // are physical; the regularisation of t_o − t cancels in them.
 
-// delayValues returns the first-seen delays (NaN where none is seen, or
-// everywhere if the frame has no timing).
-func delayValues(f *pixels.Frame) []float32 {
-	if f.T == nil {
-		out := make([]float32, f.W*f.H)
-		for k := range out {
-			out[k] = float32(math.NaN())
-		}
-		return out
-	}
-	return f.FirstSeen(f.T)
-}
-
 // delayRow gives the first-seen delays along row j (NaN where none is
 // seen, or everywhere if the frame has no timing).
 func delayRow(f *pixels.Frame, j int, row []float32) {
