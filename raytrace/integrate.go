@@ -335,12 +335,20 @@ func (o Observer) integrate(alpha, beta float64, orders int, tol float64, p *Pat
 }
 
 // locate finds the step size hs in [0, h] at which f of the Dormand–Prince
-// solution from y vanishes, by the Illinois variant of regula falsi.
+// solution from y vanishes (illinois).
 func (g geodesicODE) locate(y odeState, h float64, f func(odeState) float64) float64 {
+	return illinois(h, f(y), func(m float64) float64 {
+		ym, _ := g.step(y, m)
+		return f(ym)
+	})
+}
+
+// illinois finds s in [0, h] where f(s) = 0 by the Illinois variant of
+// regula falsi, given f0 = f(0) and f(h) of the other sign; it stops when
+// the bracket is below locateRelTol·h or |f| below locateZero.
+func illinois(h, f0 float64, f func(s float64) float64) float64 {
 	lo, hi := 0.0, h
-	flo := f(y)
-	yh, _ := g.step(y, h)
-	fhi := f(yh)
+	flo, fhi := f0, f(h)
 	if flo == 0 {
 		return 0
 	}
@@ -350,9 +358,8 @@ func (g geodesicODE) locate(y odeState, h float64, f func(odeState) float64) flo
 		if !(m > lo && m < hi) {
 			m = (lo + hi) / 2
 		}
-		ym, _ := g.step(y, m)
-		fm := f(ym)
-		if fm == 0 || hi-lo < locateRelTol*h {
+		fm := f(m)
+		if fm == 0 || hi-lo < locateRelTol*h || math.Abs(fm) < locateZero {
 			return m
 		}
 		if (fm > 0) == (fhi > 0) {
@@ -367,9 +374,6 @@ func (g geodesicODE) locate(y odeState, h float64, f func(odeState) float64) flo
 				fhi /= 2
 			}
 			side = 1
-		}
-		if math.Abs(fm) < locateZero {
-			return m
 		}
 	}
 	return (lo + hi) / 2

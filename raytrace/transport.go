@@ -317,39 +317,10 @@ func exactTime(a, r, x float64, k, f Vector) float64 {
 }
 
 // locate finds the step hs in [0, h] at which component i of the solution
-// from y equals target (Illinois regula falsi, as geodesicODE.locate).
+// from y equals target (illinois, as geodesicODE.locate).
 func (g transportODE) locate(y transportState, h float64, i int, target float64) float64 {
-	lo, hi := 0.0, h
-	flo := y[i] - target
-	yh, _ := g.step(y, h)
-	fhi := yh[i] - target
-	if flo == 0 {
-		return 0
-	}
-	side := 0
-	for it := 0; it < locateMaxIter; it++ {
-		m := (lo*fhi - hi*flo) / (fhi - flo)
-		if !(m > lo && m < hi) {
-			m = (lo + hi) / 2
-		}
+	return illinois(h, y[i]-target, func(m float64) float64 {
 		ym, _ := g.step(y, m)
-		fm := ym[i] - target
-		if fm == 0 || hi-lo < locateRelTol*h || math.Abs(fm) < locateZero {
-			return m
-		}
-		if (fm > 0) == (fhi > 0) {
-			hi, fhi = m, fm
-			if side == -1 {
-				flo /= 2
-			}
-			side = -1
-		} else {
-			lo, flo = m, fm
-			if side == 1 {
-				fhi /= 2
-			}
-			side = 1
-		}
-	}
-	return (lo + hi) / 2
+		return ym[i] - target
+	})
 }
