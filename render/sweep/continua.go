@@ -10,10 +10,8 @@ import (
 	"path/filepath"
 	"strconv"
 
-	"kerrscope/colormap"
 	"kerrscope/render/internal/figure"
 	"kerrscope/render/maps"
-	"kerrscope/scene"
 )
 
 // continuaPlots returns one plot of all frames' thermal continua, E² N_E
@@ -21,43 +19,17 @@ import (
 // line profiles; for a grid, one plot per value of the second axis.
 // Frames without a thermal disk are left out; nil when none has one.
 func (p *Plan) continuaPlots() ([]namedPlot, error) {
-	a := p.Axes[0]
-	groups := [][]Point{p.Points}
-	if len(p.Axes) == 2 {
-		n1 := p.Axes[1].Count
-		groups = make([][]Point, n1)
-		for _, pt := range p.Points {
-			groups[pt.Index%n1] = append(groups[pt.Index%n1], pt)
-		}
-	}
-	q := scene.QuantityOf(a.Key)
-	bar := &figure.ColorBar{Label: q.Title()}
-	for i := 0; i < 256; i++ {
-		bar.Colors = append(bar.Colors, colormap.Sequential.At(seqLo+(seqHi-seqLo)*float64(i)/255))
-	}
-	position := func(v float64) float64 {
-		t := a.Position(v)
-		if a.To < a.From {
-			t = 1 - t
-		}
-		return math.Min(1, math.Max(0, t))
-	}
-	for _, v := range a.ticks() {
-		bar.Ticks = append(bar.Ticks, figure.Tick{T: position(v), Label: formatValue(v)})
-	}
+	fam := p.curveFamily()
 	var out []namedPlot
-	for j, g := range groups {
+	for j, g := range fam.groups {
 		pl := figure.Plot{
 			Title:    "thermal continua over the sweep",
-			Subtitle: fmt.Sprintf("%d frames, %s (%s spacing)", len(g), rangeText(q, a.From, a.To), a.Spacing),
+			Subtitle: p.familySubtitle(g),
 			XLabel:   "log₁₀ (observed energy *{E}_{obs} / keV)",
 			YLabel:   "*{E}^{2} *{N}_{E} [keV cm⁻² s⁻¹]",
 			LogY:     true,
-			Bar:      bar,
+			Bar:      fam.bar,
 			Size:     maps.FigureSize(p.Points[0].Scene.Output),
-		}
-		if len(p.Axes) == 2 {
-			pl.Subtitle += "; " + scene.QuantityOf(p.Axes[1].Key).Value(formatValue(g[0].Values[1]))
 		}
 		peak := 0.0
 		for _, pt := range g {
@@ -73,7 +45,7 @@ func (p *Plan) continuaPlots() ([]namedPlot, error) {
 				peak = math.Max(peak, v)
 			}
 			pl.Series = append(pl.Series, figure.Series{X: x, Y: y, Width: 1.5,
-				Color: colormap.Sequential.At(seqLo + (seqHi-seqLo)*position(pt.Values[0]))})
+				Color: fam.color(pt.Values[0])})
 		}
 		if len(pl.Series) == 0 {
 			continue
@@ -81,11 +53,7 @@ func (p *Plan) continuaPlots() ([]namedPlot, error) {
 		if peak > 0 {
 			pl.YMin, pl.YMax = peak*1e-4, peak*2
 		}
-		name := "sweep-continua.png"
-		if len(p.Axes) == 2 {
-			name = fmt.Sprintf("sweep-continua-%0*d.png", max(2, len(strconv.Itoa(p.Axes[1].Count-1))), j)
-		}
-		out = append(out, namedPlot{name, pl})
+		out = append(out, namedPlot{p.familyName("sweep-continua", j), pl})
 	}
 	return out, nil
 }

@@ -294,40 +294,18 @@ const seqLo, seqHi = 0.0, 0.8
 // second axis.
 func (p *Plan) spectraPlots(sc maps.Scales) ([]namedPlot, error) {
 	a := p.Axes[0]
-	groups := [][]Point{p.Points}
-	if len(p.Axes) == 2 {
-		n1 := p.Axes[1].Count
-		groups = make([][]Point, n1)
-		for _, pt := range p.Points {
-			groups[pt.Index%n1] = append(groups[pt.Index%n1], pt)
-		}
-	}
 	base := p.Points[0].Scene
-	q := scene.QuantityOf(a.Key)
-	bar := &figure.ColorBar{Label: q.Title()}
-	for i := 0; i < 256; i++ {
-		bar.Colors = append(bar.Colors, colormap.Sequential.At(seqLo+(seqHi-seqLo)*float64(i)/255))
-	}
-	for _, v := range a.ticks() {
-		t := a.Position(v)
-		if a.To < a.From {
-			t = 1 - t
-		}
-		bar.Ticks = append(bar.Ticks, figure.Tick{T: math.Min(1, math.Max(0, t)), Label: formatValue(v)})
-	}
+	fam := p.curveFamily()
 	var out []namedPlot
-	for j, g := range groups {
+	for j, g := range fam.groups {
 		pl := figure.Plot{
 			Title:    "line profiles over the sweep",
-			Subtitle: fmt.Sprintf("%d frames, %s (%s spacing)", len(g), rangeText(q, a.From, a.To), a.Spacing),
+			Subtitle: p.familySubtitle(g),
 			XLabel:   "observed energy *{E}_{obs} [keV]",
 			YLabel:   "photon flux *{F}_{E} [keV⁻¹, relative]",
 			Size:     maps.FigureSize(base.Output),
 			YMax:     sc.FluxMax,
-			Bar:      bar,
-		}
-		if len(p.Axes) == 2 {
-			pl.Subtitle += "; " + scene.QuantityOf(p.Axes[1].Key).Value(formatValue(g[0].Values[1]))
+			Bar:      fam.bar,
 		}
 		if !slices.Contains([]string{a.Key, axisKey(p, 1)}, "emission.line_kev") && !base.RestLines.List {
 			pl.VLines = []figure.VLine{{X: base.Emission.LineKeV, Label: fmt.Sprintf("%g keV rest", base.Emission.LineKeV), Color: color.RGBA{0x60, 0x60, 0x60, 0xff}, Dashed: true}}
@@ -350,21 +328,70 @@ func (p *Plan) spectraPlots(sc maps.Scales) ([]namedPlot, error) {
 				pl.YLabel = "photon flux *{F}_{E} [photons cm⁻² s⁻¹ keV⁻¹]"
 			}
 			xlo, xhi = math.Min(xlo, lo), math.Max(xhi, hi)
-			t := a.Position(pt.Values[0])
-			if a.To < a.From {
-				t = 1 - t
-			}
-			pl.Series = append(pl.Series, figure.Series{X: e, Y: flux, Width: 1.5,
-				Color: colormap.Sequential.At(seqLo + (seqHi-seqLo)*t)})
+			pl.Series = append(pl.Series, figure.Series{X: e, Y: flux, Width: 1.5, Color: fam.color(pt.Values[0])})
 		}
 		pl.XMin, pl.XMax = xlo, xhi
-		name := "sweep-spectra.png"
-		if len(p.Axes) == 2 {
-			name = fmt.Sprintf("sweep-spectra-%0*d.png", max(2, len(strconv.Itoa(p.Axes[1].Count-1))), j)
-		}
-		out = append(out, namedPlot{name, pl})
+		out = append(out, namedPlot{p.familyName("sweep-spectra", j), pl})
 	}
 	return out, nil
+}
+
+// curveFamily is what the sweep's plots of one curve per frame share:
+// the frames grouped by the second axis (one group without one) and the
+// colour bar of the first axis, whose value colours each curve.
+type curveFamily struct {
+	groups [][]Point
+	bar    *figure.ColorBar
+	color  func(v float64) color.RGBA // a curve's colour by its first-axis value
+}
+
+func (p *Plan) curveFamily() curveFamily {
+	a := p.Axes[0]
+	groups := [][]Point{p.Points}
+	if len(p.Axes) == 2 {
+		n1 := p.Axes[1].Count
+		groups = make([][]Point, n1)
+		for _, pt := range p.Points {
+			groups[pt.Index%n1] = append(groups[pt.Index%n1], pt)
+		}
+	}
+	position := func(v float64) float64 {
+		t := a.Position(v)
+		if a.To < a.From {
+			t = 1 - t
+		}
+		return math.Min(1, math.Max(0, t))
+	}
+	bar := &figure.ColorBar{Label: scene.QuantityOf(a.Key).Title()}
+	for i := 0; i < 256; i++ {
+		bar.Colors = append(bar.Colors, colormap.Sequential.At(seqLo+(seqHi-seqLo)*float64(i)/255))
+	}
+	for _, v := range a.ticks() {
+		bar.Ticks = append(bar.Ticks, figure.Tick{T: position(v), Label: formatValue(v)})
+	}
+	return curveFamily{groups, bar, func(v float64) color.RGBA {
+		return colormap.Sequential.At(seqLo + (seqHi-seqLo)*position(v))
+	}}
+}
+
+// familySubtitle describes a group of curveFamily: its frames, the first
+// axis's range and, for a grid, the group's value of the second axis.
+func (p *Plan) familySubtitle(g []Point) string {
+	a := p.Axes[0]
+	t := fmt.Sprintf("%d frames, %s (%s spacing)", len(g), rangeText(scene.QuantityOf(a.Key), a.From, a.To), a.Spacing)
+	if len(p.Axes) == 2 {
+		t += "; " + scene.QuantityOf(p.Axes[1].Key).Value(formatValue(g[0].Values[1]))
+	}
+	return t
+}
+
+// familyName is the file of group j of curveFamily: stem.png, or for a
+// grid stem-NN.png numbered by the second axis.
+func (p *Plan) familyName(stem string, j int) string {
+	if len(p.Axes) == 2 {
+		return fmt.Sprintf("%s-%0*d.png", stem, max(2, len(strconv.Itoa(p.Axes[1].Count-1))), j)
+	}
+	return stem + ".png"
 }
 
 // rangeText describes an axis's range in words, e.g. "spin a from 0.5 to
