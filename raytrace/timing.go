@@ -649,6 +649,22 @@ func (rt *radialTimer) infII() {
 	rt.inf = rt.jII(rt.x0, rt.s0, rt.c0, rt.d0, rt.onegcInf, true)
 }
 
+// poleArgs returns, for each case-II pole γ (numPoles of them), the
+// fourth argument of its R_J at sn² = s2, cn² = c2, dn² = d2: 1 − ν s²
+// with ν = m(γ² − 1)/γ² when γ² > 1, else 1 − N s² with N = γ²/(γ² − 1).
+func (rt *radialTimer) poleArgs(s2, c2, d2 float64) [3]float64 {
+	var ps [3]float64
+	for i := 0; i < rt.numPoles(); i++ {
+		g2 := rt.g[i] * rt.g[i]
+		if g2 > 1 {
+			ps[i] = d2 + rt.m*s2/g2 // 1 − ν s²
+		} else {
+			ps[i] = (1 - g2*c2) / (1 - g2) // 1 − N s²
+		}
+	}
+	return ps
+}
+
 func (rt *radialTimer) numPoles() int {
 	if rt.skipM {
 		return 2
@@ -661,7 +677,6 @@ func (rt *radialTimer) numPoles() int {
 // each pole (index 0: infinity; ignored if reg, where the regularised
 // logarithm is used instead).
 func (rt *radialTimer) jII(y, sn, cn, dn float64, onegc [3]float64, reg bool) [5]float64 {
-	m := rt.m
 	s2, c2, d2 := sn*sn, cn*cn, dn*dn
 	s3 := s2 * sn
 	eps := 1.0
@@ -672,16 +687,7 @@ func (rt *radialTimer) jII(y, sn, cn, dn float64, onegc [3]float64, reg bool) [5
 		}
 	}
 	ng := rt.numPoles()
-	var ps [3]float64
-	for i := 0; i < ng; i++ {
-		g := rt.g[i]
-		g2 := g * g
-		if g2 > 1 {
-			ps[i] = d2 + m*s2/g2 // 1 − ν s²
-		} else {
-			ps[i] = (1 - g2*c2) / (1 - g2) // 1 − N s²
-		}
-	}
+	ps := rt.poleArgs(s2, c2, d2)
 	var rj [3]float64
 	rd := carlsonDJ(c2, d2, 1, ps[:ng], rj[:0])
 	// ∫₀^Y sn² = ε (s³/3) R_D(c², d², 1) + (1 − ε)(1/3) R_D(0, mc, 1), and
@@ -890,22 +896,13 @@ func (rt *radialTimer) addI(jac *pathJacobi, sn, x, yc float64) [5]float64 {
 func (rt *radialTimer) addII(jac *pathJacobi, onegc [3]float64) [5]float64 {
 	sY := jac.sn
 	sd, cd, dd := jac.sd, jac.cd, jac.dd
-	m := rt.m
 	ng := rt.numPoles()
 	t := sY * sd * rt.s0
 	var sz float64
 	var sq [3]float64
 	if sd != 0 {
 		s2, c2, d2 := sd*sd, cd*cd, dd*dd
-		var ps [3]float64
-		for i := 0; i < ng; i++ {
-			g2 := rt.g[i] * rt.g[i]
-			if g2 > 1 {
-				ps[i] = d2 + m*s2/g2 // 1 − ν s²
-			} else {
-				ps[i] = (1 - g2*c2) / (1 - g2) // 1 − N s²
-			}
-		}
+		ps := rt.poleArgs(s2, c2, d2)
 		var rj [3]float64
 		rd := carlsonDJ(c2, d2, 1, ps[:ng], rj[:0])
 		s3 := s2 * sd / 3
