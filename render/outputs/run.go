@@ -77,20 +77,12 @@ func Run(ctx context.Context, r scene.Resolved, opt Options) (Summary, error) {
 		framing = pixels.FramingPhotons
 	}
 	r = framed
-	f, err := pixels.RenderScene(ctx, r, opt.Progress, Needs(arts))
-	var spec *pixels.Spectrum
-	if err == nil {
-		spec, err = pixels.CheckFinite(f)
-	}
-	if err == nil && f.TouchesBorder() {
-		var c pixels.Clip
-		if c, err = pixels.EstimateClip(ctx, f); err == nil {
-			f.Clip = &c
-			framing += c.Samples
-		}
-	}
+	f, spec, err := pixels.RenderChecked(ctx, r, opt.Progress, Needs(arts))
 	if err != nil {
 		return Summary{}, err
+	}
+	if f.Clip != nil {
+		framing += f.Clip.Samples
 	}
 	out, err := NewOutputs(ctx, lk, "render")
 	if err != nil {

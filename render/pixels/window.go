@@ -337,3 +337,25 @@ func (f *Frame) LineFlux() (flux float64, ok bool) {
 	}
 	return flux * f.Res.PixelSize * f.Res.PixelSize, true
 }
+
+// RenderChecked is RenderScene followed by CheckFinite (which also
+// collapses the spectrum), with f.Clip set by EstimateClip when the disk
+// image touches the window's border: the render of a run or sweep frame.
+func RenderChecked(ctx context.Context, r scene.Resolved, progress func(rows int), keep Keep) (*Frame, *Spectrum, error) {
+	f, err := RenderScene(ctx, r, progress, keep)
+	if err != nil {
+		return nil, nil, err
+	}
+	spec, err := CheckFinite(f)
+	if err != nil {
+		return nil, nil, err
+	}
+	if f.TouchesBorder() {
+		c, err := EstimateClip(ctx, f)
+		if err != nil {
+			return nil, nil, err
+		}
+		f.Clip = &c
+	}
+	return f, spec, nil
+}

@@ -27,17 +27,7 @@ func (p *Plan) writeFrame(ctx context.Context, lk *outputs.DirLock, pt Point, sc
 		files, err := p.writeSpotFrame(ctx, lk, pt, sc)
 		return files, nil, err
 	}
-	f, err := pixels.RenderScene(ctx, pt.Scene, nil, outputs.Needs(p.artifacts(pt.Index)))
-	var spec *pixels.Spectrum
-	if err == nil {
-		spec, err = pixels.CheckFinite(f)
-	}
-	if err == nil && f.TouchesBorder() {
-		var c pixels.Clip
-		if c, err = pixels.EstimateClip(ctx, f); err == nil {
-			f.Clip = &c
-		}
-	}
+	f, spec, err := pixels.RenderChecked(ctx, pt.Scene, nil, outputs.Needs(p.artifacts(pt.Index)))
 	if err != nil {
 		return nil, nil, err
 	}
