@@ -121,11 +121,11 @@ func (o Observer) CriticalCurve(n int) []ScreenPoint {
 	pts := make([]ScreenPoint, 0, 2*len(ts))
 	for _, t := range ts {
 		al, b2 := o.criticalBeta2(t)
-		pts = append(pts, ScreenPoint{al, math.Sqrt(math.Max(0, b2))})
+		pts = append(pts, ScreenPoint{al, math.Sqrt(max(0, b2))})
 	}
 	for i := len(ts) - 1; i >= 0; i-- {
 		al, b2 := o.criticalBeta2(ts[i])
-		pts = append(pts, ScreenPoint{al, -math.Sqrt(math.Max(0, b2))})
+		pts = append(pts, ScreenPoint{al, -math.Sqrt(max(0, b2))})
 	}
 	return pts
 }
@@ -231,7 +231,7 @@ func (c CriticalLocator) Distance(alpha, beta float64) (float64, ScreenPoint) {
 	}
 	pt := func(t float64) ScreenPoint {
 		al, b2 := o.criticalBeta2(t)
-		return ScreenPoint{al, sign * math.Sqrt(math.Max(0, b2))}
+		return ScreenPoint{al, sign * math.Sqrt(max(0, b2))}
 	}
 	dist := func(t float64) float64 {
 		p := pt(t)
@@ -248,7 +248,7 @@ func (c CriticalLocator) Distance(alpha, beta float64) (float64, ScreenPoint) {
 	const gr = 0.6180339887498949
 	x1, x2 := hi-gr*(hi-lo), lo+gr*(hi-lo)
 	f1, f2 := dist(x1), dist(x2)
-	for i := 0; i < searchMaxIter && hi-lo > searchTol*math.Max(1, math.Abs(hi)); i++ {
+	for i := 0; i < searchMaxIter && hi-lo > searchTol*max(1, math.Abs(hi)); i++ {
 		if f1 < f2 {
 			hi, x2, f2 = x2, x1, f1
 			x1 = hi - gr*(hi-lo)

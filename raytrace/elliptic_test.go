@@ -140,3 +140,22 @@ func TestJacobiIdentities(t *testing.T) {
 		t.Error("sn(NaN) should be NaN")
 	}
 }
+
+// TestCosThirdAcos checks the resolvent's trigonometric root against
+// math.Cos(math.Acos(x)/3) (the closed form of DLMF 1.11(iii)) over the
+// whole range, both sides of its switch at −0.99, and at the ends, where
+// cos(0) = 1, cos(π/6) = √3/2 and cos(π/3) = ½.
+func TestCosThirdAcos(t *testing.T) {
+	worst := 0.0
+	for k := 0; k <= 100000; k++ {
+		x := -1 + 2*float64(k)/100000
+		want := math.Cos(math.Acos(x) / 3)
+		worst = max(worst, math.Abs(cosThirdAcos(x)-want)/want)
+	}
+	if worst > 2e-15 {
+		t.Errorf("cos(acos(x)/3): worst relative error %g, want ≤ 2e-15", worst)
+	}
+	near(t, "x=1", cosThirdAcos(1), 1, 1e-15)
+	near(t, "x=0", cosThirdAcos(0), math.Sqrt(3)/2, 1e-15)
+	near(t, "x=-1", cosThirdAcos(-1), 0.5, 1e-15)
+}

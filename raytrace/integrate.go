@@ -250,15 +250,15 @@ func (o Observer) integrate(alpha, beta float64, orders int, tol float64, p *Pat
 		y5, ev := g.step(y, h)
 		errn := 0.0
 		nd := g.dim()
-		if g.timed && math.Min(g.delta(y[0]), g.delta(y5[0])) < timedHorizonMargin {
+		if g.timed && min(g.delta(y[0]), g.delta(y5[0])) < timedHorizonMargin {
 			nd = 4 // t and φ diverge at the horizon: control the orbit only
 		}
 		for i := 0; i < nd; i++ {
-			sc := tol * (1 + math.Max(math.Abs(y[i]), math.Abs(y5[i])))
-			errn = math.Max(errn, math.Abs(ev[i])/sc)
+			sc := tol * (1 + max(math.Abs(y[i]), math.Abs(y5[i])))
+			errn = max(errn, math.Abs(ev[i])/sc)
 		}
 		if errn > 1 || math.IsNaN(errn) {
-			h *= math.Max(minShrink, stepSafety*math.Pow(errn, stepExponent))
+			h *= max(minShrink, stepSafety*math.Pow(errn, stepExponent))
 			if math.IsNaN(errn) {
 				h = h / 10
 			}
@@ -316,7 +316,7 @@ func (o Observer) integrate(alpha, beta float64, orders int, tol float64, p *Pat
 			}
 			y, tau = ys, tau+best
 			// Nudge past the event so it is not found again.
-			h = math.Max(h-best, minRestep)
+			h = max(h-best, minRestep)
 			continue
 		}
 		if prevDu > 0 && y5[1] <= 0 && math.IsInf(p.Turn, 1) {
@@ -326,10 +326,10 @@ func (o Observer) integrate(alpha, beta float64, orders int, tol float64, p *Pat
 		y, tau = y5, tau+h
 		fac := maxGrow
 		if errn > 0 {
-			fac = math.Min(maxGrow, stepSafety*math.Pow(errn, stepExponent))
+			fac = min(maxGrow, stepSafety*math.Pow(errn, stepExponent))
 		}
 		h *= fac
-		h = math.Min(h, maxStep)
+		h = min(h, maxStep)
 	}
 	return ErrNoConvergence
 }

@@ -44,12 +44,12 @@ func EquatorialMomentum(a, lambda, eta, r float64, outbound, up bool) Vector {
 	delta := r2 - 2*r + a*a
 	w := r2 + a*a - a*lambda
 	lma := lambda - a
-	rr := math.Max(0, w*w-delta*(eta+lma*lma))
+	rr := max(0, w*w-delta*(eta+lma*lma))
 	kr := math.Sqrt(rr) / r2
 	if !outbound {
 		kr = -kr
 	}
-	kth := math.Sqrt(math.Max(0, eta)) / r2
+	kth := math.Sqrt(max(0, eta)) / r2
 	if up {
 		kth = -kth
 	}

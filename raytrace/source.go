@@ -187,12 +187,12 @@ func (s AxisSource) Emit(psi float64, orders int, p *SourcePath) error {
 	case q.cs == FourReal && q.r3 > rh && h < (q.r3+q.r4)/2:
 		return s.emitBound(q, eta, outward, orders, p)
 	case q.cs == FourReal && q.r4 > rh:
-		rad = newRadialI(q, rh, true)
+		rad.initI(&q, rh, true)
 		escapes = true
 	case q.cs == FourReal:
-		rad = newRadialI(q, rh, false)
+		rad.initI(&q, rh, false)
 	case q.cs == TwoReal && q.r2 < rh:
-		rad = newRadialII(q, rh)
+		rad.initII(&q, rh)
 	default:
 		return ErrSourceRoots
 	}
@@ -275,8 +275,8 @@ func (s AxisSource) emitBound(q quartic, eta float64, outward bool, orders int, 
 	scale := math.Sqrt(r31*r42) / 2
 	yOf := func(r float64) float64 {
 		den := r32 * (q.r4 - r)
-		s2 := math.Min(1, math.Max(0, r42*(q.r3-r)/den))
-		c2 := math.Max(0, q.r43*(r-q.r2)/den)
+		s2 := min(1, max(0, r42*(q.r3-r)/den))
+		c2 := max(0, q.r43*(r-q.r2)/den)
 		return ellipFsc(s2, c2, mc)
 	}
 	rOf := func(y float64) float64 {
@@ -320,7 +320,7 @@ func (s AxisSource) emitBound(q quartic, eta float64, outward bool, orders int, 
 			break
 		}
 		y := yh + dir*scale*tau
-		r := math.Max(rh, rOf(y))
+		r := max(rh, rOf(y))
 		var tr float64
 		if outward && y < 0 {
 			tr = (integral(yh, 0) + integral(0, y)) / scale
@@ -334,13 +334,13 @@ func (s AxisSource) emitBound(q quartic, eta float64, outward bool, orders int, 
 
 // minoFromInfinity returns the Mino time from infinity to radius r ≥ the
 // outer root on the inward leg of the photon of roots q: the horizon
-// formulas of newRadialI and newRadialII with r₊ replaced by r.
+// formulas of initI and initII with r₊ replaced by r.
 func (rd radial) minoFromInfinity(q quartic, r float64) float64 {
 	if rd.cs == FourReal {
 		den := rd.r41 * (r - rd.r3)
 		s2 := rd.r31 * (r - rd.r4) / den
 		c2 := rd.r43 * (r - q.r1) / den
-		x := ellipFsc(math.Min(1, math.Max(0, s2)), math.Max(0, c2), rd.mc)
+		x := ellipFsc(min(1, max(0, s2)), max(0, c2), rd.mc)
 		return (rd.x0 - x) / rd.scale
 	}
 	cn := (rd.num0 - r*rd.den0) / (r*rd.den1 - rd.num1)

@@ -221,14 +221,14 @@ func (o Observer) trace(lambda, eta, beta float64, orders int, p *Path, tm *timi
 	var rad radial
 	switch {
 	case q.cs == FourReal && q.r4 > rh:
-		rad = newRadialI(q, rh, true)
+		rad.initI(&q, rh, true)
 		p.Fate = Escaped
 		p.Turn = rad.turn
 	case q.cs == FourReal:
-		rad = newRadialI(q, rh, false)
+		rad.initI(&q, rh, false)
 		p.Fate = Captured
 	case q.cs == TwoReal && q.r2 < rh:
-		rad = newRadialII(q, rh)
+		rad.initII(&q, rh)
 		p.Fate = Captured
 	case q.cs == TwoReal:
 		// r2 ≥ r₊ with complex r3,4 would be a turning point outside the
@@ -279,9 +279,9 @@ func (o Observer) trace(lambda, eta, beta float64, orders int, p *Path, tm *timi
 	} else {
 		// sin²φ = cos²θo/u₊; cos²φ = (u₊ - cos²θo)/u₊ written without
 		// cancellation: u₊ - cos²θo = sin²θo β² / (a² cos²θo - w).
-		s2 := math.Min(1, c*c/up)
+		s2 := min(1, c*c/up)
 		c2 := o.sin * o.sin * beta * beta / ((a*a*c*c - w) * up)
-		c2 = math.Min(1, c2)
+		c2 = min(1, c2)
 		gobs := ellipFsc(s2, c2, mcTheta) / sw
 		sgn := 1.0
 		if (beta < 0) != (c < 0) && c != 0 {
@@ -330,13 +330,34 @@ type radial struct {
 	c0, r21      float64 // case II: cn X0 = (A' - B')/(A' + B'), r2 - r1
 	// sn, cn, dn of X0 (case I: of F0), set once for at.
 	sn0, cn0, dn0 float64
+	// The AGM of the parameter, set once for every r(τ) of the photon
+	// (jacobi); agmOK is false where jacobi's special cases m = 0 or
+	// mc = 0 apply.
+	agm   agmTable
+	agmOK bool
 }
 
-// newRadialI sets up case I, four real roots (Gralla & Lupsasca 2020,
+// setAGM prepares rd.agm for rd.m and rd.mc.
+func (rd *radial) setAGM() {
+	rd.agmOK = rd.m > 0 && rd.mc > 0 && !math.IsNaN(rd.m)
+	if rd.agmOK {
+		rd.agm.set(rd.mc)
+	}
+}
+
+// jacobi returns sn, cn and dn of u for the photon's parameter.
+func (rd *radial) jacobi(u float64) (sn, cn, dn float64) {
+	if rd.agmOK && !math.IsNaN(u) && !math.IsInf(u, 0) {
+		return rd.agm.jacobi(u)
+	}
+	return jacobi(u, rd.m, rd.mc)
+}
+
+// initI sets up case I, four real roots (Gralla & Lupsasca 2020,
 // sec. IV): k = r32 r41/(r31 r42), F0 = F(arcsin sqrt(r31/r41)|k),
 // X = ½ sqrt(r31 r42) τ - F0,
 // r = (r4 r31 - r3 r41 sn²X)/(r31 - r41 sn²X).
-func newRadialI(q quartic, rh float64, escapes bool) radial {
+func (rd *radial) initI(q *quartic, rh float64, escapes bool) {
 	r31 := q.r3 - q.r1
 	r41 := q.r4 - q.r1
 	r32 := q.r3 - q.r2
@@ -345,30 +366,30 @@ func newRadialI(q quartic, rh float64, escapes bool) radial {
 	mc := q.r21 * q.r43 / (r31 * r42)
 	f0 := ellipFsc(r31/r41, q.r43/r41, mc)
 	scale := math.Sqrt(r31*r42) / 2
-	rd := radial{cs: FourReal, r3: q.r3, r4: q.r4, r31: r31, r41: r41, r42: r42, r43: q.r43,
+	*rd = radial{cs: FourReal, r3: q.r3, r4: q.r4, r31: r31, r41: r41, r42: r42, r43: q.r43,
 		scale: scale, x0: f0, m: m, mc: mc, turn: math.Inf(1),
 		sn0: math.Sqrt(r31 / r41), cn0: math.Sqrt(q.r43 / r41), dn0: math.Sqrt(q.r43 / r42)}
+	rd.setAGM()
 	if escapes {
 		rd.turn = f0 / scale
 		rd.total = 2 * f0 / scale
-		return rd
+		return
 	}
 	// Horizon at X_h = -F(arcsin sqrt(r31 (r₊ - r4)/(r41 (r₊ - r3))) | k).
 	num := r31 * (rh - q.r4)
 	den := r41 * (rh - q.r3)
 	s2 := num / den
 	c2 := q.r43 * (rh - q.r1) / den // 1 - s2
-	xh := -ellipFsc(math.Min(1, s2), math.Max(0, c2), mc)
+	xh := -ellipFsc(min(1, s2), max(0, c2), mc)
 	rd.total = (xh + f0) / scale
-	return rd
 }
 
-// newRadialII sets up case II, r1 < r2 real and r3 = conj(r4) (Gralla &
+// initII sets up case II, r1 < r2 real and r3 = conj(r4) (Gralla &
 // Lupsasca 2020, sec. IV): A' = |r3 - r2|, B' = |r3 - r1|,
 // k = ((A' + B')² - r21²)/(4A'B'), X0 = F(arccos((A'-B')/(A'+B'))|k),
 // X = sqrt(A'B') τ - X0,
 // r = ((B'r2 - A'r1) + (B'r2 + A'r1) cn X)/((B' - A') + (B' + A') cn X).
-func newRadialII(q quartic, rh float64) radial {
+func (rd *radial) initII(q *quartic, rh float64) {
 	d2 := q.re34 - q.r2
 	d1 := q.re34 - q.r1
 	im2 := q.im34 * q.im34
@@ -388,16 +409,16 @@ func newRadialII(q quartic, rh float64) radial {
 	}
 	x0 := ellipFcos((ap-bp)/(ap+bp), mc)
 	scale := math.Sqrt(ap * bp)
-	rd := radial{cs: TwoReal, ap: ap, bp: bp,
+	*rd = radial{cs: TwoReal, ap: ap, bp: bp,
 		num0: bp*q.r2 - ap*q.r1, num1: bp*q.r2 + ap*q.r1,
 		den0: bp - ap, den1: bp + ap,
 		scale: scale, x0: x0, m: m, mc: mc, turn: math.Inf(1),
 		c0: (ap - bp) / (ap + bp), r21: r21}
+	rd.setAGM()
 	rd.sn0 = math.Sqrt((1 - rd.c0) * (1 + rd.c0))
 	rd.dn0 = math.Sqrt(1 - m*rd.sn0*rd.sn0)
 	cnh := (rd.num0 - rh*rd.den0) / (rh*rd.den1 - rd.num1)
 	rd.total = (x0 - ellipFcos(cnh, mc)) / scale
-	return rd
 }
 
 // at returns r(τ) for 0 ≤ τ ≤ total. Both cases are evaluated in a form
@@ -410,7 +431,7 @@ func newRadialII(q quartic, rh float64) radial {
 //	case II: r = (B'r2 + A'r1)/(A'+B') + 2A'B'r21 / ((A'+B')² (cn X - cn X0))
 //
 // with s0 + sn X and cn X - cn X0 written through sn δ, cn δ, dn δ.
-func (rd radial) at(tau float64) float64 { return rd.eval(tau, nil) }
+func (rd *radial) at(tau float64) float64 { return rd.eval(tau, nil) }
 
 // pathJacobi is what the timing (radialTimer.at) needs of a point of the
 // radial path: Y = |X| (case I) or X0 − scale·τ (case II), sn, cn, dn of
@@ -430,14 +451,14 @@ type pathJacobi struct {
 // in both cases (δ folded in case I): sn Y = (s0 cd dd − sd c0 d0)/D,
 // cn Y = (c0 cd + s0 d0 sd dd)/D, dn Y = (d0 dd + m s0 c0 sd cd)/D,
 // D = 1 − m s0² sd² = dd² + m c0² sd².
-func (rd radial) eval(tau float64, jac *pathJacobi) float64 {
+func (rd *radial) eval(tau float64, jac *pathJacobi) float64 {
 	if rd.cs == FourReal {
 		// r(X) is even in X: fold the outgoing half onto the incoming one.
 		d := rd.scale * tau
 		if tau > rd.turn {
 			d = rd.scale * (rd.total - tau)
 		}
-		sd, cd, dd := jacobi(d, rd.m, rd.mc)
+		sd, cd, dd := rd.jacobi(d)
 		// sn F0 = sqrt(r31/r41), cn F0 = sqrt(r43/r41), dn F0 = sqrt(r43/r42).
 		s0, c0, d0 := rd.sn0, rd.cn0, rd.dn0
 		den := 1 - rd.m*s0*s0*sd*sd
@@ -455,7 +476,7 @@ func (rd radial) eval(tau float64, jac *pathJacobi) float64 {
 		return rd.r3 + rd.r31*rd.r43/(rd.r41*(s0-snx)*plus)
 	}
 	d := rd.scale * tau
-	sd, cd, dd := jacobi(d, rd.m, rd.mc)
+	sd, cd, dd := rd.jacobi(d)
 	c0, s0, d0 := rd.c0, rd.sn0, rd.dn0
 	cm1 := cd - 1
 	if cd > 0 {
@@ -472,7 +493,7 @@ func (rd radial) eval(tau float64, jac *pathJacobi) float64 {
 
 // pathJacobi fills y, cn, dn, D and sgn = −1 of jac for the point δ of the
 // path (see eval); eval sets sn and, past the turning point, sgn.
-func (rd radial) pathJacobi(jac *pathJacobi, d, sd, cd, dd float64) {
+func (rd *radial) pathJacobi(jac *pathJacobi, d, sd, cd, dd float64) {
 	s0, c0, d0 := rd.sn0, rd.cn0, rd.dn0
 	if rd.cs != FourReal {
 		c0 = rd.c0

@@ -186,7 +186,7 @@ func (g transportODE) wave(y transportState) Vector {
 
 // kappa is WalkerPenrose of the state.
 func (g transportODE) kappa(y transportState) complex128 {
-	th := math.Acos(math.Max(-1, math.Min(1, y[2])))
+	th := math.Acos(max(-1, min(1, y[2])))
 	if y[2] == 0 {
 		th = math.Pi / 2
 	}
@@ -239,15 +239,15 @@ func (o Observer) Transport(alpha, beta, chi, uStart float64, orders int, tol fl
 		y5, ev := g.step(y, h)
 		errn := 0.0
 		nd := len(y)
-		if math.Min(g.geo.delta(y[0]), g.geo.delta(y5[0])) < transportHorizonMargin {
+		if min(g.geo.delta(y[0]), g.geo.delta(y5[0])) < transportHorizonMargin {
 			nd = 4 // f^t and f^φ diverge at the horizon: control the orbit only
 		}
 		for i := 0; i < nd; i++ {
-			sc := tol * (1 + math.Max(math.Abs(y[i]), math.Abs(y5[i])))
-			errn = math.Max(errn, math.Abs(ev[i])/sc)
+			sc := tol * (1 + max(math.Abs(y[i]), math.Abs(y5[i])))
+			errn = max(errn, math.Abs(ev[i])/sc)
 		}
 		if (errn > 1 || math.IsNaN(errn)) && !(y[1] < 0 && !(y5[0] > uStart)) {
-			h *= math.Max(minShrink, stepSafety*math.Pow(errn, stepExponent))
+			h *= max(minShrink, stepSafety*math.Pow(errn, stepExponent))
 			if math.IsNaN(errn) {
 				h /= 10
 			}
@@ -285,17 +285,17 @@ func (o Observer) Transport(alpha, beta, chi, uStart float64, orders int, tol fl
 				return start, out, nil
 			}
 			y, tau = ys, tau+best
-			h = math.Max(h-best, minRestep)
+			h = max(h-best, minRestep)
 			continue
 		}
 		y, tau = y5, tau+h
 		fac := maxGrow
 		if errn > 0 {
-			fac = math.Min(maxGrow, stepSafety*math.Pow(errn, stepExponent))
+			fac = min(maxGrow, stepSafety*math.Pow(errn, stepExponent))
 		}
 		// Steps grow with r from the start: cap them in proportion to u
 		// far out, as Integrate caps them near the hole.
-		h = math.Min(h*fac, math.Min(maxStep, math.Max(y[0], uStart)))
+		h = min(h*fac, min(maxStep, max(y[0], uStart)))
 	}
 	return start, out, ErrNoConvergence
 }

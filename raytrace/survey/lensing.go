@@ -141,8 +141,8 @@ func Lensing(ctx context.Context, o raytrace.Observer, directionsDeg []float64, 
 func ShadowCenter(o raytrace.Observer) (alpha, beta float64) {
 	amin, amax, bmin, bmax := math.Inf(1), math.Inf(-1), math.Inf(1), math.Inf(-1)
 	for _, p := range o.CriticalCurve(400) {
-		amin, amax = math.Min(amin, p.Alpha), math.Max(amax, p.Alpha)
-		bmin, bmax = math.Min(bmin, p.Beta), math.Max(bmax, p.Beta)
+		amin, amax = min(amin, p.Alpha), max(amax, p.Alpha)
+		bmin, bmax = min(bmin, p.Beta), max(bmax, p.Beta)
 	}
 	return (amin + amax) / 2, (bmin + bmax) / 2
 }
