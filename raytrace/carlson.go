@@ -201,6 +201,46 @@ func carlsonRF(x, y, z float64) float64 {
 		x, y, z, a = (x+lam)*0.25, (y+lam)*0.25, (z+lam)*0.25, (a+lam)*0.25
 		fac *= 0.25
 	}
+	return carlsonSeriesF(a0, x0, y0, a, fac)
+}
+
+// carlsonRF2 returns R_F(xa, ya, 1) and R_F(xb, yb, 1), each by the steps
+// of carlsonRF (so the same results to the last bit), in one loop: the two
+// chains of square roots are independent, and side by side the processor
+// overlaps them.
+func carlsonRF2(xa, ya, xb, yb float64) (float64, float64) {
+	const tol = 1.2674918778210762e-02 // (3ε)^{1/8}
+	za, zb := 1.0, 1.0
+	a0a, a0b := (xa+ya+za)/3, (xb+yb+zb)/3
+	qa := max(math.Abs(a0a-xa), math.Abs(a0a-ya), math.Abs(a0a-za)) / tol
+	qb := max(math.Abs(a0b-xb), math.Abs(a0b-yb), math.Abs(a0b-zb)) / tol
+	x0a, y0a, x0b, y0b := xa, ya, xb, yb
+	aa, ab := a0a, a0b
+	faca, facb := 1.0, 1.0
+	for i := 0; i < carlsonMaxIter; i++ {
+		goA, goB := faca*qa >= aa, facb*qb >= ab
+		if !goA && !goB {
+			break
+		}
+		if goA {
+			sx, sy, sz := math.Sqrt(xa), math.Sqrt(ya), math.Sqrt(za)
+			lam := sx*sy + sx*sz + sy*sz
+			xa, ya, za, aa = (xa+lam)*0.25, (ya+lam)*0.25, (za+lam)*0.25, (aa+lam)*0.25
+			faca *= 0.25
+		}
+		if goB {
+			sx, sy, sz := math.Sqrt(xb), math.Sqrt(yb), math.Sqrt(zb)
+			lam := sx*sy + sx*sz + sy*sz
+			xb, yb, zb, ab = (xb+lam)*0.25, (yb+lam)*0.25, (zb+lam)*0.25, (ab+lam)*0.25
+			facb *= 0.25
+		}
+	}
+	return carlsonSeriesF(a0a, x0a, y0a, aa, faca), carlsonSeriesF(a0b, x0b, y0b, ab, facb)
+}
+
+// carlsonSeriesF is the series end of carlsonRF: initial mean a0, initial
+// x, y, final mean a and factor 4^{-n}.
+func carlsonSeriesF(a0, x0, y0, a, fac float64) float64 {
 	X := fac * (a0 - x0) / a
 	Y := fac * (a0 - y0) / a
 	Z := -X - Y
@@ -222,6 +262,9 @@ func carlsonRF(x, y, z float64) float64 {
 // shared.
 func carlsonLoop(x, y, z float64, ps []float64, rj []float64) float64 {
 	n := len(ps)
+	if n == 3 {
+		return carlsonLoop3(x, y, z, ps, rj)
+	}
 	var pv, a0, av, delta, sum [4]float64
 	// R_D is R_J with p = z; its mean is (x + y + 3z)/5.
 	ad0 := (x + y + 3*z) / 5
@@ -252,17 +295,7 @@ func carlsonLoop(x, y, z float64, ps []float64, rj []float64) float64 {
 		sumD += fac / (sz * (z + lam))
 		f3 := fac * fac * fac
 		for i := range pv[:n] {
-			sp := math.Sqrt(pv[i])
-			d := (sp + sx) * (sp + sy) * (sp + sz)
-			inv := 1 / d
-			e := f3 * delta[i] * inv * inv
-			var rc float64
-			if e < 3e-4 && e > -3e-4 {
-				rc = 1 - e*(1.0/3-e*(1.0/5-e*(1.0/7-e*(1.0/9)))) // rc1's short series
-			} else {
-				rc = rc1(e)
-			}
-			sum[i] += fac * rc * inv
+			sum[i] += carlsonTermJ(pv[i], delta[i], sx, sy, sz, f3, fac)
 			pv[i] = (pv[i] + lam) * 0.25
 			av[i] = (av[i] + lam) * 0.25
 		}
@@ -288,21 +321,103 @@ func carlsonLoop(x, y, z float64, ps []float64, rj []float64) float64 {
 		sumD = fac*carlsonSeriesJ(e2, e3, e4, e5)/(ad*math.Sqrt(ad)) + 3*sumD
 	}
 	for i := 0; i < n; i++ {
-		a := av[i]
-		ia := fac / a
-		X := (a0[i] - x0) * ia
-		Y := (a0[i] - y0) * ia
-		Z := (a0[i] - z0) * ia
-		P := -(X + Y + Z) / 2
-		P2 := P * P
-		xyz := X * Y * Z
-		e2 := X*Y + X*Z + Y*Z - 3*P2
-		e3 := xyz + 2*e2*P + 4*P2*P
-		e4 := (2*xyz + e2*P + 3*P2*P) * P
-		e5 := xyz * P2
-		rj[i] = fac*carlsonSeriesJ(e2, e3, e4, e5)/(a*math.Sqrt(a)) + 6*sum[i]
+		rj[i] = carlsonEndJ(a0[i], av[i], x0, y0, z0, fac) + 6*sum[i]
 	}
 	return sumD
+}
+
+// carlsonLoop3 is carlsonLoop for exactly three p (the timing's ν and
+// the two horizons), with the same operations in the same order, so the
+// same results to the last bit (carlson_test.go checks that), but with
+// its running values in scalars instead of arrays, which the compiler
+// keeps in registers.
+func carlsonLoop3(x, y, z float64, ps []float64, rj []float64) float64 {
+	p0, p1, p2 := ps[0], ps[1], ps[2]
+	ad0 := (x + y + 3*z) / 5
+	lo, _, hi := sort3(x, y, z)
+	ad := ad0
+	a00 := (x + y + z + 2*p0) / 5
+	a01 := (x + y + z + 2*p1) / 5
+	a02 := (x + y + z + 2*p2) / 5
+	av0, av1, av2 := a00, a01, a02
+	d0 := (p0 - x) * (p0 - y) * (p0 - z)
+	d1 := (p1 - x) * (p1 - y) * (p1 - z)
+	d2 := (p2 - x) * (p2 - y) * (p2 - z)
+	maxDev := max(ad0-lo, hi-ad0)
+	maxDev = max(maxDev, a00-min(lo, p0), max(hi, p0)-a00)
+	maxDev = max(maxDev, a01-min(lo, p1), max(hi, p1)-a01)
+	maxDev = max(maxDev, a02-min(lo, p2), max(hi, p2)-a02)
+	minA := min(ad0, a00, a01, a02)
+	q := carlsonQJ * maxDev
+	x0, y0, z0 := x, y, z
+	fac := 1.0
+	sumD, s0, s1, s2 := 0.0, 0.0, 0.0, 0.0
+	for it := 0; it < carlsonMaxIter && fac*q >= minA; it++ {
+		sx, sy, sz := math.Sqrt(x), math.Sqrt(y), math.Sqrt(z)
+		lam := sx*sy + sx*sz + sy*sz
+		sumD += fac / (sz * (z + lam))
+		f3 := fac * fac * fac
+		s0 += carlsonTermJ(p0, d0, sx, sy, sz, f3, fac)
+		s1 += carlsonTermJ(p1, d1, sx, sy, sz, f3, fac)
+		s2 += carlsonTermJ(p2, d2, sx, sy, sz, f3, fac)
+		p0, p1, p2 = (p0+lam)*0.25, (p1+lam)*0.25, (p2+lam)*0.25
+		av0, av1, av2 = (av0+lam)*0.25, (av1+lam)*0.25, (av2+lam)*0.25
+		x, y, z = (x+lam)*0.25, (y+lam)*0.25, (z+lam)*0.25
+		ad = (ad + lam) * 0.25
+		minA = min(ad, av0, av1, av2)
+		fac *= 0.25
+	}
+	{
+		ia := fac / ad
+		X := (ad0 - x0) * ia
+		Y := (ad0 - y0) * ia
+		Z := -(X + Y) / 3
+		xy, zz := X*Y, Z*Z
+		e2 := xy - 6*zz
+		e3 := (3*xy - 8*zz) * Z
+		e4 := 3 * (xy - zz) * zz
+		e5 := xy * Z * zz
+		sumD = fac*carlsonSeriesJ(e2, e3, e4, e5)/(ad*math.Sqrt(ad)) + 3*sumD
+	}
+	rj[0] = carlsonEndJ(a00, av0, x0, y0, z0, fac) + 6*s0
+	rj[1] = carlsonEndJ(a01, av1, x0, y0, z0, fac) + 6*s1
+	rj[2] = carlsonEndJ(a02, av2, x0, y0, z0, fac) + 6*s2
+	return sumD
+}
+
+// carlsonTermJ is one duplication step's term 4^{-n} R_C(1, 1 + e_n)/d_n
+// of R_J (see carlsonLoop), for the current p and square roots of x, y, z,
+// δ and f3 = fac³.
+func carlsonTermJ(p, delta, sx, sy, sz, f3, fac float64) float64 {
+	sp := math.Sqrt(p)
+	d := (sp + sx) * (sp + sy) * (sp + sz)
+	inv := 1 / d
+	e := f3 * delta * inv * inv
+	var rc float64
+	if e < 3e-4 && e > -3e-4 {
+		rc = 1 - e*(1.0/3-e*(1.0/5-e*(1.0/7-e*(1.0/9)))) // rc1's short series
+	} else {
+		rc = rc1(e)
+	}
+	return fac * rc * inv
+}
+
+// carlsonEndJ is the series part of R_J at the end of the duplication:
+// fac·T(E2…E5)/A^{3/2} for the initial mean a0 and final mean a (see
+// carlsonLoop).
+func carlsonEndJ(a0, a, x0, y0, z0, fac float64) float64 {
+	ia := fac / a
+	X := (a0 - x0) * ia
+	Y := (a0 - y0) * ia
+	Z := (a0 - z0) * ia
+	P := -(X + Y + Z) / 2
+	P2 := P * P
+	xyz := X * Y * Z
+	e2 := X*Y + X*Z + Y*Z - 3*P2
+	e3 := xyz + 2*e2*P + 4*P2*P
+	e4 := (2*xyz + e2*P + 3*P2*P) * P
+	e5 := xyz * P2
+	return fac * carlsonSeriesJ(e2, e3, e4, e5) / (a * math.Sqrt(a))
 }
 
 // carlsonSeriesJ is the Taylor series of R_J (and R_D) about the mean to

@@ -139,3 +139,35 @@ func TestCarlsonRFAgainstGonum(t *testing.T) {
 		t.Errorf("R_F against gonum: worst relative difference %g, want ≤ 2e-15", worst)
 	}
 }
+
+// TestCarlsonLoop3 checks that the three-p duplication loop gives the
+// general loop's results to the last bit (the general loop runs for four
+// p, the fourth a copy of the third).
+func TestCarlsonLoop3(t *testing.T) {
+	rng := rand.New(rand.NewPCG(11, 13))
+	for i := 0; i < 20000; i++ {
+		x, y := rng.Float64(), rng.Float64()*3
+		ps := []float64{rng.Float64() * 2, math.Pow(10, -3+6*rng.Float64()), rng.Float64() * 50}
+		var got [3]float64
+		var want [4]float64
+		rd3 := carlsonLoop(x, y, 1, ps, got[:])
+		rd4 := carlsonLoop(x, y, 1, append(ps, ps[2]), want[:])
+		if rd3 != rd4 || got[0] != want[0] || got[1] != want[1] || got[2] != want[2] {
+			t.Fatalf("x=%g y=%g p=%v: R_D %v vs %v, R_J %v vs %v", x, y, ps, rd3, rd4, got, want[:3])
+		}
+	}
+}
+
+// TestCarlsonRF2 checks that the paired R_F gives carlsonRF's results to
+// the last bit, for pairs needing different numbers of steps.
+func TestCarlsonRF2(t *testing.T) {
+	rng := rand.New(rand.NewPCG(19, 23))
+	for i := 0; i < 50000; i++ {
+		xa, ya := math.Pow(10, -12+12*rng.Float64()), 2*rng.Float64()
+		xb, yb := rng.Float64(), math.Pow(10, -8+9*rng.Float64())
+		ga, gb := carlsonRF2(xa, ya, xb, yb)
+		if wa, wb := carlsonRF(xa, ya, 1), carlsonRF(xb, yb, 1); ga != wa || gb != wb {
+			t.Fatalf("(%g,%g),(%g,%g): %v %v, want %v %v", xa, ya, xb, yb, ga, gb, wa, wb)
+		}
+	}
+}

@@ -58,6 +58,18 @@ func ellipFsc(s2, c2, mc float64) float64 {
 	return math.Sqrt(s2) * carlsonRF(c2, c2+mc*s2, 1)
 }
 
+// ellipFsc2 is ellipFsc for two amplitudes and parameters at once, with
+// the same steps for each, so the same results to the last bit, but the
+// two duplications of R_F side by side, where the processor overlaps them
+// (carlsonRF2).
+func ellipFsc2(s2a, c2a, mca, s2b, c2b, mcb float64) (fa, fb float64) {
+	if s2a <= 0 || s2b <= 0 {
+		return ellipFsc(s2a, c2a, mca), ellipFsc(s2b, c2b, mcb)
+	}
+	ra, rb := carlsonRF2(c2a, c2a+mca*s2a, c2b, c2b+mcb*s2b)
+	return math.Sqrt(s2a) * ra, math.Sqrt(s2b) * rb
+}
+
 // ellipFcos returns F(arccos x | m) for -1 ≤ x ≤ 1 (so 0 ≤ φ ≤ π), with
 // F(φ) = 2K - F(π - φ) for φ > π/2 (DLMF 19.2.10).
 func ellipFcos(x, mc float64) float64 {

@@ -2,6 +2,7 @@ package raytrace
 
 import (
 	"math"
+	"math/rand/v2"
 	"testing"
 )
 
@@ -65,6 +66,31 @@ func TestPhotonOrbits(t *testing.T) {
 			dR := 4*rr*rr*rr + 2*A*rr + B
 			if math.Abs(R) > 1e-9 || math.Abs(dR) > 1e-9 {
 				t.Errorf("a=%v t=%v: R=%g R'=%g", a, t0, R, dR)
+			}
+		}
+	}
+}
+
+// TestPolish4 checks that polishing four roots side by side gives the
+// one-at-a-time results to the last bit, over random quartics with four
+// real roots near and far apart.
+func TestPolish4(t *testing.T) {
+	rng := rand.New(rand.NewPCG(3, 17))
+	for i := 0; i < 20000; i++ {
+		// r⁴ + A r² + B r + C with roots summing to zero.
+		a, b, c := -10*rng.Float64(), 5*rng.Float64(), 1+20*rng.Float64()
+		d := -(a + b + c)
+		A := a*b + a*c + a*d + b*c + b*d + c*d
+		B := -(a*b*c + a*b*d + a*c*d + b*c*d)
+		C := a * b * c * d
+		in := [4]float64{a * (1 + 1e-9), b * (1 - 1e-9), c * (1 + 3e-10), d * (1 - 2e-10)}
+		g1, g2, g3, g4, o1, o2, o3, o4 := polish4(in[0], in[1], in[2], in[3], A, B, C)
+		got := [4]float64{g1, g2, g3, g4}
+		gok := [4]bool{o1, o2, o3, o4}
+		for k, r := range in {
+			w, ok := polish(r, A, B, C)
+			if w != got[k] || ok != gok[k] {
+				t.Fatalf("root %d of A=%g B=%g C=%g: %v,%v vs %v,%v", k, A, B, C, got[k], gok[k], w, ok)
 			}
 		}
 	}

@@ -143,10 +143,7 @@ func radialRoots(A, B, C float64) quartic {
 		q.r1, q.r2 = -z-s12, -z+s12
 		q.r3, q.r4 = z-s34, z+s34
 		var ok1, ok2, ok3, ok4 bool
-		q.r1, ok1 = polish(q.r1, A, B, C)
-		q.r2, ok2 = polish(q.r2, A, B, C)
-		q.r3, ok3 = polish(q.r3, A, B, C)
-		q.r4, ok4 = polish(q.r4, A, B, C)
+		q.r1, q.r2, q.r3, q.r4, ok1, ok2, ok3, ok4 = polish4(q.r1, q.r2, q.r3, q.r4, A, B, C)
 		if (!ok2 || !ok3) && ok1 && ok4 {
 			// Ferrari's middle pair cancels badly when |r1|, r4 ≫ r2, r3
 			// (large η near a near-extremal horizon): deflate with the two
@@ -207,30 +204,33 @@ func radialRoots(A, B, C float64) quartic {
 // trigonometric or Cardano form of the cubic (DLMF 1.11(iii)) and Newton
 // polishing.
 func resolventMax(A, B, C float64) float64 {
-	// Monic: y³ + p2 y² + p1 y + p0.
-	p2 := A / 2
-	p1 := (A*A - 4*C) / 16
-	p0 := -B * B / 64
+	// Monic: y³ + p2 y² + p1 y + p0. Constants as reciprocals: a division
+	// by a constant is not turned into a multiplication by the compiler.
+	const third, twentySeventh = 1.0 / 3, 1.0 / 27
+	p2 := A * 0.5
+	p1 := (A*A - 4*C) * 0.0625
+	p0 := -B * B * (1.0 / 64)
 	// Depressed: y = t - p2/3, t³ + pt + q = 0.
-	p := p1 - p2*p2/3
-	qq := 2*p2*p2*p2/27 - p2*p1/3 + p0
+	s3 := p2 * third
+	p := p1 - p2*s3
+	qq := 2*s3*s3*s3 - s3*p1 + p0
 	var t float64
-	disc := qq*qq/4 + p*p*p/27
+	disc := qq*qq*0.25 + p*p*p*twentySeventh
 	// When the two largest roots nearly coincide (r2 ≈ r3, e.g. near the
 	// horizon of a near-extremal hole), rounding can turn them into a
 	// complex pair and Cardano's form would return the small root: use the
 	// trigonometric form there, with its argument clamped.
-	nearDouble := p < 0 && disc <= nearDoubleResolvent*(qq*qq/4)
+	nearDouble := p < 0 && disc <= nearDoubleResolvent*(qq*qq*0.25)
 	if disc > 0 && !nearDouble {
 		s := math.Sqrt(disc)
 		u := math.Cbrt(-qq/2 - math.Copysign(s, qq))
 		v := 0.0
 		if u != 0 {
-			v = -p / (3 * u)
+			v = -p * third / u
 		}
 		t = u + v
 	} else {
-		m := 2 * math.Sqrt(max(0, -p/3))
+		m := 2 * math.Sqrt(max(0, -p*third))
 		arg := 0.0
 		if m > 0 {
 			arg = 3 * qq / (p * m)
@@ -238,7 +238,7 @@ func resolventMax(A, B, C float64) float64 {
 		arg = max(-1, min(1, arg))
 		t = m * cosThirdAcos(arg)
 	}
-	y := t - p2/3
+	y := t - s3
 	// Newton polish, keeping a step only if it lowers |f|: at a near-double
 	// root f' ≈ 0 and an unguarded step would jump to the small root.
 	f := ((y+p2)*y+p1)*y + p0
@@ -304,6 +304,49 @@ func polish(r, A, B, C float64) (float64, bool) {
 	}
 	terms := r2*r2 + math.Abs(A)*r2 + math.Abs(B*r) + math.Abs(C)
 	return r, math.Abs(f) <= polishResidual*terms
+}
+
+// polish4 is polish applied to four roots at once: the same steps for
+// each, so the same results to the last bit, but the four Newton
+// iterations, each a chain of dependent multiplications and a division,
+// run side by side and overlap in the processor instead of one after
+// another.
+func polish4(r1, r2, r3, r4, A, B, C float64) (p1, p2, p3, p4 float64, ok1, ok2, ok3, ok4 bool) {
+	var r, r2s, f [4]float64
+	var live [4]bool
+	r = [4]float64{r1, r2, r3, r4}
+	for k := range r {
+		r2s[k] = r[k] * r[k]
+		f[k] = (r2s[k]+A)*r2s[k] + B*r[k] + C
+		live[k] = f[k] != 0
+	}
+	for i := 0; i < polishNewtonSteps && (live[0] || live[1] || live[2] || live[3]); i++ {
+		for k := range r {
+			if !live[k] {
+				continue
+			}
+			df := (4*r2s[k]+2*A)*r[k] + B
+			if df == 0 {
+				live[k] = false
+				continue
+			}
+			n := r[k] - f[k]/df
+			n2 := n * n
+			fn := (n2+A)*n2 + B*n + C
+			if math.Abs(fn) >= math.Abs(f[k]) {
+				live[k] = false
+				continue
+			}
+			r[k], r2s[k], f[k] = n, n2, fn
+			live[k] = fn != 0
+		}
+	}
+	var ok [4]bool
+	for k := range r {
+		terms := r2s[k]*r2s[k] + math.Abs(A)*r2s[k] + math.Abs(B*r[k]) + math.Abs(C)
+		ok[k] = math.Abs(f[k]) <= polishResidual*terms
+	}
+	return r[0], r[1], r[2], r[3], ok[0], ok[1], ok[2], ok[3]
 }
 
 // refineNearPair re-polishes the roots r2, r3, r4 of case I with R(r)

@@ -217,9 +217,27 @@ func (o Observer) trace(lambda, eta, beta float64, orders int, p *Path, tm *timi
 	p.Roots = q.cs
 	rh := o.horizon
 
-	// Radial solution: total Mino time and r(τ).
+	// The angular motion (x = cos θ, (dx/dτ)² = a²(u₊ - x²)(x² - u₋)),
+	// set up first where the photon escapes with four real roots and
+	// crosses the plane, so that the F of its radial and of its angular
+	// motion run side by side (ellipFsc2).
+	var ang angularMotion
+	var gobs float64
+	paired := q.cs == FourReal && q.r4 > rh && eta > 0 && orders > 0 && beta != 0
 	var rad radial
+	if paired {
+		ang = o.angularMotion(A, eta, beta)
+		s2, c2, mc := caseIAmplitude(&q)
+		f0, g := ellipFsc2(s2, c2, mc, ang.s2, ang.c2, ang.mc)
+		rad.initIF0(&q, rh, true, f0)
+		gobs = g / ang.sw
+	}
+
+	// Radial solution: total Mino time and r(τ).
 	switch {
+	case paired:
+		p.Fate = Escaped
+		p.Turn = rad.turn
 	case q.cs == FourReal && q.r4 > rh:
 		rad.initI(&q, rh, true)
 		p.Fate = Escaped
@@ -260,29 +278,21 @@ func (o Observer) trace(lambda, eta, beta float64, orders int, p *Path, tm *timi
 		return
 	}
 
-	// Angular Mino times (x = cos θ, (dx/dτ)² = a²(u₊ - x²)(x² - u₋)).
-	s := math.Sqrt(A*A + 4*a*a*eta)
-	var w float64 // a² u₋ < 0
-	if A > 0 {
-		w = -2 * a * a * eta / (A + s)
-	} else {
-		w = (A - s) / 2
+	// Angular Mino times.
+	if !paired {
+		ang = o.angularMotion(A, eta, beta)
 	}
-	up := -eta / w
-	mcTheta := 1 + eta*a*a/(w*w) // 1 - m, m = -η a²/w² ≤ 0
-	sw := math.Sqrt(-w)
+	w, up, mcTheta, sw := ang.w, ang.up, ang.mc, ang.sw
 	gq := ellipK(mcTheta) / sw
 	c := o.cos
 	var tau0 float64
 	if beta == 0 {
 		tau0 = gq
 	} else {
-		// sin²φ = cos²θo/u₊; cos²φ = (u₊ - cos²θo)/u₊ written without
-		// cancellation: u₊ - cos²θo = sin²θo β² / (a² cos²θo - w).
-		s2 := min(1, c*c/up)
-		c2 := o.sin * o.sin * beta * beta / ((a*a*c*c - w) * up)
-		c2 = min(1, c2)
-		gobs := ellipFsc(s2, c2, mcTheta) / sw
+		s2, c2 := ang.s2, ang.c2
+		if !paired {
+			gobs = ellipFsc(s2, c2, mcTheta) / sw
+		}
 		sgn := 1.0
 		if (beta < 0) != (c < 0) && c != 0 {
 			sgn = -1
@@ -311,6 +321,37 @@ func (o Observer) trace(lambda, eta, beta float64, orders int, p *Path, tm *timi
 		}
 		p.Crossings = append(p.Crossings, Crossing{R: r, Mino: tau, Outbound: tau < p.Turn})
 	}
+}
+
+// angularMotion is the polar motion of a photon that crosses the plane
+// (η > 0): x = cos θ, (dx/dτ)² = a²(u₊ − x²)(x² − u₋) (package
+// documentation), and the amplitude of the observer's latitude.
+type angularMotion struct {
+	w, up, mc, sw float64 // a² u₋ < 0, u₊, 1 − m (m = −η a²/w² ≤ 0), sqrt(−w)
+	s2, c2        float64 // sin²φ = cos²θo/u₊ and cos²φ of the observer (β ≠ 0)
+}
+
+// angularMotion sets up the polar motion for A = a² − η − λ², η and β.
+func (o Observer) angularMotion(A, eta, beta float64) angularMotion {
+	a := o.spin
+	s := math.Sqrt(A*A + 4*a*a*eta)
+	var am angularMotion
+	if A > 0 {
+		am.w = -2 * a * a * eta / (A + s)
+	} else {
+		am.w = (A - s) / 2
+	}
+	am.up = -eta / am.w
+	am.mc = 1 + eta*a*a/(am.w*am.w)
+	am.sw = math.Sqrt(-am.w)
+	if beta != 0 {
+		// cos²φ = (u₊ − cos²θo)/u₊ written without cancellation:
+		// u₊ − cos²θo = sin²θo β² / (a² cos²θo − w).
+		c := o.cos
+		am.s2 = min(1, c*c/am.up)
+		am.c2 = min(1, o.sin*o.sin*beta*beta/((a*a*c*c-am.w)*am.up))
+	}
+	return am
 }
 
 // radial is the closed-form r(τ) of one photon.
@@ -358,13 +399,27 @@ func (rd *radial) jacobi(u float64) (sn, cn, dn float64) {
 // X = ½ sqrt(r31 r42) τ - F0,
 // r = (r4 r31 - r3 r41 sn²X)/(r31 - r41 sn²X).
 func (rd *radial) initI(q *quartic, rh float64, escapes bool) {
+	s2, c2, mc := caseIAmplitude(q)
+	rd.initIF0(q, rh, escapes, ellipFsc(s2, c2, mc))
+}
+
+// caseIAmplitude returns sin², cos² of the amplitude of F0 and 1 − k of
+// case I (see initI): r31/r41, r43/r41 and r21 r43/(r31 r42).
+func caseIAmplitude(q *quartic) (s2, c2, mc float64) {
+	r31 := q.r3 - q.r1
+	r41 := q.r4 - q.r1
+	r42 := q.r4 - q.r2
+	return r31 / r41, q.r43 / r41, q.r21 * q.r43 / (r31 * r42)
+}
+
+// initIF0 is initI given F0.
+func (rd *radial) initIF0(q *quartic, rh float64, escapes bool, f0 float64) {
 	r31 := q.r3 - q.r1
 	r41 := q.r4 - q.r1
 	r32 := q.r3 - q.r2
 	r42 := q.r4 - q.r2
 	m := r32 * r41 / (r31 * r42)
 	mc := q.r21 * q.r43 / (r31 * r42)
-	f0 := ellipFsc(r31/r41, q.r43/r41, mc)
 	scale := math.Sqrt(r31*r42) / 2
 	*rd = radial{cs: FourReal, r3: q.r3, r4: q.r4, r31: r31, r41: r41, r42: r42, r43: q.r43,
 		scale: scale, x0: f0, m: m, mc: mc, turn: math.Inf(1),
