@@ -295,7 +295,8 @@ func carlsonLoop(x, y, z float64, ps []float64, rj []float64) float64 {
 		sumD += fac / (sz * (z + lam))
 		f3 := fac * fac * fac
 		for i := range pv[:n] {
-			sum[i] += carlsonTermJ(pv[i], delta[i], sx, sy, sz, f3, fac)
+			t, e, inv := carlsonTermJ(pv[i], delta[i], sx, sy, sz, f3, fac)
+			sum[i] += carlsonFixJ(t, e, inv, fac)
 			pv[i] = (pv[i] + lam) * 0.25
 			av[i] = (av[i] + lam) * 0.25
 		}
@@ -357,9 +358,17 @@ func carlsonLoop3(x, y, z float64, ps []float64, rj []float64) float64 {
 		lam := sx*sy + sx*sz + sy*sz
 		sumD += fac / (sz * (z + lam))
 		f3 := fac * fac * fac
-		s0 += carlsonTermJ(p0, d0, sx, sy, sz, f3, fac)
-		s1 += carlsonTermJ(p1, d1, sx, sy, sz, f3, fac)
-		s2 += carlsonTermJ(p2, d2, sx, sy, sz, f3, fac)
+		t0, e0, i0 := carlsonTermJ(p0, d0, sx, sy, sz, f3, fac)
+		t1, e1, i1 := carlsonTermJ(p1, d1, sx, sy, sz, f3, fac)
+		t2, e2, i2 := carlsonTermJ(p2, d2, sx, sy, sz, f3, fac)
+		if !(max(e0, e1, e2) < 3e-4 && min(e0, e1, e2) > -3e-4) {
+			t0 = carlsonFixJ(t0, e0, i0, fac)
+			t1 = carlsonFixJ(t1, e1, i1, fac)
+			t2 = carlsonFixJ(t2, e2, i2, fac)
+		}
+		s0 += t0
+		s1 += t1
+		s2 += t2
 		p0, p1, p2 = (p0+lam)*0.25, (p1+lam)*0.25, (p2+lam)*0.25
 		av0, av1, av2 = (av0+lam)*0.25, (av1+lam)*0.25, (av2+lam)*0.25
 		x, y, z = (x+lam)*0.25, (y+lam)*0.25, (z+lam)*0.25
@@ -387,19 +396,24 @@ func carlsonLoop3(x, y, z float64, ps []float64, rj []float64) float64 {
 
 // carlsonTermJ is one duplication step's term 4^{-n} R_C(1, 1 + e_n)/d_n
 // of R_J (see carlsonLoop), for the current p and square roots of x, y, z,
-// δ and f3 = fac³.
-func carlsonTermJ(p, delta, sx, sy, sz, f3, fac float64) float64 {
+// δ and f3 = fac³, with R_C by its short series; it also returns e_n and
+// 1/d_n for carlsonFixJ, which redoes the rare steps where |e_n| is too
+// large for the series. (Split in two so that this part is inlined.)
+func carlsonTermJ(p, delta, sx, sy, sz, f3, fac float64) (term, e, inv float64) {
 	sp := math.Sqrt(p)
-	d := (sp + sx) * (sp + sy) * (sp + sz)
-	inv := 1 / d
-	e := f3 * delta * inv * inv
-	var rc float64
+	inv = 1 / ((sp + sx) * (sp + sy) * (sp + sz))
+	e = f3 * delta * inv * inv
+	rc := 1 - e*(1.0/3-e*(1.0/5-e*(1.0/7-e*(1.0/9)))) // rc1's short series
+	return fac * rc * inv, e, inv
+}
+
+// carlsonFixJ returns the term of carlsonTermJ, with R_C(1, 1 + e) by
+// rc1 where |e| ≥ 3e-4.
+func carlsonFixJ(term, e, inv, fac float64) float64 {
 	if e < 3e-4 && e > -3e-4 {
-		rc = 1 - e*(1.0/3-e*(1.0/5-e*(1.0/7-e*(1.0/9)))) // rc1's short series
-	} else {
-		rc = rc1(e)
+		return term
 	}
-	return fac * rc * inv
+	return fac * rc1(e) * inv
 }
 
 // carlsonEndJ is the series part of R_J at the end of the duplication:
