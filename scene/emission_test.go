@@ -383,3 +383,15 @@ func BenchmarkEmissivityAt(b *testing.B) {
 		})
 	}
 }
+
+// TestPowNeg checks the multiplied whole powers against math.Pow.
+func TestPowNeg(t *testing.T) {
+	for q := 0.0; q <= 7; q += 0.5 {
+		for _, r := range []float64{1.0001, 1.7, 2.9, 6, 33.3, 1e3, 2.5e5} {
+			want := math.Pow(r, -q)
+			if got := powNeg(r, q); math.Abs(got-want) > 4e-16*want {
+				t.Errorf("r=%v q=%v: %v, math.Pow %v", r, q, got, want)
+			}
+		}
+	}
+}

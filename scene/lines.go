@@ -126,6 +126,16 @@ func (ls RestLines) EnergyAt(r float64) float64 {
 	return t / ls.MeanKeV
 }
 
+// AtBoth returns At(r) and EnergyAt(r) together, evaluating the law once
+// when no line has its own (then both are e(r)).
+func (ls RestLines) AtBoth(r float64) (photon, energy float64) {
+	if !ls.own {
+		v := ls.Main.At(r)
+		return v, v
+	}
+	return ls.At(r), ls.EnergyAt(r)
+}
+
 // Parts fills parts (one per line) with each line's share ε_l(r) / Σ ε_l(r)
 // of the photons emitted at r: the Fractions, whatever r, unless a line
 // has its own law; the Fractions too where no line shines (Σ ε_l = 0).

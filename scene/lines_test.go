@@ -266,3 +266,24 @@ func TestLineListManifestRoundTrip(t *testing.T) {
 		}
 	}
 }
+
+// TestAtBoth checks that the paired evaluation equals At and EnergyAt,
+// with and without a line of its own law.
+func TestAtBoth(t *testing.T) {
+	own, err := parseScene(t, ironLines).Resolve()
+	if err != nil {
+		t.Fatal(err)
+	}
+	plain, err := Default().Resolve()
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, ls := range []RestLines{own.RestLines, plain.RestLines} {
+		for _, r := range []float64{1.5, 3, 7.25, 30, 400} {
+			p, e := ls.AtBoth(r)
+			if p != ls.At(r) || e != ls.EnergyAt(r) {
+				t.Errorf("own=%v r=%v: AtBoth %v, %v; At %v, EnergyAt %v", ls.Own(), r, p, e, ls.At(r), ls.EnergyAt(r))
+			}
+		}
+	}
+}

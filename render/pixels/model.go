@@ -121,7 +121,7 @@ func (m *Model) fill(alpha, beta float64, p *raytrace.Path, times []raytrace.Tim
 		if !ok {
 			continue
 		}
-		eps, epsE := m.Lines.At(c.R), m.Lines.EnergyAt(c.R)
+		eps, epsE := m.Lines.AtBoth(c.R)
 		limb := m.Limb.At(scene.EmissionCosine(g, c.R, p.Eta))
 		q, u := nan, nan
 		if m.Stokes || m.Polar.SinPower != 0 {
