@@ -96,6 +96,7 @@ func Run(ctx context.Context, r scene.Resolved, opt Options) (Summary, error) {
 	if opt.Band {
 		rep, err := f.LocateBand()
 		if err != nil {
+			out.Abort()
 			return Summary{}, err
 		}
 		sum.Band = &rep
