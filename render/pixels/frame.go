@@ -159,17 +159,29 @@ func RenderScene(ctx context.Context, r scene.Resolved, progress func(rows int),
 // is rendered at the provisional field Resolve gives it, which holds the
 // whole disk loosely; FrameWindow tightens it first.
 func Render(ctx context.Context, r scene.Resolved, progress func(rows int), keep ...Keep) (*Frame, error) {
+	return renderRows(ctx, r, progress, keepOf(keep), false)
+}
+
+// renderRows is Render of the records keep; with check, every row's records
+// are checked as CheckFinite checks them (checkPixels) once the row is
+// stored, and the first bad pixel's error is returned.
+func renderRows(ctx context.Context, r scene.Resolved, progress func(rows int), keep Keep, check bool) (*Frame, error) {
 	m, err := NewModel(r)
 	if err != nil {
 		return nil, err
 	}
 	w, h, n := r.Screen.Width, r.Screen.Height, r.Disk.Orders
-	m.Behind = m.Opaque && keepOf(keep)&KeepBehind != 0
-	m.Stokes = keepOf(keep)&KeepStokes != 0
-	f := newFrame(r, m, keepOf(keep))
+	m.Behind = m.Opaque && keep&KeepBehind != 0
+	m.Stokes = keep&KeepStokes != 0
+	f := newFrame(r, m, keep)
 	var rowBand []bandTally
 	if f.Band != nil {
 		rowBand = make([]bandTally, h)
+	}
+	var recs []finiteRecord
+	var rowErr []error
+	if check {
+		recs, rowErr = finiteRecords(f), make([]error, h)
 	}
 	finished := workers.Counter(progress)
 	parallel(ctx, h, n, func(j int, p *raytrace.Path, s *Sample) {
@@ -189,10 +201,18 @@ func Render(ctx context.Context, r scene.Resolved, progress func(rows int), keep
 				f.tallyCentre(i, j, s, &rowBand[j])
 			}
 		}
+		if len(recs) > 0 {
+			rowErr[j] = checkPixels(f, recs, j*w, (j+1)*w)
+		}
 		finished()
 	})
 	if err := ctx.Err(); err != nil {
 		return nil, err
+	}
+	for _, err := range rowErr {
+		if err != nil {
+			return nil, err
+		}
 	}
 	for j := range rowBand {
 		f.bandSums.merge(&rowBand[j])

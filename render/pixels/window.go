@@ -341,12 +341,22 @@ func (f *Frame) LineFlux() (flux float64, ok bool) {
 // RenderChecked is RenderScene followed by CheckFinite (which also
 // collapses the spectrum), with f.Clip set by EstimateClip when the disk
 // image touches the window's border: the render of a run or sweep frame.
+// Without refinement the records are checked row by row as the render's
+// workers store them, while they are in the cache.
 func RenderChecked(ctx context.Context, r scene.Resolved, progress func(rows int), keep Keep) (*Frame, *Spectrum, error) {
-	f, err := RenderScene(ctx, r, progress, keep)
+	var f *Frame
+	var err error
+	if r.Refine.Depth > 0 {
+		if f, err = RenderScene(ctx, r, progress, keep); err == nil {
+			err = checkRecords(f)
+		}
+	} else {
+		f, err = renderRows(ctx, r, progress, keepOf([]Keep{keep}), true)
+	}
 	if err != nil {
 		return nil, nil, err
 	}
-	spec, err := CheckFinite(f)
+	spec, err := checkSpectrum(f)
 	if err != nil {
 		return nil, nil, err
 	}
