@@ -191,3 +191,47 @@ func pixelError(f *Frame, recs []finiteRecord, o, k int) error {
 	}
 	return nil
 }
+
+// checkSample is checkPixels of pixel k from the sample s that store has
+// just written there, read from s rather than from the records: an order
+// not seen has NaN in every record (store), and a seen one has the
+// float32 values of its hit, which are checked by the same rules.
+func (f *Frame) checkSample(k int, s *Sample) error {
+	kept := [4]bool{f.R != nil, f.G != nil, f.Line != nil, f.Bol != nil}
+	var line, bol float64
+	for o := 0; o < f.Orders; o++ {
+		h := &s.Hits[o]
+		if !h.Seen {
+			continue
+		}
+		v := [4]float32{float32(h.R), float32(h.G), float32(h.Line), float32(h.Bol)}
+		sum, values := 0.0, 0
+		for i, x := range v {
+			if kept[i] {
+				sum += float64(x)
+				if x == x {
+					values++
+				}
+			}
+		}
+		if sum-sum != 0 { // NaN or ±Inf in some kept record
+			if values == 0 {
+				continue // all NaN: as not seen
+			}
+			return pixelError(f, finiteRecords(f), o, k)
+		}
+		if kept[2] {
+			line += float64(v[2])
+		}
+		if kept[3] {
+			bol += float64(v[3])
+		}
+	}
+	if x := float64(float32(line)); math.IsInf(x, 0) || math.IsNaN(x) {
+		return &NonFiniteError{Quantity: "line intensity", Order: -1, Pixel: [2]int{k % f.W, k / f.W}, Bin: -1, Value: x}
+	}
+	if x := float64(float32(bol)); math.IsInf(x, 0) || math.IsNaN(x) {
+		return &NonFiniteError{Quantity: "bolometric intensity", Order: -1, Pixel: [2]int{k % f.W, k / f.W}, Bin: -1, Value: x}
+	}
+	return nil
+}

@@ -162,9 +162,9 @@ func Render(ctx context.Context, r scene.Resolved, progress func(rows int), keep
 	return renderRows(ctx, r, progress, keepOf(keep), false)
 }
 
-// renderRows is Render of the records keep; with check, every row's records
-// are checked as CheckFinite checks them (checkPixels) once the row is
-// stored, and the first bad pixel's error is returned.
+// renderRows is Render of the records keep; with check, every pixel's
+// records are checked as CheckFinite checks them (checkSample) as they
+// are stored, and the first bad pixel's error is returned.
 func renderRows(ctx context.Context, r scene.Resolved, progress func(rows int), keep Keep, check bool) (*Frame, error) {
 	m, err := NewModel(r)
 	if err != nil {
@@ -178,10 +178,10 @@ func renderRows(ctx context.Context, r scene.Resolved, progress func(rows int), 
 	if f.Band != nil {
 		rowBand = make([]bandTally, h)
 	}
-	var recs []finiteRecord
 	var rowErr []error
+	check = check && len(finiteRecords(f)) > 0
 	if check {
-		recs, rowErr = finiteRecords(f), make([]error, h)
+		rowErr = make([]error, h)
 	}
 	finished := workers.Counter(progress)
 	parallel(ctx, h, n, func(j int, p *raytrace.Path, s *Sample) {
@@ -197,12 +197,12 @@ func renderRows(ctx context.Context, r scene.Resolved, progress func(rows int), 
 				m.Shade(PixelAlpha(r, i), beta, p, s)
 			}
 			f.store(j*w+i, s)
+			if check && rowErr[j] == nil {
+				rowErr[j] = f.checkSample(j*w+i, s)
+			}
 			if rowBand != nil {
 				f.tallyCentre(i, j, s, &rowBand[j])
 			}
-		}
-		if len(recs) > 0 {
-			rowErr[j] = checkPixels(f, recs, j*w, (j+1)*w)
 		}
 		finished()
 	})
