@@ -159,3 +159,20 @@ func BenchmarkEncodePNG(b *testing.B) {
 		}
 	}
 }
+
+// BenchmarkFITS2048 is maps.fits of the default 2048² run (15 maps of
+// 16 MiB), encoded to io.Discard.
+//
+//	go test ./render/outputs -run X -bench FITS2048 -benchtime 5x
+func BenchmarkFITS2048(b *testing.B) {
+	r := benchScene(b, 2048)
+	f, err := pixels.Render(context.Background(), r, nil)
+	if err != nil {
+		b.Fatal(err)
+	}
+	for b.Loop() {
+		if err := writeFITS(io.Discard, f, "bench"); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
