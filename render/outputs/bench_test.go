@@ -64,7 +64,7 @@ func BenchmarkWrite2048(b *testing.B) { benchWrite(b, 2048, Set{Manifest: true})
 //	go test ./render/outputs -run X -bench Stage2048 -benchtime 5x
 func BenchmarkStage2048(b *testing.B) {
 	r := benchScene(b, 2048)
-	f, spec, err := pixels.RenderChecked(context.Background(), r, nil, Needs(Artifacts(r.Output, Set{Manifest: true})))
+	f, err := pixels.RenderChecked(context.Background(), r, nil, Needs(Artifacts(r.Output, Set{Manifest: true})))
 	if err != nil {
 		b.Fatal(err)
 	}
@@ -78,7 +78,7 @@ func BenchmarkStage2048(b *testing.B) {
 		if err != nil {
 			b.Fatal(err)
 		}
-		if err := Write(context.Background(), arts, Job{Frame: f, Version: "bench", Spectrum: spec}, out.Write); err != nil {
+		if err := Write(context.Background(), arts, Job{Frame: f, Version: "bench"}, out.Write); err != nil {
 			b.Fatal(err)
 		}
 		if _, err := out.Commit(); err != nil {

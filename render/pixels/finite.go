@@ -53,12 +53,14 @@ func CheckFinite(f *Frame) (*Spectrum, error) {
 	if err := checkRecords(f); err != nil {
 		return nil, err
 	}
-	return checkSpectrum(f)
+	return CheckedSpectrum(f)
 }
 
-// checkSpectrum is CheckFinite of the frame's spectrum, for a frame whose
-// records are finite.
-func checkSpectrum(f *Frame) (*Spectrum, error) {
+// CheckedSpectrum is CheckFinite of the frame's spectrum alone, for a
+// frame whose records were checked (RenderChecked): the spectrum, nil
+// when the frame keeps nothing it is made of, or the *NonFiniteError of
+// its first value that is not finite.
+func CheckedSpectrum(f *Frame) (*Spectrum, error) {
 	if f.refined == nil && !f.Has(KeepG|KeepLine) {
 		return nil, nil
 	}

@@ -84,8 +84,9 @@ func TestCheckFiniteFirstBadPixel(t *testing.T) {
 	check(NonFiniteError{Quantity: "line intensity", Order: -1, Pixel: at(late)})
 }
 
-// RenderChecked checks the records inside the render's workers, row by
-// row; the outcome is CheckFinite's after a plain render: the same error
+// RenderChecked checks the records inside the render's workers, pixel by
+// pixel; with CheckedSpectrum after it, the outcome is CheckFinite's
+// after a plain render: the same error
 // text for a scene whose intensities overflow float32, with and without
 // refinement, and the same spectrum for one that does not.
 func TestRenderCheckedIsCheckFinite(t *testing.T) {
@@ -104,7 +105,11 @@ func TestRenderCheckedIsCheckFinite(t *testing.T) {
 			t.Fatal(err)
 		}
 		want, wantErr := CheckFinite(f)
-		_, got, gotErr := RenderChecked(context.Background(), r, nil, KeepAll)
+		g, gotErr := RenderChecked(context.Background(), r, nil, KeepAll)
+		var got *Spectrum
+		if gotErr == nil {
+			got, gotErr = CheckedSpectrum(g)
+		}
 		if (wantErr == nil) != (gotErr == nil) || wantErr != nil && wantErr.Error() != gotErr.Error() {
 			t.Errorf("%s: RenderChecked error %v, CheckFinite %v", c.name, gotErr, wantErr)
 		}

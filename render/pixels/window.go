@@ -338,12 +338,13 @@ func (f *Frame) LineFlux() (flux float64, ok bool) {
 	return flux * f.Res.PixelSize * f.Res.PixelSize, true
 }
 
-// RenderChecked is RenderScene followed by CheckFinite (which also
-// collapses the spectrum), with f.Clip set by EstimateClip when the disk
-// image touches the window's border: the render of a run or sweep frame.
-// Without refinement the records are checked row by row as the render's
-// workers store them, while they are in the cache.
-func RenderChecked(ctx context.Context, r scene.Resolved, progress func(rows int), keep Keep) (*Frame, *Spectrum, error) {
+// RenderChecked is RenderScene followed by CheckFinite's check of the
+// records, with f.Clip set by EstimateClip when the disk image touches
+// the window's border: the render of a run or sweep frame. Without
+// refinement the records are checked pixel by pixel as the render's
+// workers store them. The spectrum is left to CheckedSpectrum, which
+// the outputs run beside their other work.
+func RenderChecked(ctx context.Context, r scene.Resolved, progress func(rows int), keep Keep) (*Frame, error) {
 	var f *Frame
 	var err error
 	if r.Refine.Depth > 0 {
@@ -354,18 +355,14 @@ func RenderChecked(ctx context.Context, r scene.Resolved, progress func(rows int
 		f, err = renderRows(ctx, r, progress, keepOf([]Keep{keep}), true)
 	}
 	if err != nil {
-		return nil, nil, err
-	}
-	spec, err := checkSpectrum(f)
-	if err != nil {
-		return nil, nil, err
+		return nil, err
 	}
 	if f.TouchesBorder() {
 		c, err := EstimateClip(ctx, f)
 		if err != nil {
-			return nil, nil, err
+			return nil, err
 		}
 		f.Clip = &c
 	}
-	return f, spec, nil
+	return f, nil
 }
