@@ -12,13 +12,14 @@ import (
 
 // The staging of one file is a pipeline, so that the goroutine making the
 // file's bytes (a FITS conversion, a CSV table) only fills buffers: a
-// second goroutine writes each full buffer to the file and feeds it to
-// the file's SHA-256, and a third asks the disk to take the data it has
-// so far (a sync) each time syncStep more bytes are in the file, so that
-// the final sync, which the commit waits for, has only the tail left.
+// second goroutine writes each full buffer to the file, a third feeds it
+// to the file's SHA-256 (the two run side by side, each buffer passing
+// both in order), and a fourth asks the disk to take the data it has so
+// far (a sync) each time syncStep more bytes are in the file, so that the
+// final sync, which the commit waits for, has only the tail left.
 const (
 	stageBufSize = 1 << 19 // bytes of one buffer
-	stageBufs    = 3       // buffers per file: one filling, one writing, one spare
+	stageBufs    = 4       // buffers per file: filling, writing, hashing, spare
 	syncStep     = 32 << 20
 )
 
@@ -31,17 +32,18 @@ var stageBuffers = sync.Pool{New: func() any { b := make([]byte, 0, stageBufSize
 // the last buffer and waits until all is written and hashed; the file's
 // final sync and close go on in the background (done).
 type stagedFile struct {
-	f    *os.File
-	buf  []byte      // being filled
-	full chan []byte // to the writing goroutine
-	free chan []byte // back from it
+	f      *os.File
+	buf    []byte      // being filled
+	full   chan []byte // to the writing goroutine
+	hashed chan []byte // from it to the hashing goroutine
+	free   chan []byte // back from that
 	// failed is set, with err, by the writing goroutine when a write to
 	// the file fails; err may be read only after written is closed, or
 	// after failed is seen set under mu.
 	mu      sync.Mutex
 	failed  bool
 	err     error
-	written chan struct{} // closed when the writing goroutine is done
+	written chan struct{} // closed when the writing and hashing goroutines are done
 	n       int64         // bytes written to the file
 	h       hash.Hash
 	kick    chan struct{} // asks the syncer for a sync (capacity 1)
@@ -50,21 +52,23 @@ type stagedFile struct {
 
 // newStagedFile starts the pipeline of f, which it closes at the end.
 func newStagedFile(f *os.File) *stagedFile {
-	s := &stagedFile{f: f, full: make(chan []byte, stageBufs), free: make(chan []byte, stageBufs),
+	s := &stagedFile{f: f, full: make(chan []byte, stageBufs), hashed: make(chan []byte, stageBufs), free: make(chan []byte, stageBufs),
 		written: make(chan struct{}), h: sha256.New(), kick: make(chan struct{}, 1), done: make(chan error, 1)}
 	s.buf = (*stageBuffers.Get().(*[]byte))[:0]
 	for range stageBufs - 1 {
 		s.free <- (*stageBuffers.Get().(*[]byte))[:0]
 	}
 	go s.writeLoop()
+	go s.hashLoop()
 	go s.syncLoop()
 	return s
 }
 
-// writeLoop writes and hashes the full buffers in order. After a failed
-// write it only returns the buffers, so that Write does not block.
+// writeLoop writes the full buffers to the file in order and passes
+// them on to hashLoop. After a failed write it only passes them on, so
+// that Write does not block.
 func (s *stagedFile) writeLoop() {
-	defer close(s.written)
+	defer close(s.hashed)
 	var since int64
 	for b := range s.full {
 		if !s.hasFailed() {
@@ -72,18 +76,25 @@ func (s *stagedFile) writeLoop() {
 				s.mu.Lock()
 				s.failed, s.err = true, err
 				s.mu.Unlock()
-			} else {
-				s.h.Write(b)
-				s.n += int64(len(b))
-				if since += int64(len(b)); since >= syncStep {
-					since = 0
-					select {
-					case s.kick <- struct{}{}:
-					default: // a sync is pending already
-					}
+			} else if since += int64(len(b)); since >= syncStep {
+				since = 0
+				select {
+				case s.kick <- struct{}{}:
+				default: // a sync is pending already
 				}
 			}
 		}
+		s.hashed <- b
+	}
+}
+
+// hashLoop feeds the written buffers to the hash, in order, and frees
+// them.
+func (s *stagedFile) hashLoop() {
+	defer close(s.written)
+	for b := range s.hashed {
+		s.h.Write(b)
+		s.n += int64(len(b))
 		s.free <- b[:0]
 	}
 }
