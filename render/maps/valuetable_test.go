@@ -45,10 +45,7 @@ func TestValueTableIsTheDirectColour(t *testing.T) {
 		if !ok {
 			continue
 		}
-		var values []uint32
-		for _, b := range []uint32{1, vt.lo - 1, vt.lo, vt.lo + 1, vt.hi - 1, vt.hi, vt.hi + 1, maxFinite32} {
-			values = append(values, b)
-		}
+		values := []uint32{1, vt.lo - 1, vt.lo, vt.lo + 1, vt.hi - 1, vt.hi, vt.hi + 1, maxFinite32}
 		for range 200000 {
 			values = append(values, r.Uint32N(maxFinite32)+1, vt.lo+r.Uint32N(vt.hi-vt.lo+1))
 		}
