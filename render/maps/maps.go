@@ -240,21 +240,38 @@ func (m Map) Draw(img *image.RGBA, f *pixels.Frame, sc Scales) {
 		p[0], p[1], p[2], p[3] = c.R, c.G, c.B, c.A
 	}
 	if o := m.scale; o != nil {
-		// The colours of pixel and colour, a row at a time.
+		// The colours of pixel and colour, a row at a time; with a
+		// valueTable for large images, the same colours read by the
+		// value's bits.
 		pos := o.position(f, sc)
+		var vt *valueTable
+		if f.W*f.H >= tableMinPixels {
+			if t, ok := newValueTable(m.Scale, pos); ok {
+				vt = &t
+			}
+		}
 		row := make([]float32, f.W)
 		for j := 0; j < f.H; j++ {
 			o.value(f, j, row)
+			pix, fate := img.Pix[4*j*f.W:4*(j+1)*f.W], f.Fate[j*f.W:(j+1)*f.W]
 			for i, v := range row {
-				k := j*f.W + i
-				switch x := float64(v); {
-				case !math.IsNaN(x):
-					set(k, m.Scale.At(pos(x)))
-				case f.Fate[k] == raytrace.Captured:
-					set(k, colormap.Shadow)
-				default:
-					set(k, colormap.NoHit)
+				var c color.RGBA
+				ok := false
+				if vt != nil {
+					c, ok = vt.colour(v)
 				}
+				if !ok {
+					switch x := float64(v); {
+					case !math.IsNaN(x):
+						c = m.Scale.At(pos(x))
+					case fate[i] == raytrace.Captured:
+						c = colormap.Shadow
+					default:
+						c = colormap.NoHit
+					}
+				}
+				p := pix[4*i : 4*i+4 : 4*i+4]
+				p[0], p[1], p[2], p[3] = c.R, c.G, c.B, c.A
 			}
 		}
 		return
@@ -304,8 +321,12 @@ func (o *onScaleMap) pixel(f *pixels.Frame, sc Scales) func(int) (Class, float64
 func firstSeenRow(q func(*pixels.Frame) [][]float32) func(*pixels.Frame, int, []float32) {
 	return func(f *pixels.Frame, j int, row []float32) {
 		v, k0 := q(f), j*f.W
-		for i := range row {
-			row[i] = f.FirstSeenAt(v, k0+i)
+		nan := float32(math.NaN())
+		for i, o := range f.First[k0 : k0+len(row)] {
+			row[i] = nan // as f.FirstSeenAt(v, k0+i)
+			if o >= 0 {
+				row[i] = v[o][k0+i]
+			}
 		}
 	}
 }

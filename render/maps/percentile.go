@@ -1,9 +1,11 @@
 package maps
 
 import (
+	"context"
 	"math"
 	"sort"
 
+	"kerrscope/render/internal/workers"
 	"kerrscope/render/pixels"
 	"kerrscope/scene"
 )
@@ -113,12 +115,29 @@ func intensityExtremes(f *pixels.Frame) (lo, hi float64, ok bool) {
 }
 
 // extremes returns the smallest and largest of value(k), k < n, NaN left
-// out; ok is false when every value is NaN.
+// out; ok is false when every value is NaN. Pieces of extremesPiece
+// values are scanned on all cores; the extremes do not depend on the
+// order of the scan.
 func extremes(n int, value func(k int) float64) (lo, hi float64, ok bool) {
+	pieces := (n + extremesPiece - 1) / extremesPiece
+	type span struct {
+		lo, hi float64
+		ok     bool
+	}
+	part := make([]span, pieces)
+	workers.Each(context.Background(), pieces, func() struct{} { return struct{}{} }, func(p int, _ struct{}) {
+		s := span{lo: math.Inf(1), hi: math.Inf(-1)}
+		for k := p * extremesPiece; k < min(n, (p+1)*extremesPiece); k++ {
+			if v := value(k); !math.IsNaN(v) {
+				s.lo, s.hi, s.ok = math.Min(s.lo, v), math.Max(s.hi, v), true
+			}
+		}
+		part[p] = s
+	})
 	lo, hi = math.Inf(1), math.Inf(-1)
-	for k := 0; k < n; k++ {
-		if v := value(k); !math.IsNaN(v) {
-			lo, hi, ok = math.Min(lo, v), math.Max(hi, v), true
+	for _, s := range part {
+		if s.ok {
+			lo, hi, ok = math.Min(lo, s.lo), math.Max(hi, s.hi), true
 		}
 	}
 	if !ok {
@@ -126,6 +145,9 @@ func extremes(n int, value func(k int) float64) (lo, hi float64, ok bool) {
 	}
 	return lo, hi, true
 }
+
+// extremesPiece is the number of values of one piece of extremes' work.
+const extremesPiece = 1 << 16
 
 // percentileOf is the scene's scales.percentile, 0 when not given.
 func percentileOf(s scene.Scales) float64 {

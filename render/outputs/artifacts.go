@@ -179,7 +179,9 @@ type Job struct {
 	// artifacts.
 	Band *Band
 	// Spectrum is the frame's spectrum if it was collapsed already (as
-	// pixels.CheckFinite returns it); nil: Write collapses the frame.
+	// pixels.CheckFinite returns it); nil: Write collapses the frame and
+	// checks the spectrum (pixels.CheckedSpectrum) beside its other work,
+	// and a value that is not finite is its error.
 	Spectrum *pixels.Spectrum
 }
 
@@ -268,6 +270,7 @@ func Write(ctx context.Context, arts []Artifact, job Job, put Put) error {
 	}
 
 	var spec pixels.Spectrum
+	var specErr error
 	var specTask *task
 	for _, a := range arts {
 		if a.Kind == SpectrumCSV || a.Kind == SpectrumFigure || a.Kind == SpectrumSVG || a.Kind == CombinedCSV {
@@ -276,7 +279,15 @@ func Write(ctx context.Context, arts []Artifact, job Job, put Put) error {
 				specTask = &task{done: make(chan struct{})} // done already
 				close(specTask.done)
 			} else {
-				specTask = add(func(*scratch) { spec = f.Spectrum() })
+				specTask = add(func(*scratch) {
+					s, err := pixels.CheckedSpectrum(f)
+					if s != nil {
+						spec = *s
+					} else if err == nil {
+						spec = f.Spectrum()
+					}
+					specErr = err
+				})
 			}
 			break
 		}
@@ -345,6 +356,10 @@ func Write(ctx context.Context, arts []Artifact, job Job, put Put) error {
 			producer[i] = add(func(*scratch) {
 				if a.Kind == SpectrumFigure || a.Kind == SpectrumSVG {
 					<-specTask.done // an earlier task: already running or done
+					if specErr != nil {
+						store(i, nil, specErr)
+						return
+					}
 				}
 				if a.Kind == ContinuumFigure {
 					<-contTask.done // likewise
@@ -437,6 +452,9 @@ func Write(ctx context.Context, arts []Artifact, job Job, put Put) error {
 			if err := wait(specTask); err != nil {
 				return err
 			}
+			if specErr != nil {
+				return specErr
+			}
 			if err := wait(binContTask); err != nil {
 				return err
 			}
@@ -447,6 +465,9 @@ func Write(ctx context.Context, arts []Artifact, job Job, put Put) error {
 		case a.Kind == SpectrumCSV:
 			if err := wait(specTask); err != nil {
 				return err
+			}
+			if specErr != nil {
+				return specErr
 			}
 			fallthrough
 		default:

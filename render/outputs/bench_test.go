@@ -57,6 +57,37 @@ func BenchmarkRun2048Spectrum(b *testing.B) { benchRun(b, benchScene(b, 2048, "c
 //	go test ./render/outputs -run X -bench Write2048 -benchtime 3x -cpuprofile cpu.out
 func BenchmarkWrite2048(b *testing.B) { benchWrite(b, 2048, Set{Manifest: true}) }
 
+// BenchmarkStage2048 is the output stage of the default 2048² run as
+// a run does it: every artifact staged as files in the output directory
+// (written, hashed and synced) and committed, from a frame rendered once.
+//
+//	go test ./render/outputs -run X -bench Stage2048 -benchtime 5x
+func BenchmarkStage2048(b *testing.B) {
+	r := benchScene(b, 2048)
+	f, err := pixels.RenderChecked(context.Background(), r, nil, Needs(Artifacts(r.Output, Set{Manifest: true})))
+	if err != nil {
+		b.Fatal(err)
+	}
+	arts := Artifacts(r.Output, Set{Manifest: true})
+	for b.Loop() {
+		lk, err := Lock(r.Output.Directory)
+		if err != nil {
+			b.Fatal(err)
+		}
+		out, err := NewOutputs(context.Background(), lk, "render")
+		if err != nil {
+			b.Fatal(err)
+		}
+		if err := Write(context.Background(), arts, Job{Frame: f, Version: "bench"}, out.Write); err != nil {
+			b.Fatal(err)
+		}
+		if _, err := out.Commit(); err != nil {
+			b.Fatal(err)
+		}
+		lk.Unlock()
+	}
+}
+
 // BenchmarkWriteFrame512 is the output stage of one 512² sweep frame:
 // every map as figure, pixel-exact and palette PNG, FITS, spectrum CSV
 // and figure.
@@ -125,6 +156,23 @@ func BenchmarkEncodePNG(b *testing.B) {
 				}
 				b.ReportMetric(float64(size)/1024, "KB")
 			})
+		}
+	}
+}
+
+// BenchmarkFITS2048 is maps.fits of the default 2048² run (15 maps of
+// 16 MiB), encoded to io.Discard.
+//
+//	go test ./render/outputs -run X -bench FITS2048 -benchtime 5x
+func BenchmarkFITS2048(b *testing.B) {
+	r := benchScene(b, 2048)
+	f, err := pixels.Render(context.Background(), r, nil)
+	if err != nil {
+		b.Fatal(err)
+	}
+	for b.Loop() {
+		if err := writeFITS(io.Discard, f, "bench"); err != nil {
+			b.Fatal(err)
 		}
 	}
 }

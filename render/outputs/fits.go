@@ -108,6 +108,9 @@ func fitsUnits(r scene.Resolved) (lineUnit string, line float64, bolUnit string,
 // is written.
 func checkFITSRange(f *pixels.Frame) error {
 	_, line, _, bol := fitsUnits(f.Res)
+	if line == 1 && bol == 1 {
+		return nil // relative units: the float32 sums are the values written
+	}
 	for _, q := range []struct {
 		v      [][]float32
 		factor float64
@@ -228,6 +231,9 @@ func polarisationCards(f *pixels.Frame) []fits.Card {
 // scaledRows is fitsCopyRows of v × factor.
 func scaledRows(f *pixels.Frame, v []float32, factor float64) func(j int, row []float32) {
 	copyRows := fitsCopyRows(f, v)
+	if factor == 1 {
+		return copyRows // scaled(x, 1) is x
+	}
 	return func(j int, row []float32) {
 		copyRows(j, row)
 		for i := range row {

@@ -77,7 +77,7 @@ func Run(ctx context.Context, r scene.Resolved, opt Options) (Summary, error) {
 		framing = pixels.FramingPhotons
 	}
 	r = framed
-	f, spec, err := pixels.RenderChecked(ctx, r, opt.Progress, Needs(arts))
+	f, err := pixels.RenderChecked(ctx, r, opt.Progress, Needs(arts))
 	if err != nil {
 		return Summary{}, err
 	}
@@ -92,10 +92,11 @@ func Run(ctx context.Context, r scene.Resolved, opt Options) (Summary, error) {
 	if slices.Contains(r.Output.Maps, "rings") {
 		sum.Rings = maps.RingWidths(f)
 	}
-	job := Job{Frame: f, Scales: opt.Scales, Version: opt.Version, Spectrum: spec}
+	job := Job{Frame: f, Scales: opt.Scales, Version: opt.Version}
 	if opt.Band {
 		rep, err := f.LocateBand()
 		if err != nil {
+			out.Abort()
 			return Summary{}, err
 		}
 		sum.Band = &rep

@@ -1,7 +1,6 @@
 package outputs
 
 import (
-	"bufio"
 	"context"
 	"crypto/sha256"
 	"encoding/hex"
@@ -27,6 +26,7 @@ type Outputs struct {
 	set   string
 	stage string // the staging folder; its new/ holds the staged files
 	files []fileSum
+	syncs []pendingSync // files whose final sync Commit waits for
 }
 
 // NewOutputs starts staging files for the directory that l holds. set
@@ -53,7 +53,9 @@ func NewOutputs(ctx context.Context, l *DirLock, set string) (*Outputs, error) {
 	return &Outputs{ctx: ctx, lock: l, set: set, stage: stage}, nil
 }
 
-// Write stages one file, produced by write, and syncs it to disk.
+// Write stages one file, produced by write. The file is written, hashed
+// and synced to disk on other goroutines while write runs (stagedFile);
+// Commit waits for the syncs, and reports a failed one.
 func (o *Outputs) Write(name string, write func(io.Writer) error) error {
 	if err := o.ctx.Err(); err != nil {
 		return err
@@ -65,35 +67,18 @@ func (o *Outputs) Write(name string, write func(io.Writer) error) error {
 	if err != nil {
 		return err
 	}
-	h := sha256.New()
-	cw := &countingWriter{w: io.MultiWriter(f, h)}
-	bw := bufio.NewWriterSize(cw, 1<<16)
-	err = write(bw)
-	if err == nil {
-		err = bw.Flush()
-	}
-	if err == nil {
-		err = f.Sync()
-	}
-	if cerr := f.Close(); err == nil {
+	sf := newStagedFile(f)
+	err = write(sf)
+	if cerr := sf.Close(); err == nil {
 		err = cerr
 	}
+	o.syncs = append(o.syncs, pendingSync{name: name, done: sf.done})
 	if err != nil {
 		return fmt.Errorf("%s: %w", name, err)
 	}
-	o.files = append(o.files, fileSum{Name: name, Bytes: cw.n, SHA256: hex.EncodeToString(h.Sum(nil))})
+	n, sum := sf.sum()
+	o.files = append(o.files, fileSum{Name: name, Bytes: n, SHA256: sum})
 	return nil
-}
-
-type countingWriter struct {
-	w io.Writer
-	n int64
-}
-
-func (c *countingWriter) Write(b []byte) (int, error) {
-	n, err := c.w.Write(b)
-	c.n += int64(n)
-	return n, err
 }
 
 // Commit moves every staged file into the output directory and returns
@@ -122,6 +107,10 @@ func (o *Outputs) Commit() ([]string, error) {
 
 func (o *Outputs) commit() ([]string, error) {
 	dir := o.lock.dir
+	if err := o.waitSyncs(); err != nil {
+		o.Abort()
+		return nil, err
+	}
 	staged := slices.Clone(o.files)
 	var retire []fileSum
 	if o.set != "" {
@@ -212,4 +201,7 @@ func (o *Outputs) commit() ([]string, error) {
 }
 
 // Abort discards everything staged.
-func (o *Outputs) Abort() { os.RemoveAll(o.stage) }
+func (o *Outputs) Abort() {
+	o.waitSyncs() // the files are closed before they are removed
+	os.RemoveAll(o.stage)
+}

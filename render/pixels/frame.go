@@ -159,17 +159,29 @@ func RenderScene(ctx context.Context, r scene.Resolved, progress func(rows int),
 // is rendered at the provisional field Resolve gives it, which holds the
 // whole disk loosely; FrameWindow tightens it first.
 func Render(ctx context.Context, r scene.Resolved, progress func(rows int), keep ...Keep) (*Frame, error) {
+	return renderRows(ctx, r, progress, keepOf(keep), false)
+}
+
+// renderRows is Render of the records keep; with check, every pixel's
+// records are checked as CheckFinite checks them (checkSample) as they
+// are stored, and the first bad pixel's error is returned.
+func renderRows(ctx context.Context, r scene.Resolved, progress func(rows int), keep Keep, check bool) (*Frame, error) {
 	m, err := NewModel(r)
 	if err != nil {
 		return nil, err
 	}
 	w, h, n := r.Screen.Width, r.Screen.Height, r.Disk.Orders
-	m.Behind = m.Opaque && keepOf(keep)&KeepBehind != 0
-	m.Stokes = keepOf(keep)&KeepStokes != 0
-	f := newFrame(r, m, keepOf(keep))
+	m.Behind = m.Opaque && keep&KeepBehind != 0
+	m.Stokes = keep&KeepStokes != 0
+	f := newFrame(r, m, keep)
 	var rowBand []bandTally
 	if f.Band != nil {
 		rowBand = make([]bandTally, h)
+	}
+	var rowErr []error
+	check = check && len(finiteRecords(f)) > 0
+	if check {
+		rowErr = make([]error, h)
 	}
 	finished := workers.Counter(progress)
 	parallel(ctx, h, n, func(j int, p *raytrace.Path, s *Sample) {
@@ -185,6 +197,9 @@ func Render(ctx context.Context, r scene.Resolved, progress func(rows int), keep
 				m.Shade(PixelAlpha(r, i), beta, p, s)
 			}
 			f.store(j*w+i, s)
+			if check && rowErr[j] == nil {
+				rowErr[j] = f.checkSample(j*w+i, s)
+			}
 			if rowBand != nil {
 				f.tallyCentre(i, j, s, &rowBand[j])
 			}
@@ -193,6 +208,11 @@ func Render(ctx context.Context, r scene.Resolved, progress func(rows int), keep
 	})
 	if err := ctx.Err(); err != nil {
 		return nil, err
+	}
+	for _, err := range rowErr {
+		if err != nil {
+			return nil, err
+		}
 	}
 	for j := range rowBand {
 		f.bandSums.merge(&rowBand[j])

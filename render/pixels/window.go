@@ -338,24 +338,31 @@ func (f *Frame) LineFlux() (flux float64, ok bool) {
 	return flux * f.Res.PixelSize * f.Res.PixelSize, true
 }
 
-// RenderChecked is RenderScene followed by CheckFinite (which also
-// collapses the spectrum), with f.Clip set by EstimateClip when the disk
-// image touches the window's border: the render of a run or sweep frame.
-func RenderChecked(ctx context.Context, r scene.Resolved, progress func(rows int), keep Keep) (*Frame, *Spectrum, error) {
-	f, err := RenderScene(ctx, r, progress, keep)
-	if err != nil {
-		return nil, nil, err
+// RenderChecked is RenderScene followed by CheckFinite's check of the
+// records, with f.Clip set by EstimateClip when the disk image touches
+// the window's border: the render of a run or sweep frame. Without
+// refinement the records are checked pixel by pixel as the render's
+// workers store them. The spectrum is left to CheckedSpectrum, which
+// the outputs run beside their other work.
+func RenderChecked(ctx context.Context, r scene.Resolved, progress func(rows int), keep Keep) (*Frame, error) {
+	var f *Frame
+	var err error
+	if r.Refine.Depth > 0 {
+		if f, err = RenderScene(ctx, r, progress, keep); err == nil {
+			err = checkRecords(f)
+		}
+	} else {
+		f, err = renderRows(ctx, r, progress, keepOf([]Keep{keep}), true)
 	}
-	spec, err := CheckFinite(f)
 	if err != nil {
-		return nil, nil, err
+		return nil, err
 	}
 	if f.TouchesBorder() {
 		c, err := EstimateClip(ctx, f)
 		if err != nil {
-			return nil, nil, err
+			return nil, err
 		}
 		f.Clip = &c
 	}
-	return f, spec, nil
+	return f, nil
 }

@@ -37,3 +37,38 @@ func BenchmarkRenderDefault(b *testing.B) {
 		}
 	}
 }
+
+// BenchmarkCheckFinite is the finite check of a 2048² frame of the
+// default run (a = 0.94, 63°, every record kept), the spectrum's
+// collapse included, and BenchmarkCheckFinite/records the records alone.
+//
+//	go test ./render/pixels -run X -bench CheckFinite -benchtime 10x
+func BenchmarkCheckFinite(b *testing.B) {
+	s := scene.Default()
+	s.Hole.Spin, s.Observer.InclinationDeg = 0.94, 63
+	s.Screen.Width, s.Screen.Height = 2048, 2048
+	r, err := s.Resolve()
+	if err != nil {
+		b.Fatal(err)
+	}
+	f, err := Render(context.Background(), r, nil)
+	if err != nil {
+		b.Fatal(err)
+	}
+	b.Run("all", func(b *testing.B) {
+		for b.Loop() {
+			if _, err := CheckFinite(f); err != nil {
+				b.Fatal(err)
+			}
+		}
+	})
+	b.Run("records", func(b *testing.B) {
+		g := *f
+		g.G, g.Line = nil, nil // no spectrum then
+		for b.Loop() {
+			if _, err := CheckFinite(&g); err != nil {
+				b.Fatal(err)
+			}
+		}
+	})
+}

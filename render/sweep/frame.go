@@ -27,11 +27,11 @@ func (p *Plan) writeFrame(ctx context.Context, lk *outputs.DirLock, pt Point, sc
 		files, err := p.writeSpotFrame(ctx, lk, pt, sc)
 		return files, nil, err
 	}
-	f, spec, err := pixels.RenderChecked(ctx, pt.Scene, nil, outputs.Needs(p.artifacts(pt.Index)))
+	f, err := pixels.RenderChecked(ctx, pt.Scene, nil, outputs.Needs(p.artifacts(pt.Index)))
 	if err != nil {
 		return nil, nil, err
 	}
-	job := outputs.Job{Frame: f, Scales: sc, Version: version, Spectrum: spec, Note: p.figureNote(pt.Values),
+	job := outputs.Job{Frame: f, Scales: sc, Version: version, Note: p.figureNote(pt.Values),
 		SpectrumTitle: fmt.Sprintf("line profile collapsed from the image, frame %d of %d: %s", pt.Index, len(p.Points), p.valueLabel(pt.Values))}
 	files, err := p.commitFrame(ctx, lk, pt.Index, func(put outputs.Put) error {
 		return outputs.Write(ctx, p.artifacts(pt.Index), job, put)

@@ -353,9 +353,9 @@ func writeData(bw *bufio.Writer, data []float32) error {
 			}
 		}
 		k := min(bw.Available()/4, len(data))
-		b := bw.AvailableBuffer()
-		for _, v := range data[:k] {
-			b = binary.BigEndian.AppendUint32(b, math.Float32bits(v))
+		b := bw.AvailableBuffer()[:4*k]
+		for i, v := range data[:k] {
+			binary.BigEndian.PutUint32(b[4*i:4*i+4], math.Float32bits(v))
 		}
 		if _, err := bw.Write(b); err != nil {
 			return err

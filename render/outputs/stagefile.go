@@ -1,0 +1,210 @@
+package outputs
+
+import (
+	"crypto/sha256"
+	"encoding/hex"
+	"errors"
+	"fmt"
+	"hash"
+	"os"
+	"sync"
+)
+
+// The staging of one file is a pipeline, so that the goroutine making the
+// file's bytes (a FITS conversion, a CSV table) only fills buffers: a
+// second goroutine writes each full buffer to the file, a third feeds it
+// to the file's SHA-256 (the two run side by side, each buffer passing
+// both in order), and a fourth asks the disk to take the data it has so
+// far (a sync) each time syncStep more bytes are in the file, so that the
+// final sync, which the commit waits for, has only the tail left.
+const (
+	stageBufSize = 1 << 19 // bytes of one buffer
+	stageBufs    = 4       // buffers per file: filling, writing, hashing, spare
+	syncStep     = 32 << 20
+)
+
+// stageBuffers are the buffers of the files being staged, reused from
+// file to file.
+var stageBuffers = sync.Pool{New: func() any { b := make([]byte, 0, stageBufSize); return &b }}
+
+// stagedFile is the writer of one staged file (Outputs.Write): Write
+// buffers; full buffers go to the writing goroutine. Close hands over
+// the last buffer and waits until all is written and hashed; the file's
+// final sync and close go on in the background (done).
+type stagedFile struct {
+	f      *os.File
+	buf    []byte      // being filled
+	full   chan []byte // to the writing goroutine
+	hashed chan []byte // from it to the hashing goroutine
+	free   chan []byte // back from that
+	// failed is set, with err, by the writing goroutine when a write to
+	// the file fails; err may be read only after written is closed, or
+	// after failed is seen set under mu.
+	mu      sync.Mutex
+	failed  bool
+	err     error
+	written chan struct{} // closed when the writing and hashing goroutines are done
+	n       int64         // bytes written to the file
+	h       hash.Hash
+	kick    chan struct{} // asks the syncer for a sync (capacity 1)
+	done    chan error    // the final sync and close: one value
+}
+
+// newStagedFile starts the pipeline of f, which it closes at the end.
+func newStagedFile(f *os.File) *stagedFile {
+	s := &stagedFile{f: f, full: make(chan []byte, stageBufs), hashed: make(chan []byte, stageBufs), free: make(chan []byte, stageBufs),
+		written: make(chan struct{}), h: sha256.New(), kick: make(chan struct{}, 1), done: make(chan error, 1)}
+	s.buf = (*stageBuffers.Get().(*[]byte))[:0]
+	for range stageBufs - 1 {
+		s.free <- (*stageBuffers.Get().(*[]byte))[:0]
+	}
+	go s.writeLoop()
+	go s.hashLoop()
+	go s.syncLoop()
+	return s
+}
+
+// writeLoop writes the full buffers to the file in order and passes
+// them on to hashLoop. After a failed write it only passes them on, so
+// that Write does not block.
+func (s *stagedFile) writeLoop() {
+	defer close(s.hashed)
+	var since int64
+	for b := range s.full {
+		if !s.hasFailed() {
+			if _, err := s.f.Write(b); err != nil {
+				s.mu.Lock()
+				s.failed, s.err = true, err
+				s.mu.Unlock()
+			} else if since += int64(len(b)); since >= syncStep {
+				since = 0
+				select {
+				case s.kick <- struct{}{}:
+				default: // a sync is pending already
+				}
+			}
+		}
+		s.hashed <- b
+	}
+}
+
+// hashLoop feeds the written buffers to the hash, in order, and frees
+// them.
+func (s *stagedFile) hashLoop() {
+	defer close(s.written)
+	for b := range s.hashed {
+		s.h.Write(b)
+		s.n += int64(len(b))
+		s.free <- b[:0]
+	}
+}
+
+// syncLoop syncs the file when asked, and once more, then closes it,
+// when kick is closed; the result goes to done.
+func (s *stagedFile) syncLoop() {
+	var err error
+	for range s.kick {
+		if err == nil {
+			err = s.f.Sync()
+		}
+	}
+	if err == nil && !s.hasFailed() {
+		err = s.f.Sync()
+	}
+	if cerr := s.f.Close(); err == nil {
+		err = cerr
+	}
+	s.done <- err
+}
+
+func (s *stagedFile) hasFailed() bool {
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	return s.failed
+}
+
+// Write buffers p, handing each full buffer to the writing goroutine.
+func (s *stagedFile) Write(p []byte) (int, error) {
+	n := 0
+	for len(p) > 0 {
+		if len(s.buf) == cap(s.buf) {
+			if err := s.handOver(); err != nil {
+				return n, err
+			}
+		}
+		k := copy(s.buf[len(s.buf):cap(s.buf)], p)
+		s.buf = s.buf[:len(s.buf)+k]
+		n += k
+		p = p[k:]
+	}
+	return n, nil
+}
+
+// handOver sends the buffer being filled to the writing goroutine and
+// takes a free one.
+func (s *stagedFile) handOver() error {
+	s.mu.Lock()
+	failed, err := s.failed, s.err
+	s.mu.Unlock()
+	if failed {
+		return err
+	}
+	s.full <- s.buf
+	s.buf = <-s.free
+	return nil
+}
+
+// Close writes what is buffered, waits until the file holds every byte
+// and the hash has them, and returns the first write error. The final
+// sync and close continue in the background; done reports them.
+func (s *stagedFile) Close() error {
+	if len(s.buf) > 0 {
+		s.full <- s.buf
+		s.buf = nil
+	}
+	close(s.full)
+	<-s.written
+	close(s.kick)
+	s.release()
+	return s.err
+}
+
+// release returns the file's buffers to the pool (after written).
+func (s *stagedFile) release() {
+	if s.buf != nil {
+		stageBuffers.Put(&s.buf)
+		s.buf = nil
+	}
+	for {
+		select {
+		case b := <-s.free:
+			stageBuffers.Put(&b)
+		default:
+			return
+		}
+	}
+}
+
+// sum is the file's size and SHA-256 (after Close).
+func (s *stagedFile) sum() (int64, string) {
+	return s.n, hex.EncodeToString(s.h.Sum(nil))
+}
+
+// pendingSync is a staged file whose final sync has not been seen yet.
+type pendingSync struct {
+	name string
+	done chan error
+}
+
+// waitSyncs waits for the final syncs of every file staged and returns
+// their errors, each naming its file.
+func (o *Outputs) waitSyncs() error {
+	var errs []error
+	for _, p := range o.syncs {
+		if err := <-p.done; err != nil {
+			errs = append(errs, fmt.Errorf("%s: %w", p.name, err))
+		}
+	}
+	o.syncs = nil
+	return errors.Join(errs...)
+}
