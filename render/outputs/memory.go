@@ -16,7 +16,7 @@ const (
 	// memFigures is what drawing decorated figures adds once: the
 	// figure canvases (about 900 pixels across whatever the map size),
 	// the rasteriser's buffers and the cached glyphs of the fonts.
-	memFigures = 26 << 20
+	memFigures = 33 << 20
 	// memImagePerWorker is the map image each drawing worker reuses
 	// (RGBA, 4 bytes per pixel).
 	memImagePerWorker = 4
@@ -41,7 +41,7 @@ const (
 	// (fonts and rasteriser buffers of its smaller canvases, in place of
 	// memFigures when it is the only figure).
 	memRingsPanel  = 2 << 20
-	memRingsFigure = 6 << 20
+	memRingsFigure = 1 << 20
 	// memCanvasPixel is a figure canvas's bytes per pixel (RGBA and
 	// gg's clip mask); canvases are at most canvasAspect times as tall as
 	// wide, and memFigures covers those up to memCanvasBase bytes (about

@@ -34,6 +34,7 @@ var stageBuffers = sync.Pool{New: func() any { b := make([]byte, 0, stageBufSize
 type stagedFile struct {
 	f      *os.File
 	buf    []byte      // being filled
+	spare  int         // buffers not yet taken from the pool (of stageBufs)
 	full   chan []byte // to the writing goroutine
 	hashed chan []byte // from it to the hashing goroutine
 	free   chan []byte // back from that
@@ -54,10 +55,10 @@ type stagedFile struct {
 func newStagedFile(f *os.File) *stagedFile {
 	s := &stagedFile{f: f, full: make(chan []byte, stageBufs), hashed: make(chan []byte, stageBufs), free: make(chan []byte, stageBufs),
 		written: make(chan struct{}), h: sha256.New(), kick: make(chan struct{}, 1), done: make(chan error, 1)}
+	// One buffer to start with; the others only once it fills, so that
+	// the many small files cost one buffer each.
 	s.buf = (*stageBuffers.Get().(*[]byte))[:0]
-	for range stageBufs - 1 {
-		s.free <- (*stageBuffers.Get().(*[]byte))[:0]
-	}
+	s.spare = stageBufs - 1
 	go s.writeLoop()
 	go s.hashLoop()
 	go s.syncLoop()
@@ -150,6 +151,15 @@ func (s *stagedFile) handOver() error {
 		return err
 	}
 	s.full <- s.buf
+	if s.spare > 0 {
+		select {
+		case s.buf = <-s.free:
+		default:
+			s.spare--
+			s.buf = (*stageBuffers.Get().(*[]byte))[:0]
+		}
+		return nil
+	}
 	s.buf = <-s.free
 	return nil
 }
