@@ -308,19 +308,7 @@ func carlsonLoop(x, y, z float64, ps []float64, rj []float64) float64 {
 		}
 		fac *= 0.25
 	}
-	// R_D: deviations X, Y from the mean, Z = −(X+Y)/3.
-	{
-		ia := fac / ad
-		X := (ad0 - x0) * ia
-		Y := (ad0 - y0) * ia
-		Z := -(X + Y) / 3
-		xy, zz := X*Y, Z*Z
-		e2 := xy - 6*zz
-		e3 := (3*xy - 8*zz) * Z
-		e4 := 3 * (xy - zz) * zz
-		e5 := xy * Z * zz
-		sumD = fac*carlsonSeriesJ(e2, e3, e4, e5)/(ad*math.Sqrt(ad)) + 3*sumD
-	}
+	sumD = carlsonEndD(ad0, ad, x0, y0, fac) + 3*sumD
 	for i := 0; i < n; i++ {
 		rj[i] = carlsonEndJ(a0[i], av[i], x0, y0, z0, fac) + 6*sum[i]
 	}
@@ -376,18 +364,7 @@ func carlsonLoop3(x, y, z float64, ps []float64, rj []float64) float64 {
 		minA = min(ad, av0, av1, av2)
 		fac *= 0.25
 	}
-	{
-		ia := fac / ad
-		X := (ad0 - x0) * ia
-		Y := (ad0 - y0) * ia
-		Z := -(X + Y) / 3
-		xy, zz := X*Y, Z*Z
-		e2 := xy - 6*zz
-		e3 := (3*xy - 8*zz) * Z
-		e4 := 3 * (xy - zz) * zz
-		e5 := xy * Z * zz
-		sumD = fac*carlsonSeriesJ(e2, e3, e4, e5)/(ad*math.Sqrt(ad)) + 3*sumD
-	}
+	sumD = carlsonEndD(ad0, ad, x0, y0, fac) + 3*sumD
 	rj[0] = carlsonEndJ(a00, av0, x0, y0, z0, fac) + 6*s0
 	rj[1] = carlsonEndJ(a01, av1, x0, y0, z0, fac) + 6*s1
 	rj[2] = carlsonEndJ(a02, av2, x0, y0, z0, fac) + 6*s2
@@ -414,6 +391,22 @@ func carlsonFixJ(term, e, inv, fac float64) float64 {
 		return term
 	}
 	return fac * rc1(e) * inv
+}
+
+// carlsonEndD is the series part of R_D at the end of the duplication
+// (R_J with p = z): deviations X, Y from the mean, Z = −(X+Y)/3, for the
+// initial mean a0 and final mean a (see carlsonLoop).
+func carlsonEndD(a0, a, x0, y0, fac float64) float64 {
+	ia := fac / a
+	X := (a0 - x0) * ia
+	Y := (a0 - y0) * ia
+	Z := -(X + Y) / 3
+	xy, zz := X*Y, Z*Z
+	e2 := xy - 6*zz
+	e3 := (3*xy - 8*zz) * Z
+	e4 := 3 * (xy - zz) * zz
+	e5 := xy * Z * zz
+	return fac * carlsonSeriesJ(e2, e3, e4, e5) / (a * math.Sqrt(a))
 }
 
 // carlsonEndJ is the series part of R_J at the end of the duplication:

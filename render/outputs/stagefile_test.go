@@ -47,16 +47,7 @@ func TestStagedFilesWholeAndHashed(t *testing.T) {
 		{"big.bin", stagedBytes(big, 2), 0},
 		{"exact.bin", stagedBytes(2*stageBufSize, 3), stageBufSize},
 	}
-	dir := t.TempDir()
-	lk, err := Lock(dir)
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer lk.Unlock()
-	out, err := NewOutputs(context.Background(), lk, "test")
-	if err != nil {
-		t.Fatal(err)
-	}
+	dir, out := stagingOutputs(t)
 	for _, f := range files {
 		err := out.Write(f.name, func(w io.Writer) error {
 			if f.piece == 0 {
@@ -108,21 +99,12 @@ func TestStagedFilesWholeAndHashed(t *testing.T) {
 // A file whose writer fails after writing part of it is an error naming
 // the file; aborting the run leaves no staged file behind.
 func TestStagedFileWriterError(t *testing.T) {
-	dir := t.TempDir()
-	lk, err := Lock(dir)
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer lk.Unlock()
-	out, err := NewOutputs(context.Background(), lk, "test")
-	if err != nil {
-		t.Fatal(err)
-	}
+	dir, out := stagingOutputs(t)
 	if err := out.Write("first.bin", func(w io.Writer) error { _, err := w.Write(stagedBytes(1000, 4)); return err }); err != nil {
 		t.Fatal(err)
 	}
 	stop := errors.New("the table cannot be made")
-	err = out.Write("broken.bin", func(w io.Writer) error {
+	err := out.Write("broken.bin", func(w io.Writer) error {
 		if _, err := w.Write(stagedBytes(3*stageBufSize, 5)); err != nil {
 			return err
 		}
@@ -142,4 +124,21 @@ func TestStagedFileWriterError(t *testing.T) {
 			}
 		}
 	}
+}
+
+// stagingOutputs locks a fresh folder and opens Outputs in it; the lock
+// is released when the test ends.
+func stagingOutputs(t *testing.T) (string, *Outputs) {
+	t.Helper()
+	dir := t.TempDir()
+	lk, err := Lock(dir)
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Cleanup(func() { lk.Unlock() })
+	out, err := NewOutputs(context.Background(), lk, "test")
+	if err != nil {
+		t.Fatal(err)
+	}
+	return dir, out
 }
