@@ -258,8 +258,9 @@ func resolventMax(A, B, C float64) float64 {
 }
 
 // cosThirdAcos returns cos(arccos(x)/3) for −1 ≤ x ≤ 1, the largest root
-// c ∈ [½, 1] of Chebyshev's 4c³ − 3c = x (DLMF 4.21.14, T₃(cos θ) =
-// cos 3θ; the trigonometric solution of the cubic, DLMF 1.11(iii)).
+// c ∈ [½, 1] of 4c³ − 3c = x (the triple-angle identity
+// cos 3θ = 4 cos³θ − 3 cos θ, on which the trigonometric solution of the
+// cubic rests, DLMF 1.11(iii)).
 // For x ≥ −0.99 it starts from a cubic in s = sqrt(1 + x) interpolating
 // it at the four Chebyshev nodes of 0 ≤ s ≤ √2 (error below 1e-4) and
 // takes two Halley steps, which reach rounding level (6e-16 relative
