@@ -262,7 +262,10 @@ func carlsonSeriesF(a0, x0, y0, a, fac float64) float64 {
 // shared.
 func carlsonLoop(x, y, z float64, ps []float64, rj []float64) float64 {
 	n := len(ps)
-	if n == 3 {
+	switch n {
+	case 1:
+		return carlsonLoop1(x, y, z, ps, rj)
+	case 3:
 		return carlsonLoop3(x, y, z, ps, rj)
 	}
 	var pv, a0, av, delta, sum [4]float64
@@ -368,6 +371,42 @@ func carlsonLoop3(x, y, z float64, ps []float64, rj []float64) float64 {
 	rj[0] = carlsonEndJ(a00, av0, x0, y0, z0, fac) + 6*s0
 	rj[1] = carlsonEndJ(a01, av1, x0, y0, z0, fac) + 6*s1
 	rj[2] = carlsonEndJ(a02, av2, x0, y0, z0, fac) + 6*s2
+	return sumD
+}
+
+// carlsonLoop1 is carlsonLoop for exactly one p (the angular timing's
+// observer part), with carlsonLoop's operations in its order, so the same
+// results to the last bit (carlson_test.go), in scalars.
+func carlsonLoop1(x, y, z float64, ps []float64, rj []float64) float64 {
+	p0 := ps[0]
+	ad0 := (x + y + 3*z) / 5
+	lo, _, hi := sort3(x, y, z)
+	ad := ad0
+	a00 := (x + y + z + 2*p0) / 5
+	av0 := a00
+	d0 := (p0 - x) * (p0 - y) * (p0 - z)
+	maxDev := max(ad0-lo, hi-ad0)
+	maxDev = max(maxDev, a00-min(lo, p0), max(hi, p0)-a00)
+	minA := min(ad0, a00)
+	q := carlsonQJ * maxDev
+	x0, y0, z0 := x, y, z
+	fac := 1.0
+	sumD, s0 := 0.0, 0.0
+	for it := 0; it < carlsonMaxIter && fac*q >= minA; it++ {
+		sx, sy, sz := math.Sqrt(x), math.Sqrt(y), math.Sqrt(z)
+		lam := sx*sy + sx*sz + sy*sz
+		sumD += fac / (sz * (z + lam))
+		t0, e0, i0 := carlsonTermJ(p0, d0, sx, sy, sz, fac*fac*fac, fac)
+		s0 += carlsonFixJ(t0, e0, i0, fac)
+		p0 = (p0 + lam) * 0.25
+		av0 = (av0 + lam) * 0.25
+		x, y, z = (x+lam)*0.25, (y+lam)*0.25, (z+lam)*0.25
+		ad = (ad + lam) * 0.25
+		minA = min(ad, av0)
+		fac *= 0.25
+	}
+	sumD = carlsonEndD(ad0, ad, x0, y0, fac) + 3*sumD
+	rj[0] = carlsonEndJ(a00, av0, x0, y0, z0, fac) + 6*s0
 	return sumD
 }
 

@@ -171,3 +171,21 @@ func TestCarlsonRF2(t *testing.T) {
 		}
 	}
 }
+
+// TestCarlsonLoop1 checks that the one-p duplication loop gives the
+// general loop's results to the last bit (the general loop runs for two
+// p, the second a copy of the first).
+func TestCarlsonLoop1(t *testing.T) {
+	rng := rand.New(rand.NewPCG(29, 31))
+	for i := 0; i < 20000; i++ {
+		x, y := rng.Float64(), math.Pow(10, -6+7*rng.Float64())
+		p := math.Pow(10, -4+6*rng.Float64())
+		var got [1]float64
+		var want [2]float64
+		rd1 := carlsonLoop(x, y, 1, []float64{p}, got[:])
+		rd2 := carlsonLoop(x, y, 1, []float64{p, p}, want[:])
+		if rd1 != rd2 || got[0] != want[0] {
+			t.Fatalf("x=%g y=%g p=%g: R_D %v vs %v, R_J %v vs %v", x, y, p, rd1, rd2, got[0], want[0])
+		}
+	}
+}
