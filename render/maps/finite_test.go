@@ -1,11 +1,9 @@
 package maps
 
 import (
-	"context"
 	"math"
 	"testing"
 
-	"kerrscope/render/pixels"
 	"kerrscope/scene"
 )
 
@@ -25,16 +23,7 @@ func TestColourBarTicksTerminate(t *testing.T) {
 	if got := decadeTicks(0.01, 100); len(got) != 5 || got[0] != 0.01 || got[4] != 100 {
 		t.Errorf("decadeTicks(0.01, 100) = %v", got)
 	}
-	s := scene.Default()
-	s.Screen.Width, s.Screen.Height = 8, 8
-	r, err := s.Resolve()
-	if err != nil {
-		t.Fatal(err)
-	}
-	f, err := pixels.Render(context.Background(), r, nil)
-	if err != nil {
-		t.Fatal(err)
-	}
+	f := renderDefault(t, func(s *scene.Scene) { s.Screen.Width, s.Screen.Height = 8, 8 })
 	for _, sc := range []Scales{
 		{IMax: inf}, {IMax: 1e308}, {IMax: 1, IDecades: 1e308}, {IMax: nan}, {IMax: 5e-324, IDecades: 30},
 		{GMin: nan, GMax: inf}, {GMin: 5e-324, GMax: 1e308}, {RMin: 5e-324, RMax: 1e308}, {RMin: 1, RMax: inf},

@@ -129,17 +129,10 @@ func TestAutoScalesPercentile(t *testing.T) {
 // The full ranges AutoScales takes at percentile 0 without gathering
 // samples are those of Percentiles over the gathered samples.
 func TestExtremesArePercentileZero(t *testing.T) {
-	s := scene.Default()
-	s.Screen.Width, s.Screen.Height, s.Screen.FieldOfView = 64, 48, 50
-	s.Disk.Opaque = false
-	r, err := s.Resolve()
-	if err != nil {
-		t.Fatal(err)
-	}
-	f, err := pixels.Render(context.Background(), r, nil)
-	if err != nil {
-		t.Fatal(err)
-	}
+	f := renderDefault(t, func(s *scene.Scene) {
+		s.Screen.Width, s.Screen.Height, s.Screen.FieldOfView = 64, 48, 50
+		s.Disk.Opaque = false
+	})
 	for name, c := range map[string]struct {
 		fast    func(*pixels.Frame) (float64, float64, bool)
 		samples func([]Sample, *pixels.Frame) []Sample

@@ -78,17 +78,10 @@ func TestValueTableIsTheDirectColour(t *testing.T) {
 // ranges). The PNG is decoded with image/png, an independent reader.
 func TestBareMapIsTheDirectColour(t *testing.T) {
 	n := 512 // large enough for the table (tableMinPixels)
-	s := scene.Default()
-	s.Hole.Spin, s.Observer.InclinationDeg = 0.94, 63
-	s.Screen.Width, s.Screen.Height = n, n
-	r, err := s.Resolve()
-	if err != nil {
-		t.Fatal(err)
-	}
-	f, err := pixels.Render(context.Background(), r, nil)
-	if err != nil {
-		t.Fatal(err)
-	}
+	f := renderDefault(t, func(s *scene.Scene) {
+		s.Hole.Spin, s.Observer.InclinationDeg = 0.94, 63
+		s.Screen.Width, s.Screen.Height = n, n
+	})
 	if f.W*f.H < tableMinPixels {
 		t.Fatalf("a %d² frame is drawn without the table", n)
 	}
@@ -140,4 +133,21 @@ func TestBareMapIsTheDirectColour(t *testing.T) {
 			}
 		}
 	}
+}
+
+// renderDefault renders the default scene as changed by edit, failing the
+// test on an error.
+func renderDefault(t *testing.T, edit func(*scene.Scene)) *pixels.Frame {
+	t.Helper()
+	s := scene.Default()
+	edit(&s)
+	r, err := s.Resolve()
+	if err != nil {
+		t.Fatal(err)
+	}
+	f, err := pixels.Render(context.Background(), r, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return f
 }
