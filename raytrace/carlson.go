@@ -196,12 +196,18 @@ func carlsonRF(x, y, z float64) float64 {
 	a := a0
 	fac := 1.0
 	for i := 0; i < carlsonMaxIter && fac*q >= a; i++ {
-		sx, sy, sz := math.Sqrt(x), math.Sqrt(y), math.Sqrt(z)
-		lam := sx*sy + sx*sz + sy*sz
-		x, y, z, a = (x+lam)*0.25, (y+lam)*0.25, (z+lam)*0.25, (a+lam)*0.25
+		x, y, z, a = carlsonStepF(x, y, z, a)
 		fac *= 0.25
 	}
 	return carlsonSeriesF(a0, x0, y0, a, fac)
+}
+
+// carlsonStepF is one duplication step of R_F (Carlson 1995, sec. 2.2):
+// λ = √x√y + √x√z + √y√z, each argument and the mean a to (· + λ)/4.
+func carlsonStepF(x, y, z, a float64) (float64, float64, float64, float64) {
+	sx, sy, sz := math.Sqrt(x), math.Sqrt(y), math.Sqrt(z)
+	lam := sx*sy + sx*sz + sy*sz
+	return (x + lam) * 0.25, (y + lam) * 0.25, (z + lam) * 0.25, (a + lam) * 0.25
 }
 
 // carlsonRF2 returns R_F(xa, ya, 1) and R_F(xb, yb, 1), each by the steps
@@ -223,15 +229,11 @@ func carlsonRF2(xa, ya, xb, yb float64) (float64, float64) {
 			break
 		}
 		if goA {
-			sx, sy, sz := math.Sqrt(xa), math.Sqrt(ya), math.Sqrt(za)
-			lam := sx*sy + sx*sz + sy*sz
-			xa, ya, za, aa = (xa+lam)*0.25, (ya+lam)*0.25, (za+lam)*0.25, (aa+lam)*0.25
+			xa, ya, za, aa = carlsonStepF(xa, ya, za, aa)
 			faca *= 0.25
 		}
 		if goB {
-			sx, sy, sz := math.Sqrt(xb), math.Sqrt(yb), math.Sqrt(zb)
-			lam := sx*sy + sx*sz + sy*sz
-			xb, yb, zb, ab = (xb+lam)*0.25, (yb+lam)*0.25, (zb+lam)*0.25, (ab+lam)*0.25
+			xb, yb, zb, ab = carlsonStepF(xb, yb, zb, ab)
 			facb *= 0.25
 		}
 	}

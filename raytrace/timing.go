@@ -423,6 +423,20 @@ func addQ(k2, t, G float64) float64 {
 	return t * carlsonRC(g2, g2-k2*t*t)
 }
 
+// sn2Integrals returns ∫₀^u sn² = (s³/3) R_D(c², d², 1) and, for each
+// p = 1 − N s², (P_N(u) − u)/N = (s³/3) R_J(c², d², 1, p) (DLMF 19.25.9,
+// 19.25.14; 0 ≤ u ≤ K), given s = sn u, c² = cn²u, d² = dn²u, at most
+// three p.
+func sn2Integrals(s, c2, d2 float64, ps []float64) (z float64, q [3]float64) {
+	var rj [3]float64
+	rd := carlsonDJ(c2, d2, 1, ps, rj[:0])
+	s3 := s * s * s / 3
+	for i := range ps {
+		q[i] = s3 * rj[i]
+	}
+	return s3 * rd, q
+}
+
 // completeI sets the complete integrals Z(K) and (P_N(K) − K)/N =
 // R_J(0, 1 − m, 1, 1 − N)/3 (DLMF 19.25.2), by cel (see bulirschCel).
 func (rt *radialTimer) completeI() {
@@ -495,14 +509,7 @@ func (rt *radialTimer) sumsI(jac *pathJacobi) (sy, sz float64, sq [3]float64) {
 			ps[i] = 1 - n*s2
 		}
 	}
-	var rj [3]float64
-	rd := carlsonDJ(c2, d2, 1, ps[:ng], rj[:0])
-	s3 := s2 * su / 3
-	z := s3 * rd
-	var q [3]float64
-	for i := 0; i < ng; i++ {
-		q[i] = s3 * rj[i]
-	}
+	z, q := sn2Integrals(su, c2, d2, ps[:ng])
 	if cu < 0 {
 		if !rt.haveComp {
 			rt.completeI()
@@ -903,14 +910,7 @@ func (rt *radialTimer) addII(jac *pathJacobi, onegc [3]float64) [5]float64 {
 	if sd != 0 {
 		s2, c2, d2 := sd*sd, cd*cd, dd*dd
 		ps := rt.poleArgs(s2, c2, d2)
-		var rj [3]float64
-		rd := carlsonDJ(c2, d2, 1, ps[:ng], rj[:0])
-		s3 := s2 * sd / 3
-		z := s3 * rd
-		var q [3]float64
-		for i := 0; i < ng; i++ {
-			q[i] = s3 * rj[i]
-		}
+		z, q := sn2Integrals(sd, c2, d2, ps[:ng])
 		if cd < 0 { // δ > K: Z(δ) = 2Z(K) − Z(2K − δ), likewise Q_N
 			if !rt.haveComp {
 				rt.completeII()
