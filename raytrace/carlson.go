@@ -207,7 +207,15 @@ func carlsonRF(x, y, z float64) float64 {
 func carlsonStepF(x, y, z, a float64) (float64, float64, float64, float64) {
 	sx, sy, sz := math.Sqrt(x), math.Sqrt(y), math.Sqrt(z)
 	lam := sx*sy + sx*sz + sy*sz
-	return (x + lam) * 0.25, (y + lam) * 0.25, (z + lam) * 0.25, (a + lam) * 0.25
+	return carlsonNext(sx, sy, sz), carlsonNext(sy, sx, sz), carlsonNext(sz, sx, sy), (a + lam) * 0.25
+}
+
+// carlsonNext is a duplication step's new argument (x + λ)/4 written as
+// (√x + √y)(√x + √z)/4 (λ = √x√y + √x√z + √y√z): the same value, with
+// two dependent operations after the square roots instead of four, which
+// shortens the chain from one step's square roots to the next's.
+func carlsonNext(sx, sy, sz float64) float64 {
+	return (sx + sy) * (sx + sz) * 0.25
 }
 
 // carlsonRF2 returns R_F(xa, ya, 1) and R_F(xb, yb, 1), each by the steps
@@ -238,6 +246,74 @@ func carlsonRF2(xa, ya, xb, yb float64) (float64, float64) {
 		}
 	}
 	return carlsonSeriesF(a0a, x0a, y0a, aa, faca), carlsonSeriesF(a0b, x0b, y0b, ab, facb)
+}
+
+// carlsonRF2DJ is carlsonRF2 that also returns R_D(xb, yb, 1) and
+// R_J(xb, yb, 1, p), p > 0, from the square roots of the second chain:
+// the timed trace needs all three at the observer's angular amplitude.
+// The two R_F are those of carlsonRF2 to the last bit (the second chain
+// runs carlsonRF's steps and its series uses the mean and factor at the
+// step where R_F's own test stops it); R_D and R_J follow carlsonLoop's
+// rule (Carlson 1995, eqs. 2.29–2.31, 2.37–2.39), with the arguments of
+// the shared steps. withA false leaves out the first chain (fa = 0).
+func carlsonRF2DJ(xa, ya, xb, yb, p float64, withA bool) (fa, fb, rd, rj float64) {
+	const tol = 1.2674918778210762e-02 // (3ε)^{1/8}, as carlsonRF2
+	za, zb := 1.0, 1.0
+	a0a, a0b := (xa+ya+za)/3, (xb+yb+zb)/3
+	qa := max(math.Abs(a0a-xa), math.Abs(a0a-ya), math.Abs(a0a-za)) / tol
+	qb := max(math.Abs(a0b-xb), math.Abs(a0b-yb), math.Abs(a0b-zb)) / tol
+	x0a, y0a, x0b, y0b := xa, ya, xb, yb
+	aa, ab := a0a, a0b
+	faca, facb := 1.0, 1.0
+	// R_D and R_J of the second chain, as carlsonLoop1.
+	ad0 := (xb + yb + 3) / 5
+	lo, _, hi := sort3(xb, yb, 1)
+	ad := ad0
+	aj0 := (xb + yb + 1 + 2*p) / 5
+	aj := aj0
+	delta := (p - xb) * (p - yb) * (p - 1)
+	maxDev := max(ad0-lo, hi-ad0, aj0-min(lo, p), max(hi, p)-aj0)
+	qj := carlsonQJ * maxDev
+	facj := 1.0
+	sumD, sumJ := 0.0, 0.0
+	// Each test, once false, stays false: its values stop changing.
+	for i := 0; i < carlsonMaxIter; i++ {
+		goA := withA && faca*qa >= aa
+		goF, goJ := facb*qb >= ab, facj*qj >= min(ad, aj)
+		if !goA && !goF && !goJ {
+			break
+		}
+		if goA {
+			xa, ya, za, aa = carlsonStepF(xa, ya, za, aa)
+			faca *= 0.25
+		}
+		if !goF && !goJ {
+			continue
+		}
+		sx, sy, sz := math.Sqrt(xb), math.Sqrt(yb), math.Sqrt(zb)
+		lam := sx*sy + sx*sz + sy*sz
+		if goJ {
+			sumD += facj / (sz * (zb + lam))
+			t, e, inv := carlsonTermJ(p, delta, sx, sy, sz, facj*facj*facj, facj)
+			sumJ += carlsonFixJ(t, e, inv, facj)
+			p = (p + lam) * 0.25
+			aj = (aj + lam) * 0.25
+			ad = (ad + lam) * 0.25
+			facj *= 0.25
+		}
+		if goF {
+			ab = (ab + lam) * 0.25
+			facb *= 0.25
+		}
+		xb, yb, zb = carlsonNext(sx, sy, sz), carlsonNext(sy, sx, sz), carlsonNext(sz, sx, sy)
+	}
+	if withA {
+		fa = carlsonSeriesF(a0a, x0a, y0a, aa, faca)
+	}
+	fb = carlsonSeriesF(a0b, x0b, y0b, ab, facb)
+	rd = carlsonEndD(ad0, ad, x0b, y0b, facj) + 3*sumD
+	rj = carlsonEndJ(aj0, aj, x0b, y0b, 1, facj) + 6*sumJ
+	return fa, fb, rd, rj
 }
 
 // carlsonSeriesF is the series end of carlsonRF: initial mean a0, initial

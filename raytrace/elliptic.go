@@ -143,6 +143,37 @@ func agm(mc float64) float64 {
 	return a
 }
 
+// ellipKSn2 returns K(m) and ∫₀^K sn²(u|m) du = (K − E)/m for mc = 1 − m
+// > 0 (m < 0 allowed), by the arithmetic–geometric mean of 1 and √mc with
+// Legendre's sum E = K (1 − Σ 2^{n−1} c_n²), c_0² = m, c_{n+1} = (a_n − b_n)/2
+// (Abramowitz & Stegun 1964, 17.6.3–17.6.4): (K − E)/m = K Σ 2^{n−1} c_n²/m,
+// with the c_n² carried as c_n²/m and c_{n+1} = c_n²/(4a_{n+1}), so nothing
+// cancels as m → 0. K is ellipK's to the last bit (the same steps as agm).
+func ellipKSn2(mc float64) (k, zk float64) {
+	a, b := 1.0, math.Sqrt(mc)
+	m := 1 - mc
+	cr := m / (4 * (1 + b) * (1 + b)) // c_1²/m
+	cc := m * cr                      // c_1²
+	sum, pow := 0.5, 1.0              // Σ 2^{n−1} c_n²/m so far, 2^n
+	for i := 0; i < agmSteps; i++ {
+		c := (a + b) / 2
+		sum += pow * cr
+		if math.Abs(a-b) <= 1e-9*a {
+			k = math.Pi / (2 * c)
+			return k, k * sum
+		}
+		b = math.Sqrt(a * b)
+		a = c
+		pow *= 2
+		an := (a + b) / 2
+		f := cc / (16 * an * an)
+		cr *= f
+		cc *= f
+	}
+	k = math.Pi / (2 * a)
+	return k, k * sum
+}
+
 // jacobi is JacobiSCD with the complementary parameter mc = 1 - m given
 // separately, for accuracy as m → 1.
 func jacobi(u, m, mc float64) (sn, cn, dn float64) {

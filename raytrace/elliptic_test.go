@@ -159,3 +159,27 @@ func TestCosThirdAcos(t *testing.T) {
 	near(t, "x=0", cosThirdAcos(0), math.Sqrt(3)/2, 1e-15)
 	near(t, "x=-1", cosThirdAcos(-1), 0.5, 1e-15)
 }
+
+// TestEllipKSn2 checks K and ∫₀^K sn² = (K − E)/m from the AGM against
+// ellipK (the same K to the last bit), against R_D(0, 1 − m, 1)/3 (DLMF
+// 19.25.1) by gonum's EllipticRD, and against K(1/2) and E(1/2) of the
+// lemniscatic case (DLMF 19.20.2: K = Γ(1/4)²/(4√π), E = K/2 + π/(4K)), for
+// m from −40 to 1 − 1e-12, where the sum must not cancel as m → 0.
+func TestEllipKSn2(t *testing.T) {
+	for _, mc := range []float64{1e-12, 1e-6, 0.01, 0.3, 0.5, 0.9, 1 - 1e-9, 1, 1 + 1e-9, 1.7, 5, 41} {
+		k, zk := ellipKSn2(mc)
+		if k != ellipK(mc) {
+			t.Errorf("mc=%g: K %v, ellipK %v", mc, k, ellipK(mc))
+		}
+		want := mathext.EllipticRD(0, mc, 1) / 3
+		if math.Abs(zk/want-1) > 4e-15 {
+			t.Errorf("mc=%g: ∫sn² %.17g, R_D/3 %.17g", mc, zk, want)
+		}
+	}
+	g := math.Gamma(0.25)
+	kl := g * g / (4 * math.Sqrt(math.Pi))
+	el := kl/2 + math.Pi/(4*kl)
+	k, zk := ellipKSn2(0.5)
+	near(t, "K(1/2)", k, kl, 1e-15)
+	near(t, "(K − E)/m at m = 1/2", zk, (kl-el)/0.5, 2e-15)
+}

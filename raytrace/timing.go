@@ -102,6 +102,24 @@ type timingInput struct {
 	s2, c2    float64 // sin², cos² of the observer's amplitude (β ≠ 0)
 	// The Jacobi functions of the first crossings, from trace's r(τ).
 	jac [4]pathJacobi
+	// R_D(c², d², 1) and R_J(c², d², 1, sin²θo) at the observer's angular
+	// amplitude, from the duplication of its R_F (angularF), if angDJ.
+	angDJ        bool
+	angRD, angRJ float64
+	// ∫₀^K sn² of the angular motion, from the AGM of its K (ellipKSn2),
+	// if haveZK.
+	haveZK bool
+	zk     float64
+}
+
+// angularF returns what ellipFsc2 returns for the radial amplitude (s2a,
+// c2a, mca; withA) and the angular one of ang (ellipFsc alone when withA is
+// false, fa = 0) and keeps R_D and R_J of the angular one, p = st2 > 0,
+// from the same duplication (carlsonRF2DJ). Both amplitudes s2 > 0.
+func (tm *timingInput) angularF(s2a, c2a, mca float64, ang *angularMotion, st2 float64, withA bool) (fa, fb float64) {
+	ra, rb, rd, rj := carlsonRF2DJ(c2a, c2a+mca*s2a, ang.c2, ang.c2+ang.mc*ang.s2, st2, withA)
+	tm.angDJ, tm.angRD, tm.angRJ = true, rd, rj
+	return math.Sqrt(s2a) * ra, math.Sqrt(ang.s2) * rb
 }
 
 func (tm *timingInput) set(q quartic, rad radial, w, up, mc, sw, gq float64, beta0 bool) {
@@ -136,7 +154,10 @@ func (o Observer) newAngularTimer(in *timingInput, alpha, beta, lambda float64) 
 	// Quarter oscillation: complete integrals by Bulirsch's cel, with
 	// kc² = 1 − m: ∫sn² dψ = cel(kc, 1, 0, 1), Π(u₊|m) = cel(kc, 1 − u₊, 1, 1).
 	kc := math.Sqrt(mc)
-	rdq := 3 * bulirschCel(kc, 1, 0, 1) // R_D(0, 1 − m, 1)
+	rdq := 3 * in.zk // R_D(0, 1 − m, 1) = 3 ∫₀^K sn²
+	if !in.haveZK {
+		rdq = 3 * bulirschCel(kc, 1, 0, 1)
+	}
 	if omu > 0 {
 		at.pq = lambda * bulirschCel(kc, omu, 1, 1) / sw
 	} else {
@@ -162,12 +183,21 @@ func (o Observer) newAngularTimer(in *timingInput, alpha, beta, lambda float64) 
 		return at // observer in the plane: G_o = 0
 	}
 	if st2 > 0 && omu > 0 {
-		rd := carlsonDJ(c2, d2, 1, []float64{st2}, rj[:0])
+		var rd float64
+		if in.angDJ {
+			rd, rj[0] = in.angRD, in.angRJ
+		} else {
+			rd = carlsonDJ(c2, d2, 1, []float64{st2}, rj[:0])
+		}
 		at.to = up / sw * s3 * rd / 3
 		at.po = lambda * (in.gobs + up/(3*sw)*s3*rj[0])
 		return at
 	}
-	at.to = up / sw * s3 * CarlsonRD(c2, d2, 1) / 3
+	rd := in.angRD
+	if !in.angDJ {
+		rd = CarlsonRD(c2, d2, 1)
+	}
+	at.to = up / sw * s3 * rd / 3
 	if o.sin == 0 {
 		// Observer on the axis (θo = 0° or 180°), λ = 0: the limit θo → 0
 		// of λG_o is −sign(α) arctan(|α|/|β|) (R_J(x, y, z, p) ≈

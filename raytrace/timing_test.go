@@ -655,3 +655,34 @@ func TestTimingAdditionMatchesTwoEvaluations(t *testing.T) {
 	}
 	t.Logf("%d points (%d photons with two real roots, %d past K), worst relative difference %.2e", count, two, nearK, worst)
 }
+
+// TestTraceTimedPathIsTrace checks that TraceTimed's crossings are Trace's
+// to the last bit: the timed trace shares the duplication of the angular
+// R_F with the timing's R_D and R_J (carlsonRF2DJ) and takes K with the
+// AGM sum of ∫sn² (ellipKSn2), which must not move the path.
+func TestTraceTimedPathIsTrace(t *testing.T) {
+	rng := rand.New(rand.NewPCG(43, 47))
+	tp := TimedPath{Path: Path{Crossings: make([]Crossing, 0, 4)}, Times: make([]Timing, 0, 4)}
+	p := Path{Crossings: make([]Crossing, 0, 4)}
+	for i := 0; i < 20000; i++ {
+		spin := -0.999 + 1.998*rng.Float64()
+		if i%5 == 0 {
+			spin = math.Copysign(1-math.Pow(10, -3-6*rng.Float64()), spin)
+		}
+		o, err := NewObserver(spin, 180*rng.Float64())
+		if err != nil {
+			t.Fatal(err)
+		}
+		al, be := -15+30*rng.Float64(), -15+30*rng.Float64()
+		o.Trace(al, be, 4, &p)
+		o.TraceTimed(al, be, 4, &tp)
+		if len(p.Crossings) != len(tp.Crossings) || p.Mino != tp.Mino || p.Fate != tp.Fate {
+			t.Fatalf("a=%g (%g, %g): Trace %+v, TraceTimed %+v", spin, al, be, p, tp.Path)
+		}
+		for k := range p.Crossings {
+			if p.Crossings[k] != tp.Crossings[k] {
+				t.Fatalf("a=%g (%g, %g) crossing %d: %+v vs %+v", spin, al, be, k, p.Crossings[k], tp.Crossings[k])
+			}
+		}
+	}
+}

@@ -228,7 +228,12 @@ func (o Observer) trace(lambda, eta, beta float64, orders int, p *Path, tm *timi
 	if paired {
 		ang = o.angularMotion(A, eta, beta)
 		s2, c2, mc := caseIAmplitude(&q)
-		f0, g := ellipFsc2(s2, c2, mc, ang.s2, ang.c2, ang.mc)
+		var f0, g float64
+		if tm != nil && s2 > 0 && ang.s2 > 0 && o.sin != 0 {
+			f0, g = tm.angularF(s2, c2, mc, &ang, o.sin*o.sin, true)
+		} else {
+			f0, g = ellipFsc2(s2, c2, mc, ang.s2, ang.c2, ang.mc)
+		}
 		rad.initIF0(&q, rh, true, f0)
 		gobs = g / ang.sw
 	}
@@ -283,14 +288,26 @@ func (o Observer) trace(lambda, eta, beta float64, orders int, p *Path, tm *timi
 		ang = o.angularMotion(A, eta, beta)
 	}
 	w, up, mcTheta, sw := ang.w, ang.up, ang.mc, ang.sw
-	gq := ellipK(mcTheta) / sw
+	var gq float64
+	if tm != nil && mcTheta > 0 && !math.IsInf(mcTheta, 1) {
+		k, zk := ellipKSn2(mcTheta)
+		gq = k / sw
+		tm.zk, tm.haveZK = zk, true
+	} else {
+		gq = ellipK(mcTheta) / sw
+	}
 	c := o.cos
 	var tau0 float64
 	if beta == 0 {
 		tau0 = gq
 	} else {
 		s2, c2 := ang.s2, ang.c2
-		if !paired {
+		switch {
+		case paired:
+		case tm != nil && s2 > 0 && o.sin != 0:
+			_, g := tm.angularF(0, 0, 0, &ang, o.sin*o.sin, false)
+			gobs = g / sw
+		default:
 			gobs = ellipFsc(s2, c2, mcTheta) / sw
 		}
 		sgn := 1.0
