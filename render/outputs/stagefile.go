@@ -8,6 +8,8 @@ import (
 	"hash"
 	"os"
 	"sync"
+	"syscall"
+	"unsafe"
 )
 
 // The staging of one file is a pipeline, so that the goroutine making the
@@ -17,15 +19,41 @@ import (
 // both in order), and a fourth asks the disk to take the data it has so
 // far (a sync) each time syncStep more bytes are in the file, so that the
 // final sync, which the commit waits for, has only the tail left.
+//
+// A file that fills a buffer is written without the page cache where the
+// system allows it (setDirect, O_DIRECT on Linux): its full buffers are
+// whole aligned blocks, and only the tail goes through the cache. For the
+// large FITS files that saves a copy of every byte into the cache, and the
+// cache pages themselves, which on a virtual machine whose free memory the
+// host has taken back cost a fault each: a 250 MB FITS file took 0.7 s of
+// system time that way, 0.04 s direct (both with their final sync).
 const (
 	stageBufSize = 1 << 19 // bytes of one buffer
 	stageBufs    = 4       // buffers per file: filling, writing, hashing, spare
 	syncStep     = 32 << 20
+	directAlign  = 4096 // alignment of direct writes: address, length and offset
 )
 
 // stageBuffers are the buffers of the files being staged, reused from
-// file to file.
-var stageBuffers = sync.Pool{New: func() any { b := make([]byte, 0, stageBufSize); return &b }}
+// file to file, each starting on a directAlign boundary.
+var stageBuffers = sync.Pool{New: func() any { b := alignedBuffer(); return &b }}
+
+// alignedBuffer returns an empty buffer of capacity stageBufSize whose
+// first byte lies on a directAlign boundary.
+func alignedBuffer() []byte {
+	b := make([]byte, stageBufSize+directAlign)
+	off := (directAlign - int(uintptr(unsafe.Pointer(&b[0]))%directAlign)) % directAlign
+	return b[off : off : off+stageBufSize]
+}
+
+// directState: whether a staged file's writes bypass the page cache.
+type directState int8
+
+const (
+	directUntried directState = iota
+	directOn
+	directOff
+)
 
 // stagedFile is the writer of one staged file (Outputs.Write): Write
 // buffers; full buffers go to the writing goroutine. Close hands over
@@ -49,6 +77,7 @@ type stagedFile struct {
 	h       hash.Hash
 	kick    chan struct{} // asks the syncer for a sync (capacity 1)
 	done    chan error    // the final sync and close: one value
+	direct  directState   // writeLoop's only
 }
 
 // newStagedFile starts the pipeline of f, which it closes at the end.
@@ -73,7 +102,7 @@ func (s *stagedFile) writeLoop() {
 	var since int64
 	for b := range s.full {
 		if !s.hasFailed() {
-			if _, err := s.f.Write(b); err != nil {
+			if err := s.write(b); err != nil {
 				s.mu.Lock()
 				s.failed, s.err = true, err
 				s.mu.Unlock()
@@ -87,6 +116,34 @@ func (s *stagedFile) writeLoop() {
 		}
 		s.hashed <- b
 	}
+}
+
+// write writes b to the file: the first full buffer turns direct writes
+// on if the system allows them, a shorter one (the tail, not a whole
+// number of blocks) turns them off again, and a direct write the file
+// system refuses is made through the cache.
+func (s *stagedFile) write(b []byte) error {
+	if s.direct == directUntried && len(b) == stageBufSize {
+		s.direct = directOff
+		if setDirect(s.f, true) == nil {
+			s.direct = directOn
+		}
+	}
+	if s.direct == directOn && len(b)%directAlign != 0 {
+		s.direct = directOff
+		if err := setDirect(s.f, false); err != nil {
+			return err
+		}
+	}
+	_, err := s.f.Write(b)
+	if err != nil && s.direct == directOn && errors.Is(err, syscall.EINVAL) {
+		s.direct = directOff
+		if err := setDirect(s.f, false); err != nil {
+			return err
+		}
+		_, err = s.f.Write(b)
+	}
+	return err
 }
 
 // hashLoop feeds the written buffers to the hash, in order, and frees

@@ -142,3 +142,48 @@ func stagingOutputs(t *testing.T) (string, *Outputs) {
 	}
 	return dir, out
 }
+
+// A staged file's full buffers go without the page cache where the file
+// system takes O_DIRECT; a direct write it refuses (here one from a
+// buffer off the block boundary, which O_DIRECT rejects with EINVAL)
+// must still reach the file, through the cache, and so must the tail
+// that is not a whole number of blocks.
+func TestStagedFileDirectFallback(t *testing.T) {
+	f, err := os.Create(filepath.Join(t.TempDir(), "direct.bin"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	if err := setDirect(f, true); err != nil {
+		t.Skipf("no direct writes on this file system: %v", err)
+	}
+	if err := setDirect(f, false); err != nil {
+		t.Fatal(err)
+	}
+	aligned := alignedBuffer()[:stageBufSize]
+	copy(aligned, stagedBytes(stageBufSize, 5))
+	raw := make([]byte, stageBufSize+1)
+	off := raw[1:] // not on a block boundary
+	copy(off, stagedBytes(stageBufSize, 6))
+	tail := stagedBytes(1000, 7)
+	s := &stagedFile{f: f}
+	for i, b := range [][]byte{aligned, off, aligned, tail} {
+		if err := s.write(b); err != nil {
+			t.Fatalf("write %d: %v", i, err)
+		}
+		if i == 0 && s.direct != directOn {
+			t.Fatalf("after a full aligned buffer: direct state %v, want on", s.direct)
+		}
+	}
+	if s.direct != directOff {
+		t.Errorf("after the refused write and the tail: direct state %v, want off", s.direct)
+	}
+	got, err := os.ReadFile(f.Name())
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := bytes.Join([][]byte{aligned, off, aligned, tail}, nil)
+	if !bytes.Equal(got, want) {
+		t.Errorf("file holds %d bytes, want %d (equal: %v)", len(got), len(want), bytes.Equal(got, want))
+	}
+}
