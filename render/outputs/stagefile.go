@@ -20,18 +20,22 @@ import (
 // far (a sync) each time syncStep more bytes are in the file, so that the
 // final sync, which the commit waits for, has only the tail left.
 //
-// A file that fills a buffer is written without the page cache where the
-// system allows it (setDirect, O_DIRECT on Linux): its full buffers are
-// whole aligned blocks, and only the tail goes through the cache. For the
-// large FITS files that saves a copy of every byte into the cache, and the
-// cache pages themselves, which on a virtual machine whose free memory the
-// host has taken back cost a fault each: a 250 MB FITS file took 0.7 s of
-// system time that way, 0.04 s direct (both with their final sync).
+// Beyond its first directAfter bytes a file is written without the page
+// cache where the system allows it (setDirect, O_DIRECT on Linux): its
+// full buffers are whole aligned blocks, and only the tail goes through
+// the cache. For the large FITS files that saves a copy of every byte
+// into the cache, and the cache pages themselves, which on a virtual
+// machine whose free memory the host has taken back cost a fault each: a
+// 250 MB FITS file took 0.7 s of system time that way, 0.04 s direct
+// (both with their final sync). Smaller files, a sweep's frames among
+// them, stay in the cache, where sweep-merge reads them back to check
+// their hashes.
 const (
 	stageBufSize = 1 << 19 // bytes of one buffer
 	stageBufs    = 4       // buffers per file: filling, writing, hashing, spare
 	syncStep     = 32 << 20
-	directAlign  = 4096 // alignment of direct writes: address, length and offset
+	directAlign  = 4096     // alignment of direct writes: address, length and offset
+	directAfter  = syncStep // bytes written through the cache before direct writes
 )
 
 // stageBuffers are the buffers of the files being staged, reused from
@@ -77,7 +81,8 @@ type stagedFile struct {
 	h       hash.Hash
 	kick    chan struct{} // asks the syncer for a sync (capacity 1)
 	done    chan error    // the final sync and close: one value
-	direct  directState   // writeLoop's only
+	direct  directState   // writeLoop's only, as is wn
+	wn      int64         // bytes written so far
 }
 
 // newStagedFile starts the pipeline of f, which it closes at the end.
@@ -118,12 +123,21 @@ func (s *stagedFile) writeLoop() {
 	}
 }
 
-// write writes b to the file: the first full buffer turns direct writes
-// on if the system allows them, a shorter one (the tail, not a whole
-// number of blocks) turns them off again, and a direct write the file
-// system refuses is made through the cache.
-func (s *stagedFile) write(b []byte) error {
-	if s.direct == directUntried && len(b) == stageBufSize {
+// write writes b to the file: the first full buffer after directAfter
+// bytes (all full buffers before it, so at an aligned offset) turns direct
+// writes on if the system allows them, a shorter one (the tail, not a
+// whole number of blocks) turns them off again, and a direct write the
+// file system refuses is made through the cache.
+func (s *stagedFile) write(b []byte) (err error) {
+	defer func() {
+		if err == nil {
+			s.wn += int64(len(b))
+		}
+	}()
+	if s.direct == directUntried && len(b) != stageBufSize {
+		s.direct = directOff // a short buffer before the tail: offsets no longer aligned
+	}
+	if s.direct == directUntried && s.wn >= directAfter {
 		s.direct = directOff
 		if setDirect(s.f, true) == nil {
 			s.direct = directOn
@@ -135,7 +149,7 @@ func (s *stagedFile) write(b []byte) error {
 			return err
 		}
 	}
-	_, err := s.f.Write(b)
+	_, err = s.f.Write(b)
 	if err != nil && s.direct == directOn && errors.Is(err, syscall.EINVAL) {
 		s.direct = directOff
 		if err := setDirect(s.f, false); err != nil {

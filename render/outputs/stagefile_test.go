@@ -143,11 +143,11 @@ func stagingOutputs(t *testing.T) (string, *Outputs) {
 	return dir, out
 }
 
-// A staged file's full buffers go without the page cache where the file
-// system takes O_DIRECT; a direct write it refuses (here one from a
-// buffer off the block boundary, which O_DIRECT rejects with EINVAL)
-// must still reach the file, through the cache, and so must the tail
-// that is not a whole number of blocks.
+// A staged file's full buffers go without the page cache, once its first
+// directAfter bytes are written, where the file system takes O_DIRECT; a
+// direct write it refuses (here one from a buffer off the block boundary,
+// which O_DIRECT rejects with EINVAL) must still reach the file, through
+// the cache, and so must the tail that is not a whole number of blocks.
 func TestStagedFileDirectFallback(t *testing.T) {
 	f, err := os.Create(filepath.Join(t.TempDir(), "direct.bin"))
 	if err != nil {
@@ -166,7 +166,18 @@ func TestStagedFileDirectFallback(t *testing.T) {
 	off := raw[1:] // not on a block boundary
 	copy(off, stagedBytes(stageBufSize, 6))
 	tail := stagedBytes(1000, 7)
-	s := &stagedFile{f: f}
+	// Before directAfter bytes a full buffer stays in the cache.
+	early := &stagedFile{f: f}
+	if err := early.write(aligned); err != nil || early.direct != directUntried {
+		t.Fatalf("first buffer of a file: %v, direct state %v, want untried", err, early.direct)
+	}
+	if err := f.Truncate(0); err != nil {
+		t.Fatal(err)
+	}
+	if _, err := f.Seek(0, io.SeekStart); err != nil {
+		t.Fatal(err)
+	}
+	s := &stagedFile{f: f, wn: directAfter} // as if past the threshold, at an aligned offset
 	for i, b := range [][]byte{aligned, off, aligned, tail} {
 		if err := s.write(b); err != nil {
 			t.Fatalf("write %d: %v", i, err)
