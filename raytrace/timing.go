@@ -309,6 +309,7 @@ type radialTimer struct {
 	rcInf              float64
 	s0, c0, d0         float64
 	nch, omn, on0, kk2 [3]float64
+	kq, ikq            [3]float64 // sqrt|k²| and its inverse (setK)
 	// Complete integrals, set on first need: case I ∫₀^K sn² and
 	// (P_N(K) − K)/N (zc, qc); case II compRD, compRJ.
 	haveComp bool
@@ -404,6 +405,7 @@ func (rt *radialTimer) setupI(q *quartic, rad *radial) {
 		rt.nch[i+1], rt.omn[i+1], rt.on0[i+1] = nc, omn, rt.r43*id4
 		rt.kk2[i+1] = nc * mmn * omn
 	}
+	rt.setK()
 }
 
 // infI sets rt.inf, the case-I integrals from the turning point to
@@ -439,18 +441,43 @@ func (rt *radialTimer) infI() {
 // r ≤ r1. For u > K, Z(u) = 2Z(K) − Z(2K − u) and likewise P_N, the
 // complete values by Bulirsch's cel.
 
-// addQ returns the addition term of P_N divided by N: t R_C(G², G² − k²t²),
-// t ≥ 0, G the G of the addition theorem.
-func addQ(k2, t, G float64) float64 {
+// addQ returns the addition term of P_N divided by N: t R_C(G², G² − k²t²)
+// for k² > 0, t ≥ 0, G the G of the addition theorem, given k = sqrt|k²|
+// and ik = 1/k; for k² < 0 the term arctan2(k t, G)/k. With v = k t/|G|,
+// R_C(G², G²(1 − v²)) = artanh(v)/(v|G|) for v < 1 and its principal
+// value arcoth(v)/(v|G|) for v > 1 (DLMF 19.2.18–19.2.20), so the term is
+// ½ ln|(1 + v)/(1 − v)|/k, taken as ½ log1p(2v/(1 − v))/k or
+// ½ log1p(2/(v − 1))/k so that nothing cancels, with its series
+// t/|G| Σ v^{2j}/(2j + 1) for small v (as carlsonRC).
+func addQ(k2, k, ik, t, G float64) float64 {
 	if t == 0 {
 		return 0
 	}
 	if k2 < 0 {
-		k := math.Sqrt(-k2)
-		return math.Atan2(k*t, G) / k
+		return math.Atan2(k*t, G) * ik
 	}
-	g2 := G * G
-	return t * carlsonRC(g2, g2-k2*t*t)
+	g := math.Abs(G)
+	if g == 0 {
+		return 0 // the principal value's limit
+	}
+	tg := t / g
+	v := k * tg
+	w := v * v
+	switch {
+	case w < 1e-3:
+		return tg * (1 + w*(1.0/3+w*(1.0/5+w*(1.0/7+w*(1.0/9+w/11)))))
+	case v < 1:
+		return 0.5 * math.Log1p(2*v/(1-v)) * ik
+	}
+	return 0.5 * math.Log1p(2/(v-1)) * ik
+}
+
+// setK sets k = sqrt|k²| and 1/k of each characteristic (addQ).
+func (rt *radialTimer) setK() {
+	for i, k2 := range rt.kk2 {
+		rt.kq[i] = math.Sqrt(math.Abs(k2))
+		rt.ikq[i] = 1 / rt.kq[i]
+	}
 }
 
 // sn2Integrals returns ∫₀^u sn² = (s³/3) R_D(c², d², 1) and, for each
@@ -551,7 +578,7 @@ func (rt *radialTimer) sumsI(jac *pathJacobi) (sy, sz float64, sq [3]float64) {
 	}
 	sz = z + sg*t
 	for i := 0; i < ng; i++ {
-		sq[i] = q[i] + sg*addQ(rt.kk2[i], t, gg[i])
+		sq[i] = q[i] + sg*addQ(rt.kk2[i], rt.kq[i], rt.ikq[i], t, gg[i])
 	}
 	return sy, sz, sq
 }
@@ -642,6 +669,7 @@ func (rt *radialTimer) setupII(q *quartic, rad *radial) {
 		}
 		rt.nch[i], rt.omn[i], rt.kk2[i] = n, omn, n*mmn*omn
 	}
+	rt.setK()
 	// Infinity: cn = c0 = (A' − B')/(A' + B'), sn² = 4A'B'/(A'+B')².
 	c0 := (rt.apr - rt.bpr) / (rt.apr + rt.bpr)
 	s2 := 4 * ab / ((rt.apr + rt.bpr) * (rt.apr + rt.bpr))
@@ -927,7 +955,7 @@ func (rt *radialTimer) addI(jac *pathJacobi, sn, x, yc float64) [5]float64 {
 // 1/(r − r±) from infinity to the point jac, in τ, with onegc as for jII:
 // J(X0) − J(Y) is the difference of the elementary terms (at infinity,
 // rt.einf, and at Y) plus the linear part (combII) of δ = X0 − Y and of
-// ΣZ = Z(δ) + t and ΣQ_N = Q_N(δ) + addQ(k², t, G), t = s_Y s_δ s_X0,
+// ΣZ = Z(δ) + t and ΣQ_N = Q_N(δ) + addQ(k², k, 1/k, t, G), t = s_Y s_δ s_X0,
 // G = 1 − N s²_X0 + N s_Y s_δ c_X0 d_X0 (the addition theorems of sumsI;
 // the characteristics ν < m and N < 0 of jII have no poles).
 func (rt *radialTimer) addII(jac *pathJacobi, onegc [3]float64) [5]float64 {
@@ -953,7 +981,7 @@ func (rt *radialTimer) addII(jac *pathJacobi, onegc [3]float64) [5]float64 {
 		sz = z + t
 		for i := 0; i < ng; i++ {
 			g := rt.on0[i] + rt.nch[i]*sY*sd*rt.c0*rt.d0
-			sq[i] = q[i] + addQ(rt.kk2[i], t, g)
+			sq[i] = q[i] + addQ(rt.kk2[i], rt.kq[i], rt.ikq[i], t, g)
 		}
 	}
 	lin := rt.combII(jac.d, sz, sq, 0, 1, 1, onegc, false, false)

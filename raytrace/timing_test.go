@@ -583,7 +583,8 @@ func TestAdditionTheorems(t *testing.T) {
 				k2 := n * (m - n) * (1 - n)
 				dp := P(sw, cw) - P(su, cu) - P(sv, cv)
 				dz := Z(sw, cw) - Z(su, cu) - Z(sv, cv)
-				near(t, fmt.Sprintf("P_N addition m=%v N=%v u=%v v=%v", m, n, u, v), n*addQ(k2, tt, G), dp, 1e-12*(1+math.Abs(P(sw, cw))))
+				kq := math.Sqrt(math.Abs(k2))
+				near(t, fmt.Sprintf("P_N addition m=%v N=%v u=%v v=%v", m, n, u, v), n*addQ(k2, kq, 1/kq, tt, G), dp, 1e-12*(1+math.Abs(P(sw, cw))))
 				near(t, fmt.Sprintf("Z addition m=%v u=%v v=%v", m, u, v), tt, dz, 1e-12*(1+math.Abs(Z(sw, cw))))
 			}
 		}
@@ -684,5 +685,40 @@ func TestTraceTimedPathIsTrace(t *testing.T) {
 				t.Fatalf("a=%g (%g, %g) crossing %d: %+v vs %+v", spin, al, be, k, p.Crossings[k], tp.Crossings[k])
 			}
 		}
+	}
+}
+
+// TestAddQElementary checks addQ's elementary forms for k² > 0 against
+// t R_C(G², G² − k²t²) by carlsonRC (its series, logarithm and principal
+// value, DLMF 19.2.17–19.2.20) and against artanh(v)/k, artanh(1/v)/k by
+// the standard library (the same values: DLMF 19.2.18, 19.2.20), over both
+// signs of G and v = k t/|G| from 1e-6 to 1e3 on both sides of 1.
+func TestAddQElementary(t *testing.T) {
+	rng := rand.New(rand.NewPCG(53, 59))
+	worstRC, worstAtanh := 0.0, 0.0
+	for i := 0; i < 100000; i++ {
+		k2 := math.Pow(10, -4+6*rng.Float64())
+		kq := math.Sqrt(k2)
+		G := math.Pow(10, -3+4*rng.Float64())
+		if i%2 == 1 {
+			G = -G
+		}
+		v := math.Pow(10, -6+9*rng.Float64())
+		if math.Abs(v-1) < 1e-6 {
+			continue // the logarithmic singularity itself
+		}
+		tt := v * math.Abs(G) / kq
+		got := addQ(k2, kq, 1/kq, tt, G)
+		want := math.Atanh(min(v, 1/v)) / kq
+		// Near v = 1 every form loses digits like 1/|1 − v| (in v itself).
+		scale := math.Abs(1-v) / (1 + math.Abs(1-v))
+		worstAtanh = max(worstAtanh, math.Abs(got/want-1)*scale)
+		if v < 10 { // carlsonRC takes a plain logarithm of (v+1)/(v−1)
+			g2 := G * G
+			worstRC = max(worstRC, math.Abs(got/(tt*carlsonRC(g2, g2-k2*tt*tt))-1)*scale)
+		}
+	}
+	if worstRC > 1e-14 || worstAtanh > 1e-14 {
+		t.Errorf("addQ: worst scaled relative difference %g against t R_C, %g against artanh; want ≤ 1e-14", worstRC, worstAtanh)
 	}
 }
