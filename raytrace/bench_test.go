@@ -67,18 +67,31 @@ func BenchmarkTraceTimed(b *testing.B) {
 //
 //	go test ./raytrace -run X -bench TraceGrid -benchtime 20x
 func BenchmarkTraceGrid(b *testing.B) {
+	p := Path{Crossings: make([]Crossing, 0, 3)}
+	benchGrid(b, func(o Observer, alpha, beta float64) { o.Trace(alpha, beta, 3, &p) })
+}
+
+// BenchmarkTraceGridTimed is BenchmarkTraceGrid with the time delay and
+// azimuth of every crossing (TraceTimed).
+func BenchmarkTraceGridTimed(b *testing.B) {
+	p := TimedPath{Path: Path{Crossings: make([]Crossing, 0, 3)}, Times: make([]Timing, 0, 3)}
+	benchGrid(b, func(o Observer, alpha, beta float64) { o.TraceTimed(alpha, beta, 3, &p) })
+}
+
+// benchGrid runs trace over the 256² grid of BenchmarkTraceGrid and
+// reports rays/s and ns/ray.
+func benchGrid(b *testing.B, trace func(o Observer, alpha, beta float64)) {
 	const n, fov = 256, 40.0
 	o, err := NewObserver(0.9, 60)
 	if err != nil {
 		b.Fatal(err)
 	}
-	p := Path{Crossings: make([]Crossing, 0, 3)}
 	b.ReportAllocs()
 	for b.Loop() {
 		for j := 0; j < n; j++ {
 			beta := (float64(n)/2 - float64(j) - 0.5) * fov / n
 			for i := 0; i < n; i++ {
-				o.Trace((float64(i)+0.5-float64(n)/2)*fov/n, beta, 3, &p)
+				trace(o, (float64(i)+0.5-float64(n)/2)*fov/n, beta)
 			}
 		}
 	}
