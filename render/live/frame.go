@@ -109,7 +109,7 @@ type view struct {
 }
 
 // frameCache remembers the automatic windows of recent scenes: framing
-// traces pixels.FramingPhotons, more than a view itself.
+// traces up to liveFramingSide² photons, about as many as a view itself.
 type frameCache struct {
 	mu sync.Mutex
 	m  map[string]Window

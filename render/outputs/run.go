@@ -68,13 +68,9 @@ func Run(ctx context.Context, r scene.Resolved, opt Options) (Summary, error) {
 	if err := CheckInputs(r, arts); err != nil {
 		return Summary{}, err
 	}
-	framed, err := pixels.FrameWindow(ctx, r)
+	framed, framing, err := pixels.FrameWindowTraced(ctx, r)
 	if err != nil {
 		return Summary{}, err
-	}
-	var framing int64
-	if r.AutoField {
-		framing = pixels.FramingPhotons
 	}
 	r = framed
 	f, err := pixels.RenderChecked(ctx, r, opt.Progress, Needs(arts))

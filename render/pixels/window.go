@@ -14,10 +14,6 @@ import (
 // about 100 000 photons, a quarter of a 512 × 512 render.
 const framingSide = 320
 
-// FramingPhotons is the number of photons FrameWindow traces for an
-// automatic window.
-const FramingPhotons = framingSide * framingSide
-
 // Framing margins: the automatic window holds the box of every coarse
 // sample that lands on the disk, widened on every side by
 // framingMarginFrac of the box's larger side and framingMarginCells
@@ -47,25 +43,38 @@ const (
 // cell), the provisional window of Resolve, the whole ImageBox, is kept.
 // The result depends only on r: every process computes the same window.
 func FrameWindow(ctx context.Context, r scene.Resolved) (scene.Resolved, error) {
-	return FrameWindowAt(ctx, r, framingSide)
+	fr, _, err := FrameWindowTraced(ctx, r)
+	return fr, err
+}
+
+// FrameWindowTraced is FrameWindow that also returns the number of
+// photons its coarse pass traced (0 for a scene with a field of view).
+func FrameWindowTraced(ctx context.Context, r scene.Resolved) (scene.Resolved, int64, error) {
+	return frameWindowAt(ctx, r, framingSide)
 }
 
 // FrameWindowAt is FrameWindow with side × side coarse samples instead of
 // framingSide × framingSide: a cheaper, coarser framing for interactive
 // views (side ≥ 16; the margin grows with the coarser cells).
 func FrameWindowAt(ctx context.Context, r scene.Resolved, side int) (scene.Resolved, error) {
+	fr, _, err := frameWindowAt(ctx, r, side)
+	return fr, err
+}
+
+// frameWindowAt is FrameWindowAt, also returning the photons traced.
+func frameWindowAt(ctx context.Context, r scene.Resolved, side int) (scene.Resolved, int64, error) {
 	if !r.AutoField {
-		return r, nil
+		return r, 0, nil
 	}
-	box, ok, err := diskBox(ctx, r, max(side, 16))
+	box, ok, traced, err := diskBox(ctx, r, max(side, 16))
 	if err != nil {
-		return r, err
+		return r, traced, err
 	}
 	if !ok {
-		return r.WithWindow(r.Screen.FieldOfView, r.Screen.CenterAlpha, r.Screen.CenterBeta), nil
+		return r.WithWindow(r.Screen.FieldOfView, r.Screen.CenterAlpha, r.Screen.CenterBeta), traced, nil
 	}
 	field, ca, cb := box.Window(r)
-	return r.WithWindow(field, ca, cb), nil
+	return r.WithWindow(field, ca, cb), traced, nil
 }
 
 // Box is a rectangle of the screen, α from A0 to A1 and β from B0 to B1, M.
@@ -81,14 +90,21 @@ func (b Box) Union(c Box) Box {
 // whether any sample landed. Sweeps take the union of their frames'
 // boxes (Box.Union, Box.Window).
 func DiskBox(ctx context.Context, r scene.Resolved) (Box, bool, error) {
-	return diskBox(ctx, r, framingSide)
+	b, ok, _, err := diskBox(ctx, r, framingSide)
+	return b, ok, err
 }
 
-// diskBox is DiskBox on side × side coarse samples.
-func diskBox(ctx context.Context, r scene.Resolved, side int) (Box, bool, error) {
+// diskBox is DiskBox on side × side coarse samples; it also returns the
+// number of photons traced. The box needs of each row only its first and
+// last sample that lands, so a row is traced from its left end up to the
+// first that lands and from its right end back to the last: the same box
+// as every sample would give, for the samples outside the disk image and
+// a few more (a third to a half of them, for an automatic window that
+// fits the disk).
+func diskBox(ctx context.Context, r scene.Resolved, side int) (Box, bool, int64, error) {
 	m, err := NewModel(r)
 	if err != nil {
-		return Box{}, false, err
+		return Box{}, false, 0, err
 	}
 	m.Timing = false
 	half := r.ImageBox()
@@ -98,22 +114,35 @@ func diskBox(ctx context.Context, r scene.Resolved, side int) (Box, bool, error)
 		i0, i1 int // first and last column that lands, -1 none
 	}
 	rows := make([]rowBox, side)
+	traced := make([]int32, side)
 	parallel(ctx, side, m.Orders, func(j int, p *raytrace.Path, s *Sample) {
 		rb := rowBox{-1, -1}
 		beta := at(j)
-		for i := 0; i < side; i++ {
+		lands := func(i int) bool {
+			traced[j]++
 			m.Shade(at(i), beta, p, s)
-			if s.First >= 0 {
-				if rb.i0 < 0 {
-					rb.i0 = i
-				}
+			return s.First >= 0
+		}
+		for i := 0; i < side; i++ {
+			if lands(i) {
+				rb.i0, rb.i1 = i, i
+				break
+			}
+		}
+		for i := side - 1; rb.i0 >= 0 && i > rb.i0; i-- {
+			if lands(i) {
 				rb.i1 = i
+				break
 			}
 		}
 		rows[j] = rb
 	})
+	var n int64
+	for _, k := range traced {
+		n += int64(k)
+	}
 	if err := ctx.Err(); err != nil {
-		return Box{}, false, err
+		return Box{}, false, n, err
 	}
 	i0, i1, j0, j1 := side, -1, side, -1
 	for j, rb := range rows {
@@ -124,11 +153,11 @@ func diskBox(ctx context.Context, r scene.Resolved, side int) (Box, bool, error)
 		j0, j1 = min(j0, j), max(j1, j)
 	}
 	if i1 < 0 {
-		return Box{}, false, nil
+		return Box{}, false, n, nil
 	}
 	b := Box{at(i0), at(i1), at(j0), at(j1)}
 	pad := framingMarginFrac*math.Max(b.A1-b.A0, b.B1-b.B0) + framingMarginCells*cell
-	return Box{b.A0 - pad, b.A1 + pad, b.B0 - pad, b.B1 + pad}, true, nil
+	return Box{b.A0 - pad, b.A1 + pad, b.B0 - pad, b.B1 + pad}, true, n, nil
 }
 
 // Window returns the field and centre of the window of r's pixels that

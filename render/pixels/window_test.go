@@ -6,6 +6,7 @@ import (
 	"math"
 	"testing"
 
+	"kerrscope/raytrace"
 	"kerrscope/scene"
 )
 
@@ -208,6 +209,68 @@ func TestAlignedCellsDoNotStraddleTheWindow(t *testing.T) {
 		first, last := cells[0], cells[len(cells)-1]
 		if first.mid-first.size/2 > c.from || last.mid+last.size/2 < c.to {
 			t.Errorf("%v: cells span %v to %v, not the box", c, first.mid-first.size/2, last.mid+last.size/2)
+		}
+	}
+}
+
+// diskBoxEverySample is diskBox tracing every coarse sample, as it did
+// before it traced each row only from its ends inwards.
+func diskBoxEverySample(t *testing.T, r scene.Resolved, side int) (Box, bool) {
+	t.Helper()
+	m, err := NewModel(r)
+	if err != nil {
+		t.Fatal(err)
+	}
+	m.Timing = false
+	half := r.ImageBox()
+	cell := 2 * half / float64(side)
+	at := func(k int) float64 { return -half + (float64(k)+0.5)*cell }
+	i0, i1, j0, j1 := side, -1, side, -1
+	p := raytrace.Path{Crossings: make([]raytrace.Crossing, 0, m.Orders)}
+	var s Sample
+	for j := 0; j < side; j++ {
+		for i := 0; i < side; i++ {
+			m.Shade(at(i), at(j), &p, &s)
+			if s.First >= 0 {
+				i0, i1, j0, j1 = min(i0, i), max(i1, i), min(j0, j), max(j1, j)
+			}
+		}
+	}
+	if i1 < 0 {
+		return Box{}, false
+	}
+	b := Box{at(i0), at(i1), at(j0), at(j1)}
+	pad := framingMarginFrac*math.Max(b.A1-b.A0, b.B1-b.B0) + framingMarginCells*cell
+	return Box{b.A0 - pad, b.A1 + pad, b.B0 - pad, b.B1 + pad}, true
+}
+
+// The framing pass traces each row from its ends inwards only: its box
+// must be, to the last bit, the box of every sample, for disks seen from
+// face-on to edge-on, opaque and transparent, with and without the
+// higher orders, and for a disk too thin for any sample; and it must
+// trace fewer photons.
+func TestDiskBoxFromRowEnds(t *testing.T) {
+	const side = 120
+	cases := []func(s *scene.Scene){
+		func(s *scene.Scene) {},
+		func(s *scene.Scene) { s.Observer.InclinationDeg = 3 },
+		func(s *scene.Scene) { s.Observer.InclinationDeg, s.Disk.Opaque = 89.5, false },
+		func(s *scene.Scene) { s.Hole.Spin, s.Observer.InclinationDeg, s.Disk.Orders = -0.9, 75, 1 },
+		func(s *scene.Scene) { s.Hole.Spin, s.Disk.Opaque, s.Disk.Orders = 0.998, false, 5 },
+		func(s *scene.Scene) { s.Observer.InclinationDeg = 90 }, // a zero-thickness disk edge-on
+	}
+	for k, edit := range cases {
+		r := resolve(t, edit)
+		want, wantOK := diskBoxEverySample(t, r, side)
+		got, ok, traced, err := diskBox(context.Background(), r, side)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if ok != wantOK || got != want {
+			t.Errorf("case %d: box %+v (%v), every sample gives %+v (%v)", k, got, ok, want, wantOK)
+		}
+		if traced <= 0 || traced > side*side || (ok && traced >= side*side) {
+			t.Errorf("case %d: %d photons traced of %d samples", k, traced, side*side)
 		}
 	}
 }
