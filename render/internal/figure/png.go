@@ -29,12 +29,21 @@ func EncodePNG(w io.Writer, img image.Image) error {
 	return enc.Encode(w, img)
 }
 
-// opaque reports whether every pixel of m has alpha 255.
+// opaque reports whether every pixel of m has alpha 255. It reads four
+// pixels at a time, as two 64-bit words whose alpha bytes are masked.
 func opaque(m *image.RGBA) bool {
+	const alpha = 0xff000000_ff000000 // bytes 3 and 7 of a little-endian word
 	b := m.Bounds()
 	for y := b.Min.Y; y < b.Max.Y; y++ {
 		row := m.Pix[m.PixOffset(b.Min.X, y):m.PixOffset(b.Max.X, y)]
-		for i := 3; i < len(row); i += 4 {
+		i := 0
+		for ; i+16 <= len(row); i += 16 {
+			v := binary.LittleEndian.Uint64(row[i:]) & binary.LittleEndian.Uint64(row[i+8:])
+			if v&alpha != alpha {
+				return false
+			}
+		}
+		for i += 3; i < len(row); i += 4 {
 			if row[i] != 0xff {
 				return false
 			}

@@ -137,3 +137,37 @@ func (l *limitWriter) Write(p []byte) (int, error) {
 	l.n -= len(p)
 	return len(p), nil
 }
+
+// opaque reads four pixels at a time: one translucent pixel anywhere,
+// in the words or in a row's tail, on images of every width up to 9 and
+// with a sub-image's offset rows, must be found.
+func TestOpaqueFindsEveryTranslucentPixel(t *testing.T) {
+	for w := 1; w <= 9; w++ {
+		for h := 1; h <= 3; h++ {
+			full := image.NewRGBA(image.Rect(0, 0, w+2, h+1))
+			for k := range full.Pix {
+				full.Pix[k] = 0xff
+			}
+			m := full.SubImage(image.Rect(1, 1, w+1, h+1)).(*image.RGBA)
+			if !opaque(m) {
+				t.Fatalf("%d×%d: an opaque image reported translucent", w, h)
+			}
+			for y := 1; y <= h; y++ {
+				for x := 1; x <= w; x++ {
+					k := full.PixOffset(x, y) + 3
+					full.Pix[k] = 0xfe
+					if opaque(m) {
+						t.Fatalf("%d×%d: alpha 254 at (%d, %d) not found", w, h, x, y)
+					}
+					full.Pix[k] = 0xff
+				}
+			}
+			// Outside the sub-image a translucent pixel does not count.
+			full.Pix[3] = 0
+			if !opaque(m) {
+				t.Fatalf("%d×%d: a pixel outside the sub-image counted", w, h)
+			}
+			full.Pix[3] = 0xff
+		}
+	}
+}
