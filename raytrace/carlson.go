@@ -189,9 +189,7 @@ func sort3(a, b, c float64) (lo, mid, hi float64) {
 // on checking them, which the photon paths' two evaluations per ray
 // (trace) do not need: their arguments are valid by construction.
 func carlsonRF(x, y, z float64) float64 {
-	const tol = 1.2674918778210762e-02 // (3ε)^{1/8}
-	a0 := (x + y + z) / 3
-	q := max(math.Abs(a0-x), math.Abs(a0-y), math.Abs(a0-z)) / tol
+	a0, q := carlsonStartF(x, y, z)
 	x0, y0 := x, y
 	a := a0
 	fac := 1.0
@@ -200,6 +198,15 @@ func carlsonRF(x, y, z float64) float64 {
 		fac *= 0.25
 	}
 	return carlsonSeriesF(a0, x0, y0, a, fac)
+}
+
+// carlsonStartF returns the initial mean a0 of R_F's duplication and its
+// stopping scale q = max|a0 − x|/(3ε)^{1/8}: the steps go on while
+// 4^{-n} q ≥ A_n (see carlsonRF).
+func carlsonStartF(x, y, z float64) (a0, q float64) {
+	const tol = 1.2674918778210762e-02 // (3ε)^{1/8}
+	a0 = (x + y + z) / 3
+	return a0, max(math.Abs(a0-x), math.Abs(a0-y), math.Abs(a0-z)) / tol
 }
 
 // carlsonStepF is one duplication step of R_F (Carlson 1995, sec. 2.2):
@@ -223,11 +230,9 @@ func carlsonNext(sx, sy, sz float64) float64 {
 // chains of square roots are independent, and side by side the processor
 // overlaps them.
 func carlsonRF2(xa, ya, xb, yb float64) (float64, float64) {
-	const tol = 1.2674918778210762e-02 // (3ε)^{1/8}
 	za, zb := 1.0, 1.0
-	a0a, a0b := (xa+ya+za)/3, (xb+yb+zb)/3
-	qa := max(math.Abs(a0a-xa), math.Abs(a0a-ya), math.Abs(a0a-za)) / tol
-	qb := max(math.Abs(a0b-xb), math.Abs(a0b-yb), math.Abs(a0b-zb)) / tol
+	a0a, qa := carlsonStartF(xa, ya, za)
+	a0b, qb := carlsonStartF(xb, yb, zb)
 	x0a, y0a, x0b, y0b := xa, ya, xb, yb
 	aa, ab := a0a, a0b
 	faca, facb := 1.0, 1.0
@@ -257,11 +262,9 @@ func carlsonRF2(xa, ya, xb, yb float64) (float64, float64) {
 // rule (Carlson 1995, eqs. 2.29–2.31, 2.37–2.39), with the arguments of
 // the shared steps. withA false leaves out the first chain (fa = 0).
 func carlsonRF2DJ(xa, ya, xb, yb, p float64, withA bool) (fa, fb, rd, rj float64) {
-	const tol = 1.2674918778210762e-02 // (3ε)^{1/8}, as carlsonRF2
 	za, zb := 1.0, 1.0
-	a0a, a0b := (xa+ya+za)/3, (xb+yb+zb)/3
-	qa := max(math.Abs(a0a-xa), math.Abs(a0a-ya), math.Abs(a0a-za)) / tol
-	qb := max(math.Abs(a0b-xb), math.Abs(a0b-yb), math.Abs(a0b-zb)) / tol
+	a0a, qa := carlsonStartF(xa, ya, za)
+	a0b, qb := carlsonStartF(xb, yb, zb)
 	x0a, y0a, x0b, y0b := xa, ya, xb, yb
 	aa, ab := a0a, a0b
 	faca, facb := 1.0, 1.0

@@ -128,12 +128,7 @@ func (s *stagedFile) writeLoop() {
 // writes on if the system allows them, a shorter one (the tail, not a
 // whole number of blocks) turns them off again, and a direct write the
 // file system refuses is made through the cache.
-func (s *stagedFile) write(b []byte) (err error) {
-	defer func() {
-		if err == nil {
-			s.wn += int64(len(b))
-		}
-	}()
+func (s *stagedFile) write(b []byte) error {
 	if s.direct == directUntried && len(b) != stageBufSize {
 		s.direct = directOff // a short buffer before the tail: offsets no longer aligned
 	}
@@ -149,13 +144,16 @@ func (s *stagedFile) write(b []byte) (err error) {
 			return err
 		}
 	}
-	_, err = s.f.Write(b)
+	_, err := s.f.Write(b)
 	if err != nil && s.direct == directOn && errors.Is(err, syscall.EINVAL) {
 		s.direct = directOff
 		if err := setDirect(s.f, false); err != nil {
 			return err
 		}
 		_, err = s.f.Write(b)
+	}
+	if err == nil {
+		s.wn += int64(len(b))
 	}
 	return err
 }
