@@ -23,6 +23,7 @@ import (
 	"regexp"
 	"strings"
 	"sync"
+	"syscall"
 	"testing"
 	"time"
 
@@ -190,6 +191,27 @@ type browser struct {
 	dt *devtools
 }
 
+// stopBrowser ends chromium and every helper process it started (they share
+// its process group), waits until the group is gone, and removes the profile.
+// A profile that will not go away is reported, not failed on: it is chromium's
+// cache, not the page under test.
+func stopBrowser(t *testing.T, cmd *exec.Cmd, profile string) {
+	pgid := cmd.Process.Pid
+	syscall.Kill(-pgid, syscall.SIGKILL)
+	cmd.Wait()
+	for i := 0; i < 100 && syscall.Kill(-pgid, 0) == nil; i++ {
+		time.Sleep(20 * time.Millisecond)
+	}
+	var err error
+	for i := 0; i < 20; i++ {
+		if err = os.RemoveAll(profile); err == nil {
+			return
+		}
+		time.Sleep(50 * time.Millisecond)
+	}
+	t.Logf("chromium's profile %s left behind: %v", profile, err)
+}
+
 // openBrowser starts Debian's chromium headless on the page, or skips the
 // test when there is no chromium to start.
 func openBrowser(t *testing.T, pageURL string) *browser {
@@ -204,19 +226,25 @@ func openBrowser(t *testing.T, pageURL string) *browser {
 	if bin == "" {
 		t.Skip("no chromium on PATH: the browser tests need Debian's chromium package (apt-get install chromium)")
 	}
+	// The profile is ours to remove: chromium's helper processes can still
+	// be writing their caches when the main process has exited, which would
+	// make t.TempDir's own removal fail the test.
+	profile, err := os.MkdirTemp("", "kerrscope-browser-")
+	if err != nil {
+		t.Fatal(err)
+	}
 	cmd := exec.Command(bin, "--headless", "--no-sandbox", "--disable-gpu", "--hide-scrollbars", "--no-first-run",
-		"--remote-debugging-port=0", "--user-data-dir="+t.TempDir(), "--window-size=1400,900", "about:blank")
+		"--remote-debugging-port=0", "--user-data-dir="+profile, "--window-size=1400,900", "about:blank")
+	cmd.SysProcAttr = &syscall.SysProcAttr{Setpgid: true}
 	stderr, err := cmd.StderrPipe()
 	if err != nil {
 		t.Fatal(err)
 	}
 	if err := cmd.Start(); err != nil {
+		os.RemoveAll(profile)
 		t.Skipf("chromium does not start (%v): the browser tests need Debian's chromium package", err)
 	}
-	t.Cleanup(func() {
-		cmd.Process.Kill()
-		cmd.Wait()
-	})
+	t.Cleanup(func() { stopBrowser(t, cmd, profile) })
 	found := make(chan string, 1)
 	go func() {
 		sc := bufio.NewScanner(stderr)
