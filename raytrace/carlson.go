@@ -347,7 +347,7 @@ func carlsonLoop(x, y, z float64, ps []float64, rj []float64) float64 {
 	case 1:
 		return carlsonLoop1(x, y, z, ps, rj)
 	case 3:
-		return carlsonLoop3(x, y, z, ps, rj)
+		return carlsonLoop3(x, y, z, math.Sqrt(x), math.Sqrt(y), math.Sqrt(z), ps, rj)
 	}
 	var pv, a0, av, delta, sum [4]float64
 	// R_D is R_J with p = z; its mean is (x + y + 3z)/5.
@@ -403,8 +403,9 @@ func carlsonLoop(x, y, z float64, ps []float64, rj []float64) float64 {
 // the two horizons), with the same operations in the same order, so the
 // same results to the last bit (carlson_test.go checks that), but with
 // its running values in scalars instead of arrays, which the compiler
-// keeps in registers.
-func carlsonLoop3(x, y, z float64, ps []float64, rj []float64) float64 {
+// keeps in registers. sx, sy, sz are the square roots of x, y, z for the
+// first step: the timing knows them as |cn|, dn and 1 (carlsonLoop3cd).
+func carlsonLoop3(x, y, z, sx, sy, sz float64, ps []float64, rj []float64) float64 {
 	p0, p1, p2 := ps[0], ps[1], ps[2]
 	ad0 := (x + y + 3*z) / 5
 	lo, _, hi := sort3(x, y, z)
@@ -420,20 +421,25 @@ func carlsonLoop3(x, y, z float64, ps []float64, rj []float64) float64 {
 	maxDev = max(maxDev, a00-min(lo, p0), max(hi, p0)-a00)
 	maxDev = max(maxDev, a01-min(lo, p1), max(hi, p1)-a01)
 	maxDev = max(maxDev, a02-min(lo, p2), max(hi, p2)-a02)
+	// Every mean moves by a ↦ (a + λ)/4, which keeps their order: the
+	// smallest stays the smallest, so it alone is followed (minA is the
+	// same value carlsonLoop's min over all of them gives).
 	minA := min(ad0, a00, a01, a02)
 	q := carlsonQJ * maxDev
 	x0, y0, z0 := x, y, z
 	fac := 1.0
 	sumD, s0, s1, s2 := 0.0, 0.0, 0.0, 0.0
 	for it := 0; it < carlsonMaxIter && fac*q >= minA; it++ {
-		sx, sy, sz := math.Sqrt(x), math.Sqrt(y), math.Sqrt(z)
+		if it > 0 {
+			sx, sy, sz = math.Sqrt(x), math.Sqrt(y), math.Sqrt(z)
+		}
 		lam := sx*sy + sx*sz + sy*sz
 		sumD += fac / (sz * (z + lam))
 		f3 := fac * fac * fac
 		t0, e0, i0 := carlsonTermJ(p0, d0, sx, sy, sz, f3, fac)
 		t1, e1, i1 := carlsonTermJ(p1, d1, sx, sy, sz, f3, fac)
 		t2, e2, i2 := carlsonTermJ(p2, d2, sx, sy, sz, f3, fac)
-		if !(max(e0, e1, e2) < 3e-4 && min(e0, e1, e2) > -3e-4) {
+		if !(math.Abs(e0) < 3e-4 && math.Abs(e1) < 3e-4 && math.Abs(e2) < 3e-4) {
 			t0 = carlsonFixJ(t0, e0, i0, fac)
 			t1 = carlsonFixJ(t1, e1, i1, fac)
 			t2 = carlsonFixJ(t2, e2, i2, fac)
@@ -445,7 +451,7 @@ func carlsonLoop3(x, y, z float64, ps []float64, rj []float64) float64 {
 		av0, av1, av2 = (av0+lam)*0.25, (av1+lam)*0.25, (av2+lam)*0.25
 		x, y, z = (x+lam)*0.25, (y+lam)*0.25, (z+lam)*0.25
 		ad = (ad + lam) * 0.25
-		minA = min(ad, av0, av1, av2)
+		minA = (minA + lam) * 0.25
 		fac *= 0.25
 	}
 	sumD = carlsonEndD(ad0, ad, x0, y0, fac) + 3*sumD

@@ -482,11 +482,18 @@ func (rt *radialTimer) setK() {
 
 // sn2Integrals returns ∫₀^u sn² = (s³/3) R_D(c², d², 1) and, for each
 // p = 1 − N s², (P_N(u) − u)/N = (s³/3) R_J(c², d², 1, p) (DLMF 19.25.9,
-// 19.25.14; 0 ≤ u ≤ K), given s = sn u, c² = cn²u, d² = dn²u, at most
-// three p.
-func sn2Integrals(s, c2, d2 float64, ps []float64) (z float64, q [3]float64) {
+// 19.25.14; 0 ≤ u ≤ 2K), given s = sn u, c = cn u, d = dn u > 0, at most
+// three p. For three positive p the duplication's first step takes the
+// square roots of c², d², 1 as |c|, d, 1.
+func sn2Integrals(s, c, d float64, ps []float64) (z float64, q [3]float64) {
 	var rj [3]float64
-	rd := carlsonDJ(c2, d2, 1, ps, rj[:0])
+	c2, d2 := c*c, d*d
+	var rd float64
+	if len(ps) == 3 && ps[0] > 0 && ps[1] > 0 && ps[2] > 0 {
+		rd = carlsonLoop3(c2, d2, 1, math.Abs(c), d, 1, ps, rj[:])
+	} else {
+		rd = carlsonDJ(c2, d2, 1, ps, rj[:0])
+	}
 	s3 := s * s * s / 3
 	for i := range ps {
 		q[i] = s3 * rj[i]
@@ -557,7 +564,7 @@ func (rt *radialTimer) sumsI(jac *pathJacobi) (sy, sz float64, sq [3]float64) {
 	if su == 0 {
 		return sy, 0, sq
 	}
-	s2, c2, d2 := su*su, cu*cu, du*du
+	s2, c2 := su*su, cu*cu
 	var ps [3]float64
 	for i := 0; i < ng; i++ {
 		if n := rt.nch[i]; n > 0 {
@@ -566,7 +573,7 @@ func (rt *radialTimer) sumsI(jac *pathJacobi) (sy, sz float64, sq [3]float64) {
 			ps[i] = 1 - n*s2
 		}
 	}
-	z, q := sn2Integrals(su, c2, d2, ps[:ng])
+	z, q := sn2Integrals(su, cu, du, ps[:ng])
 	if cu < 0 {
 		if !rt.haveComp {
 			rt.completeI()
@@ -968,7 +975,7 @@ func (rt *radialTimer) addII(jac *pathJacobi, onegc [3]float64) [5]float64 {
 	if sd != 0 {
 		s2, c2, d2 := sd*sd, cd*cd, dd*dd
 		ps := rt.poleArgs(s2, c2, d2)
-		z, q := sn2Integrals(sd, c2, d2, ps[:ng])
+		z, q := sn2Integrals(sd, cd, dd, ps[:ng])
 		if cd < 0 { // δ > K: Z(δ) = 2Z(K) − Z(2K − δ), likewise Q_N
 			if !rt.haveComp {
 				rt.completeII()
