@@ -300,13 +300,14 @@ type radialTimer struct {
 	// inf is set on first need (infII, infI): the additions from
 	// infinity (addI, addII) do without it.
 	haveInf bool
-	// The regularised R_C at infinity (case I), whether the photon
+	// The R_C of Π(n) at infinity (case I, e0 and sx0 = √x there, its
+	// regularised value is ½ ln(e0)/sx0) and p (see addI), whether the photon
 	// escapes with four real roots (escI), sn, cn, dn at infinity (of F0,
 	// X0), and for the characteristics of the third kinds (case I: ν,
 	// n₊, n₋; case II: those of jII): N, 1 − N, 1 − N sn² at infinity and
 	// k² = N(m − N)(1 − N).
 	escI               bool
-	rcInf              float64
+	e0, sx0, pn        float64 // case I: the R_C of Π(n) at infinity (setupI, addI)
 	s0, c0, d0         float64
 	nch, omn, on0, kk2 [3]float64
 	kq, ikq            [3]float64 // sqrt|k²| and its inverse (setK)
@@ -378,8 +379,9 @@ func (rt *radialTimer) setupI(q *quartic, rad *radial) {
 	onu := rt.r43 * (rt.r31 + rt.r42) / (rt.r41 * rt.r42) // 1 − ν s²
 	// ln y = ln r43 + ln(1 − νs²) − ln(r − r3): keep the finite part,
 	// R_C → [ln(2√x) − ½ ln(r43 (1 − νs²))]/√x = ½ ln(4x/(r43 (1 − νs²)))/√x
-	// with x = c²d² = r43²/(r41 r42) (rcRegular).
-	rt.rcInf = 0.5 * math.Log(4*rt.r43/(rt.r41*rt.r42*onu)) / math.Sqrt(c2*d2)
+	// with x = c²d² = r43²/(r41 r42) (rcRegular): rcInf = ½ ln(e0)/√x.
+	rt.e0 = 4 * rt.r43 / (rt.r41 * rt.r42 * onu)
+	rt.sx0 = math.Sqrt(c2 * d2)
 	// sqrt((r−r1)(r−r2)(r−r4)/(r−r3)) = r + (r3 − r1 − r2 − r4)/2 + O(1/r).
 	rt.breg = (rt.r3 - rt.r1 - rt.r2 - rt.r4) / 2
 	if math.IsInf(rad.turn, 1) {
@@ -392,6 +394,9 @@ func (rt *radialTimer) setupI(q *quartic, rad *radial) {
 	// 1 − n_c s0² = r43/d₄.
 	rt.escI = true
 	rt.s0, rt.c0, rt.d0 = rad.sn0, rad.cn0, rad.dn0
+	// x − y of Π(n)'s R_C is (n − 1)(1 − ν) s² = p² s² with
+	// n − 1 = r43/r31, 1 − ν = r43/r42 (see addI).
+	rt.pn = rt.r43 / math.Sqrt(rt.r31*rt.r42)
 	rt.nch[0], rt.omn[0], rt.on0[0] = rt.nu, rt.q432, onu
 	rt.kk2[0] = rt.nu * (rt.m * rt.r43 / rt.r41) * rt.q432
 	for i, c := range [2]float64{rt.rp, rt.rm} {
@@ -416,7 +421,8 @@ func (rt *radialTimer) infI() {
 	c2 := rt.r43 / rt.r41
 	d2 := rt.r43 / rt.r42
 	onu := rt.r43 * (rt.r31 + rt.r42) / (rt.r41 * rt.r42)
-	rt.inf = rt.jI(rt.x0, s2, c2, d2, onu, rt.r43*rt.id4p, rt.r43*rt.id4m, rt.rcInf, true)
+	rcInf := 0.5 * math.Log(rt.e0) / rt.sx0 // the regularised R_C (setupI)
+	rt.inf = rt.jI(rt.x0, s2, c2, d2, onu, rt.r43*rt.id4p, rt.r43*rt.id4m, rcInf, true)
 }
 
 // The case-I integrals from infinity to a point of an escaping photon's
@@ -942,8 +948,17 @@ func (rt *radialTimer) at(tau, r float64, jac *pathJacobi) (it, iphi float64) {
 // (the R_C of Π(n), see setupI).
 func (rt *radialTimer) addI(jac *pathJacobi, sn, x, yc float64) [5]float64 {
 	sy, sz, sq := rt.sumsI(jac)
-	// Π(n) from infinity: the R_C part at both ends, minus ν ΣQ_ν.
-	pin := rt.s0*rt.rcInf + jac.sgn*sn*carlsonRC(x, yc) - rt.nu*sq[0]
+	// Π(n) from infinity: the R_C part at both ends, minus ν ΣQ_ν. With
+	// x − y = p² s², s R_C(x, y) = artanh(v)/p, v = p s/√x, and
+	// artanh v = ½ ln(x(1 + v)²/y) (1 − v² = y/x); at infinity v = 1 and
+	// s0 R_C is regularised to ½ ln(e0)/p (p s0 = √x0, setupI). So both
+	// ends take one logarithm: ln(e0 (x(1 + v)²/y)^sgn)/(2p).
+	v := rt.pn * sn / math.Sqrt(x)
+	num, den := x*(1+v)*(1+v), yc
+	if jac.sgn < 0 {
+		num, den = den, num
+	}
+	pin := 0.5*math.Log(rt.e0*num/den)/rt.pn - rt.nu*sq[0]
 	var iv [5]float64
 	iv[0] = sy
 	iv[1] = rt.r3*sy + rt.r43*pin
