@@ -489,22 +489,24 @@ func (rt *radialTimer) setK() {
 // sn2Integrals returns ∫₀^u sn² = (s³/3) R_D(c², d², 1) and, for each
 // p = 1 − N s², (P_N(u) − u)/N = (s³/3) R_J(c², d², 1, p) (DLMF 19.25.9,
 // 19.25.14; 0 ≤ u ≤ 2K), given s = sn u, c = cn u, d = dn u > 0, at most
-// three p. For three positive p the duplication's first step takes the
-// square roots of c², d², 1 as |c|, d, 1.
-func sn2Integrals(s, c, d float64, ps []float64) (z float64, q [3]float64) {
-	var rj [3]float64
+// three p, the (P_N(u) − u)/N into q. For three positive p the
+// duplication's first step takes the square roots of c², d², 1 as |c|,
+// d, 1. (Results go through pointers here and below: arrays returned by
+// value are copied through the stack in pieces that stall the loads after
+// them.)
+func sn2Integrals(s, c, d float64, ps []float64, q *[3]float64) (z float64) {
 	c2, d2 := c*c, d*d
 	var rd float64
 	if len(ps) == 3 && ps[0] > 0 && ps[1] > 0 && ps[2] > 0 {
-		rd = carlsonLoop3(c2, d2, 1, math.Abs(c), d, 1, ps, rj[:])
+		rd = carlsonLoop3(c2, d2, 1, math.Abs(c), d, 1, ps, q[:])
 	} else {
-		rd = carlsonDJ(c2, d2, 1, ps, rj[:0])
+		rd = carlsonDJ(c2, d2, 1, ps, q[:0])
 	}
 	s3 := s * s * s / 3
 	for i := range ps {
-		q[i] = s3 * rj[i]
+		q[i] *= s3
 	}
-	return s3 * rd, q
+	return s3 * rd
 }
 
 // completeI sets the complete integrals Z(K) and (P_N(K) − K)/N =
@@ -518,10 +520,10 @@ func (rt *radialTimer) completeI() {
 	}
 }
 
-// sumsI returns, for an escaping case-I photon, Σy, ΣZ and ΣQ_N
+// sumsI returns, for an escaping case-I photon, Σy, ΣZ and, in sq, ΣQ_N
 // (Q_N = (P_N − y)/N): the integrals of 1, sn² and the third kinds from
 // infinity to the point jac (see the addition theorems above).
-func (rt *radialTimer) sumsI(jac *pathJacobi) (sy, sz float64, sq [3]float64) {
+func (rt *radialTimer) sumsI(jac *pathJacobi, sq *[3]float64) (sy, sz float64) {
 	sY, cY, dY := jac.sn, jac.cn, jac.dn
 	s0, c0, d0 := rt.s0, rt.c0, rt.d0
 	var u, su, cu, du float64
@@ -568,7 +570,8 @@ func (rt *radialTimer) sumsI(jac *pathJacobi) (sy, sz float64, sq [3]float64) {
 	}
 	sy = u
 	if su == 0 {
-		return sy, 0, sq
+		*sq = [3]float64{}
+		return sy, 0
 	}
 	s2, c2 := su*su, cu*cu
 	var ps [3]float64
@@ -579,21 +582,21 @@ func (rt *radialTimer) sumsI(jac *pathJacobi) (sy, sz float64, sq [3]float64) {
 			ps[i] = 1 - n*s2
 		}
 	}
-	z, q := sn2Integrals(su, cu, du, ps[:ng])
+	z := sn2Integrals(su, cu, du, ps[:ng], sq)
 	if cu < 0 {
 		if !rt.haveComp {
 			rt.completeI()
 		}
 		z = 2*rt.zc - z
 		for i := 0; i < ng; i++ {
-			q[i] = 2*rt.qc[i] - q[i]
+			sq[i] = 2*rt.qc[i] - sq[i]
 		}
 	}
 	sz = z + sg*t
 	for i := 0; i < ng; i++ {
-		sq[i] = q[i] + sg*addQ(rt.kk2[i], rt.kq[i], rt.ikq[i], t, gg[i])
+		sq[i] += sg * addQ(rt.kk2[i], rt.kq[i], rt.ikq[i], t, gg[i])
 	}
-	return sy, sz, sq
+	return sy, sz
 }
 
 // jI returns the case-I integrals ∫₀^Y of 1, r, r² (elliptic part), and
@@ -902,7 +905,9 @@ func (rt *radialTimer) at(tau, r float64, jac *pathJacobi) (it, iphi float64) {
 		// sqrt(R)/(r − r3) with (r − r4)/(r − r3) = n s².
 		bnd = math.Sqrt((r-rt.r1)*(r-rt.r2)*rt.n) * sn
 		if rt.escI && jac != nil {
-			return rt.finish(rt.addI(jac, sn, c2*dn*dn, onn*onu), sgn, bnd)
+			var iv [5]float64
+			rt.addI(jac, sn, c2*dn*dn, onn*onu, &iv)
+			return rt.finish(&iv, sgn, bnd)
 		}
 		onp := (r - rt.rp) * onn * rt.id4p
 		onm := (r - rt.rm) * onn * rt.id4m
@@ -928,7 +933,8 @@ func (rt *radialTimer) at(tau, r float64, jac *pathJacobi) (it, iphi float64) {
 		d1 := r - rt.re
 		bnd = math.Sqrt((r - rt.r2) * (d1*d1 + rt.im*rt.im) / (r - rt.r1))
 		if jac != nil {
-			return rt.finish(rt.addII(jac, onegc), sgn, bnd)
+			iv := rt.addII(jac, onegc)
+			return rt.finish(&iv, sgn, bnd)
 		}
 		j = rt.jII(y, sn, cn, dn, onegc, false)
 		if !rt.haveInf {
@@ -939,15 +945,16 @@ func (rt *radialTimer) at(tau, r float64, jac *pathJacobi) (it, iphi float64) {
 	for k := range iv {
 		iv[k] = (rt.inf[k] + sgn*j[k]) * rt.iscale
 	}
-	return rt.finish(iv, sgn, bnd)
+	return rt.finish(&iv, sgn, bnd)
 }
 
 // addI returns the case-I integrals of 1, r, r² (elliptic part) and
 // 1/(r − r±) from infinity to the point jac of an escaping photon, in τ
 // (see sumsI), given sn Y, c²d² and (1 − n s²)(1 − ν s²) of the point
 // (the R_C of Π(n), see setupI).
-func (rt *radialTimer) addI(jac *pathJacobi, sn, x, yc float64) [5]float64 {
-	sy, sz, sq := rt.sumsI(jac)
+func (rt *radialTimer) addI(jac *pathJacobi, sn, x, yc float64, iv *[5]float64) {
+	var sq [3]float64
+	sy, sz := rt.sumsI(jac, &sq)
 	// Π(n) from infinity: the R_C part at both ends, minus ν ΣQ_ν. With
 	// x − y = p² s², s R_C(x, y) = artanh(v)/p, v = p s/√x, and
 	// artanh v = ½ ln(x(1 + v)²/y) (1 − v² = y/x); at infinity v = 1 and
@@ -959,18 +966,17 @@ func (rt *radialTimer) addI(jac *pathJacobi, sn, x, yc float64) [5]float64 {
 		num, den = den, num
 	}
 	pin := 0.5*math.Log(rt.e0*num/den)/rt.pn - rt.nu*sq[0]
-	var iv [5]float64
 	iv[0] = sy
 	iv[1] = rt.r3*sy + rt.r43*pin
 	iv[2] = rt.r3*rt.r3*sy - rt.k2*(sy-rt.n*sz)
 	iv[3] = sy*rt.id4p - 3*rt.kp*sq[1]
+	iv[4] = 0
 	if !rt.skipM {
 		iv[4] = sy*rt.id4m - 3*rt.km*sq[2]
 	}
 	for k := range iv {
 		iv[k] *= rt.iscale
 	}
-	return iv
 }
 
 // addII returns the case-II integrals of 1, r, r² (elliptic part) and
@@ -990,7 +996,8 @@ func (rt *radialTimer) addII(jac *pathJacobi, onegc [3]float64) [5]float64 {
 	if sd != 0 {
 		s2, c2, d2 := sd*sd, cd*cd, dd*dd
 		ps := rt.poleArgs(s2, c2, d2)
-		z, q := sn2Integrals(sd, cd, dd, ps[:ng])
+		var q [3]float64
+		z := sn2Integrals(sd, cd, dd, ps[:ng], &q)
 		if cd < 0 { // δ > K: Z(δ) = 2Z(K) − Z(2K − δ), likewise Q_N
 			if !rt.haveComp {
 				rt.completeII()
@@ -1018,7 +1025,7 @@ func (rt *radialTimer) addII(jac *pathJacobi, onegc [3]float64) [5]float64 {
 
 // finish combines the integrals iv (in τ) into I_t and I_φ, with the
 // boundary term bnd of I₂ taken with sign sgn.
-func (rt *radialTimer) finish(iv [5]float64, sgn, bnd float64) (it, iphi float64) {
+func (rt *radialTimer) finish(iv *[5]float64, sgn, bnd float64) (it, iphi float64) {
 	i2 := iv[2] + rt.breg + sgn*bnd
 	it = i2 + 2*iv[1] + 4*iv[0] + rt.cp*iv[3]
 	iphi = rt.ap * iv[3]
