@@ -399,10 +399,10 @@ func (rt *radialTimer) setupI(q *quartic, rad *radial) {
 	rt.pn = rt.r43 / math.Sqrt(rt.r31*rt.r42)
 	rt.nch[0], rt.omn[0], rt.on0[0] = rt.nu, rt.q432, onu
 	rt.kk2[0] = rt.nu * (rt.m * rt.r43 / rt.r41) * rt.q432
-	for i, c := range [2]float64{rt.rp, rt.rm} {
-		id4 := rt.id4p
+	for i := range 2 {
+		c, id4 := rt.rp, rt.id4p
 		if i == 1 {
-			id4 = rt.id4m
+			c, id4 = rt.rm, rt.id4m
 		}
 		nc := rt.n * (rt.r3 - c) * id4
 		omn := rt.r43 * (c - rt.r1) / rt.r31 * id4
@@ -480,8 +480,8 @@ func addQ(k2, k, ik, t, G float64) float64 {
 
 // setK sets k = sqrt|k²| and 1/k of each characteristic (addQ).
 func (rt *radialTimer) setK() {
-	for i, k2 := range rt.kk2 {
-		rt.kq[i] = math.Sqrt(math.Abs(k2))
+	for i := range rt.kk2 { // by index: ranging over the array would copy it
+		rt.kq[i] = math.Sqrt(math.Abs(rt.kk2[i]))
 		rt.ikq[i] = 1 / rt.kq[i]
 	}
 }
@@ -656,7 +656,11 @@ func (rt *radialTimer) setupII(q *quartic, rad *radial) {
 	rt.coefInf = 2 * ab * rt.r21 / (rt.b0 * rt.b1)
 	rt.logInfFinite = math.Log(rt.coefInf)
 	rt.g[0] = rt.b1 / rt.b0
-	for i, c := range [2]float64{rt.rp, rt.rm} {
+	for i := range 2 {
+		c := rt.rp
+		if i == 1 {
+			c = rt.rm
+		}
 		p0 := rt.bpr*(rt.r2-c) + rt.apr*(c-rt.r1)
 		p1 := rt.bpr*(rt.r2-c) - rt.apr*(c-rt.r1)
 		rt.p0[i+1], rt.p1[i+1] = p0, p1
