@@ -27,10 +27,22 @@ type Timing struct {
 }
 
 // TimedPath is a Path together with the Timing of each crossing:
-// Times[i] belongs to Crossings[i]. Reuse one per goroutine.
+// Times[i] belongs to Crossings[i]. Reuse one per goroutine (it also holds
+// TraceTimed's working state, about 2 KB, so that no call has to clear it
+// whole).
 type TimedPath struct {
 	Path
 	Times []Timing
+	work  timedWork
+}
+
+// timedWork is TraceTimed's working state. Each call resets the flags
+// that say what is set (timingInput.reset, radialTimer.reset); every other
+// field is written before it is read in the case that reads it, which
+// TestTraceTimedReuse checks against a fresh TimedPath for every ray.
+type timedWork struct {
+	in timingInput
+	rt radialTimer
 }
 
 // TraceTimed is Trace plus the time delay and azimuth of every crossing in
@@ -69,16 +81,18 @@ type TimedPath struct {
 func (o Observer) TraceTimed(alpha, beta float64, orders int, tp *TimedPath) {
 	o = o.resolved()
 	lambda, eta := o.constants(alpha, beta)
-	var in timingInput
-	o.trace(lambda, eta, beta, orders, &tp.Path, &in)
+	in := &tp.work.in
+	in.reset()
+	o.trace(lambda, eta, beta, orders, &tp.Path, in)
 	tp.Times = tp.Times[:0]
 	if len(tp.Crossings) == 0 || !in.ok {
 		return
 	}
 	a := o.spin
-	var rt radialTimer
+	rt := &tp.work.rt
+	rt.reset()
 	rt.init(&in.q, &in.rad, a, lambda, o.horizon)
-	ang := o.newAngularTimer(&in, alpha, beta, lambda)
+	ang := o.newAngularTimer(in, alpha, beta, lambda)
 	for n, c := range tp.Crossings {
 		var jac *pathJacobi
 		if n < len(in.jac) {
@@ -120,6 +134,11 @@ func (tm *timingInput) angularF(s2a, c2a, mca float64, ang *angularMotion, st2 f
 	ra, rb, rd, rj := carlsonRF2DJ(c2a, c2a+mca*s2a, ang.c2, ang.c2+ang.mc*ang.s2, st2, withA)
 	tm.angDJ, tm.angRD, tm.angRJ = true, rd, rj
 	return math.Sqrt(s2a) * ra, math.Sqrt(ang.s2) * rb
+}
+
+// reset clears what trace sets only in some cases (see timedWork).
+func (tm *timingInput) reset() {
+	tm.ok, tm.angDJ, tm.haveZK = false, false, false
 }
 
 func (tm *timingInput) set(q quartic, rad radial, w, up, mc, sw, gq float64, beta0 bool) {
@@ -322,7 +341,14 @@ type radialTimer struct {
 	einf     [5]float64
 }
 
-// init sets up rt, a zero radialTimer, for the photon with radial roots
+// reset clears the flags of what is set on first need or only in some
+// cases, so that init can set up a used radialTimer (see timedWork).
+func (rt *radialTimer) reset() {
+	rt.haveInf, rt.haveComp, rt.escI = false, false, false
+	rt.atRoot = [3]bool{}
+}
+
+// init sets up rt, a zero or reset radialTimer, for the photon with radial roots
 // q and radial solution rad (read only).
 func (rt *radialTimer) init(q *quartic, rad *radial, a, lambda, rh float64) {
 	rt.cs, rt.scale, rt.x0, rt.m, rt.mc, rt.iscale = rad.cs, rad.scale, rad.x0, rad.m, rad.mc, 1/rad.scale
