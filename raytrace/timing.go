@@ -141,9 +141,11 @@ func (tm *timingInput) reset() {
 	tm.ok, tm.angDJ, tm.haveZK = false, false, false
 }
 
-func (tm *timingInput) set(q quartic, rad radial, w, up, mc, sw, gq float64, beta0 bool) {
-	tm.ok = rad.cs == FourReal || rad.cs == TwoReal
-	tm.q, tm.rad = q, rad
+// set records the roots and the angular motion; trace has built tm.rad
+// in place.
+func (tm *timingInput) set(q quartic, w, up, mc, sw, gq float64, beta0 bool) {
+	tm.ok = tm.rad.cs == FourReal || tm.rad.cs == TwoReal
+	tm.q = q
 	tm.w, tm.up, tm.mc, tm.sw, tm.gq = w, up, mc, sw, gq
 	tm.beta0 = beta0
 }

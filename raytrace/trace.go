@@ -224,7 +224,14 @@ func (o Observer) trace(lambda, eta, beta float64, orders int, p *Path, tm *timi
 	var ang angularMotion
 	var gobs float64
 	paired := q.cs == FourReal && q.r4 > rh && eta > 0 && orders > 0 && beta != 0
-	var rad radial
+	// The timed trace builds the radial solution where the timing reads
+	// it, instead of copying it there.
+	var radLocal radial
+	rad := &radLocal
+	if tm != nil {
+		rad = &tm.rad
+		*rad = radial{}
+	}
 	if paired {
 		ang = o.angularMotion(A, eta, beta)
 		s2, c2, mc := caseIAmplitude(&q)
@@ -320,7 +327,7 @@ func (o Observer) trace(lambda, eta, beta float64, orders int, p *Path, tm *timi
 		}
 	}
 	if tm != nil {
-		tm.set(q, rad, w, up, mcTheta, sw, gq, beta == 0)
+		tm.set(q, w, up, mcTheta, sw, gq, beta == 0)
 	}
 	for n := 0; n < orders; n++ {
 		tau := tau0 + 2*float64(n)*gq
