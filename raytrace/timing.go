@@ -469,8 +469,8 @@ func (rt *radialTimer) infI() {
 // J(F0) − J(Y) = J(δ) + D(Y, δ) with δ = F0 − Y the distance from
 // infinity that trace's r(τ) already carries; after it,
 // J(F0) + J(Y) = J(F0 + Y) − D(F0, Y). The pole at infinity stays in
-// the elementary R_C of Π(n) (see setupI), which is evaluated at both
-// ends as before; the ν part has no pole (ν < m), and neither do n± for
+// the elementary R_C of Π(n) (see setupI), whose values at both ends
+// are one logarithm (addI); the ν part has no pole (ν < m), and neither do n± for
 // r1 < r± < r4: on 0 ≤ u ≤ 2K the radius of sn u covers only r ≥ r4 and
 // r ≤ r1. For u > K, Z(u) = 2Z(K) − Z(2K − u) and likewise P_N, the
 // complete values by Bulirsch's cel.
