@@ -404,7 +404,7 @@ func carlsonLoop(x, y, z float64, ps []float64, rj []float64) float64 {
 // same results to the last bit (carlson_test.go checks that), but with
 // its running values in scalars instead of arrays, which the compiler
 // keeps in registers. sx, sy, sz are the square roots of x, y, z for the
-// first step: the timing knows them as |cn|, dn and 1 (carlsonLoop3cd).
+// first step: the timing knows them as |cn|, dn and 1 (sn2Integrals).
 func carlsonLoop3(x, y, z, sx, sy, sz float64, ps []float64, rj []float64) float64 {
 	p0, p1, p2 := ps[0], ps[1], ps[2]
 	ad0 := (x + y + 3*z) / 5

@@ -980,9 +980,9 @@ func (rt *radialTimer) at(tau, r float64, jac *pathJacobi) (it, iphi float64) {
 	return rt.finish(&iv, sgn, bnd)
 }
 
-// addI returns the case-I integrals of 1, r, r² (elliptic part) and
-// 1/(r − r±) from infinity to the point jac of an escaping photon, in τ
-// (see sumsI), given sn Y, c²d² and (1 − n s²)(1 − ν s²) of the point
+// addI writes into iv the case-I integrals of 1, r, r² (elliptic part)
+// and 1/(r − r±) from infinity to the point jac of an escaping photon, in
+// τ (see sumsI), given sn Y, c²d² and (1 − n s²)(1 − ν s²) of the point
 // (the R_C of Π(n), see setupI).
 func (rt *radialTimer) addI(jac *pathJacobi, sn, x, yc float64, iv *[5]float64) {
 	var sq [3]float64
